@@ -1,0 +1,52 @@
+"""Atomic output files: write to a temporary file beside the target, then rename.
+
+A crash, a signal or an exception while writing leaves the target untouched
+(either absent or the previous complete version) and no stray temporary file.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import os
+import tempfile
+from pathlib import Path
+from typing import Iterator
+
+
+@contextlib.contextmanager
+def atomic_path(target: str | os.PathLike, suffix: str | None = None) -> Iterator[Path]:
+    """Yield a temporary path in the target's folder; on success rename it onto ``target``.
+
+    Parameters
+    ----------
+    target : path-like
+        The final output path. Its folder must exist.
+    suffix : str, optional
+        Suffix of the temporary file (defaults to the target's, so writers that
+        choose a format by extension still do the right thing).
+
+    Notes
+    -----
+    The temporary name starts with ``.`` and ends with the target suffix, e.g.
+    ``.MAP.png.tmp1234.png``; on any exception it is removed and the exception
+    propagates.
+    """
+    target = Path(target)
+    folder = target.parent if str(target.parent) else Path(".")
+    suffix = target.suffix if suffix is None else suffix
+    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.tmp", suffix=suffix, dir=folder)
+    os.close(fd)
+    tmp_path = Path(tmp)
+    try:
+        yield tmp_path
+        os.replace(tmp_path, target)
+    except BaseException:
+        with contextlib.suppress(FileNotFoundError):
+            tmp_path.unlink()
+        raise
+
+
+def write_text(target: str | os.PathLike, text: str) -> None:
+    """Write ``text`` (UTF-8) to ``target`` atomically."""
+    with atomic_path(target) as tmp:
+        tmp.write_text(text, encoding="utf-8")

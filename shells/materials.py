@@ -1,0 +1,306 @@
+"""Layer materials: orthotropic plies, isotropic layers and sandwich cores.
+
+All values are plain floats in one consistent unit system (the definition's),
+converted before a material is built. Axes: 1 along the fibre (or the
+reference direction of the layer), 2 in-plane transverse, 3 along the shell
+normal. Shear moduli and strains are engineering quantities.
+
+Each class is a frozen dataclass with the same small interface:
+``Q()`` (plane-stress reduced stiffness, 3×3, order 1, 2, 12),
+``G_transverse()`` ((G13, G23)), ``alpha()`` / ``beta()`` (expansion per unit
+temperature / moisture, order 1, 2, 12), ``params()`` (the kernel property
+vector, see :mod:`shells.params`) and ``validate()``.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, fields
+
+import numpy as np
+
+from . import params as P
+from .errors import MaterialError
+
+
+def _require_positive(material: str, **values: float | None) -> None:
+    for key, value in values.items():
+        if value is not None and not (value > 0 and math.isfinite(value)):
+            raise MaterialError(
+                f"material '{material}': {key} = {value!r} must be a positive finite number; fix the value")
+
+
+def _fill(vec: np.ndarray, **values: float | None) -> None:
+    for key, value in values.items():
+        if value is not None:
+            vec[P.INDEX[key]] = value
+
+
+@dataclass(frozen=True)
+class _Layer:
+    """Fields and behaviour shared by every layer material."""
+
+    name: str
+    density: float = 0.0
+    thickness: float | None = None
+    knockdown: float = 1.0
+
+    def alpha(self) -> np.ndarray:
+        return np.zeros(3)
+
+    def beta(self) -> np.ndarray:
+        return np.zeros(3)
+
+    def _base_params(self, kind: int) -> np.ndarray:
+        vec = np.full(P.NPARAM, np.nan)
+        vec[P.KIND] = kind
+        return vec
+
+    def _validate_common(self) -> None:
+        if self.density < 0 or not math.isfinite(self.density):
+            raise MaterialError(f"material '{self.name}': density = {self.density!r} must be zero or positive")
+        _require_positive(self.name, thickness=self.thickness)
+        if not (0 < self.knockdown <= 1):
+            raise MaterialError(
+                f"material '{self.name}': knockdown = {self.knockdown!r} must lie in (0, 1]; it is the "
+                "fraction of strength retained (product of environment and damage factors)")
+
+    def strength_keys(self) -> tuple[str, ...]:
+        """Names of the strength entries this material defines (for error messages)."""
+        return tuple(f.name for f in fields(self) if f.name in P.INDEX and f.name not in _ELASTIC
+                     and getattr(self, f.name) is not None)
+
+
+_ELASTIC = {"E1", "E2", "G12", "nu12", "G13", "G23", "Ez"}
+
+
+@dataclass(frozen=True)
+class Orthotropic(_Layer):
+    """A unidirectional or woven ply characterised in its material axes.
+
+    Parameters
+    ----------
+    E1, E2, G12, nu12 : float
+        In-plane moduli (stress) and major Poisson's ratio (ν12, strain in 2
+        over strain in 1 under load in 1).
+    G13, G23 : float, optional
+        Transverse shear moduli; G13 defaults to G12 and G23 to
+        E2 / (2 (1 + nu23)) when ``nu23`` is given, else to G12 (common practice).
+    Xt, Xc, Yt, Yc, S12, S13, S23 : float, optional
+        Strengths, all positive (compressive ones as magnitudes).
+    e1t, e1c, e2t, e2c, g12u : float, optional
+        Strain allowables (magnitudes; ``g12u`` engineering shear).
+    alpha1, alpha2, beta1, beta2 : float
+        Expansion per unit temperature / moisture change along 1 and 2.
+    """
+
+    E1: float = 0.0
+    E2: float = 0.0
+    G12: float = 0.0
+    nu12: float = 0.0
+    G13: float | None = None
+    G23: float | None = None
+    nu23: float | None = None
+    alpha1: float = 0.0
+    alpha2: float = 0.0
+    beta1: float = 0.0
+    beta2: float = 0.0
+    Xt: float | None = None
+    Xc: float | None = None
+    Yt: float | None = None
+    Yc: float | None = None
+    S12: float | None = None
+    S13: float | None = None
+    S23: float | None = None
+    e1t: float | None = None
+    e1c: float | None = None
+    e2t: float | None = None
+    e2c: float | None = None
+    g12u: float | None = None
+    ilss: float | None = None
+    F12star: float = -0.5
+    p_tpl: float = 0.30
+    p_cpl: float = 0.25
+    alpha0_deg: float = 53.0
+    insitu: bool = False
+    kind = "ply"
+
+    @property
+    def nu21(self) -> float:
+        return self.nu12 * self.E2 / self.E1
+
+    @property
+    def g13(self) -> float:
+        return self.G12 if self.G13 is None else self.G13
+
+    @property
+    def g23(self) -> float:
+        if self.G23 is not None:
+            return self.G23
+        if self.nu23 is not None:
+            return self.E2 / (2.0 * (1.0 + self.nu23))
+        return self.G12
+
+    def Q(self) -> np.ndarray:
+        """Plane-stress reduced stiffness in material axes, order (1, 2, 12)."""
+        d = 1.0 - self.nu12 * self.nu21
+        q11, q22 = self.E1 / d, self.E2 / d
+        q12 = self.nu12 * self.E2 / d
+        return np.array([[q11, q12, 0.0], [q12, q22, 0.0], [0.0, 0.0, self.G12]])
+
+    def G_transverse(self) -> tuple[float, float]:
+        return self.g13, self.g23
+
+    def alpha(self) -> np.ndarray:
+        return np.array([self.alpha1, self.alpha2, 0.0])
+
+    def beta(self) -> np.ndarray:
+        return np.array([self.beta1, self.beta2, 0.0])
+
+    def validate(self) -> "Orthotropic":
+        self._validate_common()
+        _require_positive(self.name, E1=self.E1, E2=self.E2, G12=self.G12, G13=self.G13, G23=self.G23)
+        limit = math.sqrt(self.E1 / self.E2)
+        if not abs(self.nu12) < limit:
+            raise MaterialError(
+                f"material '{self.name}': |nu12| = {abs(self.nu12):g} must be below sqrt(E1/E2) = {limit:g} "
+                "for a positive-definite compliance; check nu12 and the moduli")
+        _require_positive(self.name, Xt=self.Xt, Xc=self.Xc, Yt=self.Yt, Yc=self.Yc, S12=self.S12,
+                          S13=self.S13, S23=self.S23, e1t=self.e1t, e1c=self.e1c, e2t=self.e2t,
+                          e2c=self.e2c, g12u=self.g12u, ilss=self.ilss)
+        if not -1.0 <= self.F12star <= 1.0:
+            raise MaterialError(f"material '{self.name}': F12star = {self.F12star} must lie in [-1, 1]")
+        return self
+
+    def params(self) -> np.ndarray:
+        vec = self._base_params(P.KIND_PLY)
+        _fill(vec, E1=self.E1, E2=self.E2, G12=self.G12, nu12=self.nu12, G13=self.g13, G23=self.g23,
+              Xt=self.Xt, Xc=self.Xc, Yt=self.Yt, Yc=self.Yc, S12=self.S12, S13=self.S13, S23=self.S23,
+              e1t=self.e1t, e1c=self.e1c, e2t=self.e2t, e2c=self.e2c, g12u=self.g12u,
+              F12star=self.F12star, p_tpl=self.p_tpl, p_cpl=self.p_cpl,
+              alpha0=math.radians(self.alpha0_deg), ilss=self.ilss)
+        # In-situ strengths of a thick embedded ply (Davila, Camanho & Rose 2005, eqs. for thick plies).
+        scale_t, scale_s = (1.12 * math.sqrt(2.0), math.sqrt(2.0)) if self.insitu else (1.0, 1.0)
+        _fill(vec, YT_is=None if self.Yt is None else scale_t * self.Yt,
+              S12_is=None if self.S12 is None else scale_s * self.S12)
+        return vec
+
+
+@dataclass(frozen=True)
+class Isotropic(_Layer):
+    """An isotropic layer: metal sheet, adhesive film, balsa taken as isotropic.
+
+    Parameters
+    ----------
+    E, nu : float
+        Young's modulus and Poisson's ratio (−1 < nu < 0.5).
+    yield_strength : float, optional
+        Allowable equivalent (von Mises) stress.
+    Xt, Xc, S12 : float, optional
+        Direct and shear allowables for the max-stress check.
+    cte, cme : float
+        Expansion per unit temperature / moisture change (the definition keys
+        are ``alpha`` and ``beta``).
+    """
+
+    E: float = 0.0
+    nu: float = 0.0
+    cte: float = 0.0
+    cme: float = 0.0
+    yield_strength: float | None = None
+    Xt: float | None = None
+    Xc: float | None = None
+    S12: float | None = None
+    ilss: float | None = None
+    kind = "isotropic"
+
+    @property
+    def G(self) -> float:
+        return self.E / (2.0 * (1.0 + self.nu))
+
+    def Q(self) -> np.ndarray:
+        d = 1.0 - self.nu ** 2
+        return np.array([[self.E / d, self.nu * self.E / d, 0.0],
+                         [self.nu * self.E / d, self.E / d, 0.0],
+                         [0.0, 0.0, self.G]])
+
+    def G_transverse(self) -> tuple[float, float]:
+        return self.G, self.G
+
+    def alpha(self) -> np.ndarray:
+        return np.array([self.cte, self.cte, 0.0])
+
+    def beta(self) -> np.ndarray:
+        return np.array([self.cme, self.cme, 0.0])
+
+    def validate(self) -> "Isotropic":
+        self._validate_common()
+        _require_positive(self.name, E=self.E, yield_strength=self.yield_strength, Xt=self.Xt,
+                          Xc=self.Xc, S12=self.S12, ilss=self.ilss)
+        if not -1.0 < self.nu < 0.5:
+            raise MaterialError(f"material '{self.name}': nu = {self.nu} must lie in (-1, 0.5)")
+        return self
+
+    def params(self) -> np.ndarray:
+        vec = self._base_params(P.KIND_ISOTROPIC)
+        _fill(vec, E1=self.E, E2=self.E, G12=self.G, nu12=self.nu, G13=self.G, G23=self.G,
+              yield_strength=self.yield_strength, Xt=self.Xt, Xc=self.Xc, Yt=self.Xt, Yc=self.Xc,
+              S12=self.S12, ilss=self.ilss)
+        return vec
+
+
+@dataclass(frozen=True)
+class Core(_Layer):
+    """A honeycomb or foam core layer.
+
+    Parameters
+    ----------
+    G13, G23 : float
+        Transverse shear moduli: 13 in the ribbon (L) direction, 23 in the
+        transverse (W) direction of a honeycomb; equal for a foam.
+    Ez : float, optional
+        Through-thickness (flatwise) modulus, used by face wrinkling.
+    E1, E2 : float
+        In-plane moduli, default 0 (a honeycomb carries no in-plane load).
+    S13, S23 : float, optional
+        Core shear strengths in the ribbon and transverse directions.
+    Zc : float, optional
+        Flatwise compressive (crushing) strength.
+    cell_size : float, optional
+        Honeycomb cell size (inscribed circle diameter), used by intracell
+        dimpling of the adjacent faces.
+    """
+
+    G13: float = 0.0
+    G23: float = 0.0
+    Ez: float | None = None
+    E1: float = 0.0
+    E2: float = 0.0
+    S13: float | None = None
+    S23: float | None = None
+    Zc: float | None = None
+    cell_size: float | None = None
+    kind = "core"
+
+    def Q(self) -> np.ndarray:
+        return np.diag([self.E1, self.E2, 0.0])
+
+    def G_transverse(self) -> tuple[float, float]:
+        return self.G13, self.G23
+
+    def validate(self) -> "Core":
+        self._validate_common()
+        _require_positive(self.name, G13=self.G13, G23=self.G23, Ez=self.Ez, S13=self.S13,
+                          S23=self.S23, Zc=self.Zc, cell_size=self.cell_size)
+        if self.E1 < 0 or self.E2 < 0:
+            raise MaterialError(f"material '{self.name}': in-plane moduli E1, E2 of a core must not be negative")
+        return self
+
+    def params(self) -> np.ndarray:
+        vec = self._base_params(P.KIND_CORE)
+        _fill(vec, E1=self.E1, E2=self.E2, G12=0.0, nu12=0.0, G13=self.G13, G23=self.G23, Ez=self.Ez,
+              core_S13=self.S13, core_S23=self.S23, Zc=self.Zc)
+        return vec
+
+
+Material = Orthotropic | Isotropic | Core

@@ -1,0 +1,33 @@
+"""``plybridge section``: section stiffness of the laminates of a definition."""
+
+from __future__ import annotations
+
+import json
+
+import click
+
+
+@click.command(help="Section properties (ABD, H, thermal resultants, constants, flags) of the laminates "
+                    "of DEFINITION, in laminate axes and the definition's units.")
+@click.argument("definition", type=click.Path(dir_okay=False))
+@click.option("--laminate", "names", multiple=True, metavar="NAME", help="Only this laminate (repeatable).")
+@click.option("--json", "as_json", is_flag=True, help="Print one JSON object on stdout.")
+@click.option("-o", "--output", type=click.Path(dir_okay=False), help="Write to this file instead of stdout.")
+def section(definition: str, names: tuple[str, ...], as_json: bool, output: str | None) -> None:
+    from bridge.atomic import write_text
+    from bridge.definition import load_definition
+    from bridge.sections import build_sections, select_laminates
+    from bridge.section_table import format_sections
+
+    defn = load_definition(definition)
+    chosen = select_laminates(defn, names)
+    sections = build_sections(defn, chosen)
+    summaries = {name: sec.summary() for name, sec in sections.items()}
+    if as_json:
+        text = json.dumps({"units": defn.units.name, "laminates": summaries}, indent=2) + "\n"
+    else:
+        text = format_sections(summaries, defn.units)
+    if output:
+        write_text(output, text)
+    else:
+        click.echo(text, nl=False)

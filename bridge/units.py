@@ -1,0 +1,136 @@
+"""Unit systems of definition files and conversion of entries with pint.
+
+A definition declares one consistent force–length system. A bare number is
+taken in that system; a string carries its own unit ("181 GPa", "0.125 mm",
+"1.6 g/cm^3") and is converted once, on load. Mass is in the consistent unit
+force·time²/length (tonne in N-mm, kg in N-m, lbf·s²/in in lbf-in), so that
+areal mass times acceleration is a pressure in the same system.
+"""
+
+from __future__ import annotations
+
+import functools
+import math
+from dataclasses import dataclass
+
+from shells.errors import DefinitionError
+
+
+@dataclass(frozen=True)
+class UnitSystem:
+    """A consistent force–length–temperature system."""
+
+    name: str
+    force: str
+    length: str
+    temperature: str  # a temperature *difference* unit
+
+    @property
+    def stress(self) -> str:
+        return f"{self.force}/{self.length}**2"
+
+    def unit_of(self, kind: str) -> str:
+        """pint unit string of a quantity kind in this system."""
+        return {
+            "stress": self.stress,
+            "length": self.length,
+            "force": self.force,
+            "force_per_length": f"{self.force}/{self.length}",
+            "moment_per_length": f"{self.force}",
+            "density": f"{self.force}*s**2/{self.length}**4",
+            "areal_mass": f"{self.force}*s**2/{self.length}**3",
+            "expansion": f"1/{self.temperature}",
+            "temperature": self.temperature,
+            "dimensionless": "dimensionless",
+            "angle": "degree",
+        }[kind]
+
+    def label(self, kind: str) -> str:
+        """Short human label of a unit, for tables and colour-bar titles."""
+        return {
+            "stress": f"{self.force}/{self.length}²",
+            "length": self.length,
+            "force_per_length": f"{self.force}/{self.length}",
+            "moment_per_length": f"{self.force}·{self.length}/{self.length}",
+            "stiffness_A": f"{self.force}/{self.length}",
+            "stiffness_B": f"{self.force}",
+            "stiffness_D": f"{self.force}·{self.length}",
+            "areal_mass": f"{self.force}·s²/{self.length}³",
+            "temperature": self.temperature.replace("delta_deg", "°"),
+        }.get(kind, kind)
+
+
+SYSTEMS = {
+    "N-mm": UnitSystem("N-mm", "newton", "millimeter", "delta_degC"),
+    "N-m": UnitSystem("N-m", "newton", "meter", "delta_degC"),
+    "lbf-in": UnitSystem("lbf-in", "force_pound", "inch", "delta_degF"),
+}
+
+
+@functools.lru_cache(maxsize=1)
+def registry():
+    """The pint unit registry (built once per process; pint is imported lazily)."""
+    import pint
+
+    return pint.UnitRegistry()
+
+
+def system(name: object, source: str) -> UnitSystem:
+    if name not in SYSTEMS:
+        raise DefinitionError(
+            f"units = {name!r} is not a known unit system; use one of {', '.join(SYSTEMS)}", source)
+    return SYSTEMS[name]  # type: ignore[index]
+
+
+def convert(value: object, kind: str, units: UnitSystem, where: str) -> float:
+    """Convert one definition entry to a float in ``units``.
+
+    Parameters
+    ----------
+    value : int, float or str
+        A number in the declared system, or a string with its own unit.
+    kind : str
+        Quantity kind (see :meth:`UnitSystem.unit_of`).
+    where : str
+        The entry, e.g. ``"materials.cf-ud.E1"``, named in error messages.
+    """
+    if isinstance(value, bool):
+        raise DefinitionError(f"{where} = {value!r}: expected a number or a quantity string such as '181 GPa'")
+    if isinstance(value, (int, float)):
+        out = float(value)
+    elif isinstance(value, str):
+        if len(value) > 100:
+            raise DefinitionError(f"{where}: the quantity string is too long (over 100 characters)")
+        out = _parse_quantity(value, kind, units, where)
+    else:
+        raise DefinitionError(
+            f"{where} = {value!r}: expected a number or a quantity string such as '181 GPa', "
+            f"got {type(value).__name__}")
+    if not math.isfinite(out):
+        raise DefinitionError(f"{where} = {value!r} is not finite; give a finite number")
+    return out
+
+
+_DELTA = (("°C", "delta_degC"), ("°F", "delta_degF"), ("degC", "delta_degC"), ("degF", "delta_degF"))
+
+
+def _parse_quantity(text: str, kind: str, units: UnitSystem, where: str) -> float:
+    import pint
+
+    ureg = registry()
+    target = units.unit_of(kind)
+    if kind in ("expansion", "temperature"):
+        # Temperatures in a definition are differences: '10 degC' means a rise of 10 K.
+        for absolute, delta in _DELTA:
+            if "delta_" + absolute not in text:
+                text = text.replace(absolute, delta)
+    try:
+        return float(ureg.Quantity(text).to(target).magnitude)
+    except pint.DimensionalityError:
+        raise DefinitionError(
+            f"{where} = {text!r} has the wrong dimension; expected a {kind.replace('_', ' ')} "
+            f"(for example in {ureg.Unit(target):~})") from None
+    except (pint.PintError, ValueError, TypeError, AttributeError, SyntaxError, KeyError):
+        raise DefinitionError(
+            f"{where} = {text!r} is not a quantity pint understands; write e.g. '181 GPa' or a plain number"
+        ) from None

@@ -1,0 +1,146 @@
+"""Recovery over cells × cases into an envelope, in blocks.
+
+The envelope keeps, for every cell and ply, the lowest margin of safety over
+cases, through-thickness points and criteria, with the strength ratio there and
+the governing case, point, criterion and mode. Margins rather than strength
+ratios govern, so that limit and ultimate cases (different factors of safety)
+compare correctly; with one factor of safety the two orderings agree.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Sequence
+
+import numpy as np
+
+from shells.criteria import CRITERIA, code
+from shells.recovery import SLOTS, recover_block, unused_slot
+from shells.recovery_tables import SectionTables
+
+
+@dataclass(frozen=True)
+class Envelope:
+    """Per cell and ply (NaN / −1 past a cell's ply count or where nothing was computed).
+
+    Attributes
+    ----------
+    margin, strength_ratio : float64 (ncell, maxply)
+    case : int32 (ncell, maxply)
+        Governing case index (into the run's case list).
+    point : int8
+        0 bottom, 1 middle, 2 top.
+    criterion : int8
+        Registry code (``shells.criteria.CRITERIA`` index).
+    mode : int8
+        Index into the criterion's modes.
+    """
+
+    margin: np.ndarray
+    strength_ratio: np.ndarray
+    case: np.ndarray
+    point: np.ndarray
+    criterion: np.ndarray
+    mode: np.ndarray
+
+    @classmethod
+    def empty(cls, n_cells: int, max_plies: int) -> "Envelope":
+        shape = (n_cells, max_plies)
+        return cls(np.full(shape, np.inf), np.full(shape, np.inf), np.full(shape, -1, np.int32),
+                   np.full(shape, -1, np.int8), np.full(shape, -1, np.int8), np.full(shape, -1, np.int8))
+
+    def rows(self, start: int, stop: int) -> "Envelope":
+        """A view of cells start … stop − 1 (updates write through)."""
+        return Envelope(*(getattr(self, f)[start:stop] for f in self.__dataclass_fields__))
+
+    def finish(self, nply_of_cell: np.ndarray, bad_cell: np.ndarray | None = None) -> "Envelope":
+        """Mark plies past each cell's count (and cells not computed) as NaN / −1."""
+        out = Envelope(*(getattr(self, f).copy() for f in self.__dataclass_fields__))
+        past = np.arange(out.margin.shape[1])[None, :] >= nply_of_cell[:, None]
+        if bad_cell is not None:
+            past |= bad_cell[:, None]
+        for name in ("margin", "strength_ratio"):
+            getattr(out, name)[past] = np.nan
+        for name in ("case", "point", "criterion", "mode"):
+            getattr(out, name)[past] = -1
+        return out
+
+
+def cell_summary(env: Envelope) -> dict[str, np.ndarray]:
+    """Per cell: minimum margin and its (1-based) critical ply, strength ratio, case, criterion, mode."""
+    ms = np.where(np.isnan(env.margin), np.inf, env.margin)
+    ply = np.argmin(ms, axis=1)
+    rows = np.arange(ms.shape[0])
+    valid = np.any(~np.isnan(env.margin), axis=1)
+    out = {
+        "min_margin": np.where(valid, env.margin[rows, ply], np.nan),
+        "critical_ply": np.where(valid, ply + 1, 0).astype(np.int32),
+    }
+    for name in ("strength_ratio", "case", "point", "criterion", "mode"):
+        arr = getattr(env, name)[rows, ply]
+        out[name] = np.where(valid, arr, np.nan if arr.dtype.kind == "f" else -1).astype(arr.dtype)
+    return out
+
+
+def _slots(criteria: Sequence[type]) -> list[tuple[tuple, np.ndarray, np.ndarray]]:
+    """Group criteria into kernel passes of SLOTS criteria each."""
+    passes = []
+    for start in range(0, len(criteria), SLOTS):
+        group = list(criteria[start:start + SLOTS])
+        fns = [c.ratio for c in group] + [unused_slot] * (SLOTS - len(group))
+        codes = np.array([code(c.name) for c in group] + [0] * (SLOTS - len(group)), dtype=np.int64)
+        masks = np.zeros((SLOTS, 3), dtype=np.bool_)
+        for s, c in enumerate(group):
+            masks[s, list(c.points)] = True
+        passes.append((tuple(fns), codes, masks))
+    return passes
+
+
+def recover_into(env: Envelope, criteria: Sequence[type], tables: SectionTables, cell_sec: np.ndarray,
+                 phi_deg: np.ndarray, R: np.ndarray, dT: np.ndarray, dM: np.ndarray, pres: np.ndarray,
+                 fos: np.ndarray, skip: np.ndarray | None = None, case0: int = 0,
+                 store: dict[str, np.ndarray] | None = None) -> None:
+    """Recover one block of cells × cases and merge it into ``env`` (rows of the same cells).
+
+    Parameters
+    ----------
+    env : Envelope
+        Envelope rows of the block's cells (``Envelope.rows``), updated in place.
+    criteria : sequence of criterion classes
+    tables : SectionTables
+    cell_sec : int (ncell,), phi_deg : float (ncell,)
+        Section id and material angle (degrees) of each cell.
+    R : float (ncase, ncell, 8)
+        Resultants in the element frame.
+    dT : float (ncase, ncell); dM, pres, fos : float (ncase,)
+        Temperature change, moisture change, pressure and factor of safety of each case.
+    skip : bool (ncase, ncell), optional
+        Cell-cases not to recover (non-finite input).
+    case0 : int
+        Index of the block's first case in the run.
+    store : dict, optional
+        Arrays ``stress``, ``strain`` (ncase, ncell, maxply, 3, 3) and ``shear`` (…, 2) to fill.
+    """
+    ncase, ncell = R.shape[:2]
+    f64 = lambda a: np.ascontiguousarray(a, dtype=np.float64)  # noqa: E731
+    R, dT = f64(R), f64(dT)
+    skip = np.zeros((ncase, ncell), np.bool_) if skip is None else np.ascontiguousarray(skip, dtype=np.bool_)
+    phi = np.radians(np.asarray(phi_deg, dtype=np.float64))
+    if store is None:
+        empty = np.zeros((0, 0, 0, 0, 0))
+        out = (False, empty, empty, empty)
+    else:
+        out = (True, store["stress"], store["strain"], store["shear"])
+    t = tables
+    for n, (fns, codes, masks) in enumerate(_slots(criteria)):
+        keep = out if n == 0 else (False,) + out[1:]
+        recover_block(*fns, codes, masks, R, dT, f64(dM), f64(pres), f64(fos), skip,
+                      np.ascontiguousarray(cell_sec, dtype=np.int64), np.cos(phi), np.sin(phi),
+                      t.compliance, t.fixed, t.first, t.nply, t.z, t.Q, t.cs, t.alpha, t.beta, t.F, t.params,
+                      t.knockdown, case0, env.margin, env.strength_ratio, env.case, env.point, env.criterion,
+                      env.mode, *keep)
+
+
+def criterion_names() -> tuple[str, ...]:
+    """Names of every registered criterion, in code order (stored beside integer codes)."""
+    return tuple(c.name for c in CRITERIA)

@@ -1,0 +1,187 @@
+"""The fused ply-recovery kernel (numba).
+
+For every cell (in parallel) and load case: rotate the resultants from the
+element frame into laminate axes, solve the section compliance for the
+mid-plane strains and curvatures (mechanical part, and the fixed part from the
+thermal and moisture resultants), and at the bottom, middle and top of every
+ply form the material-axis stresses (σ1, σ2, τ12) from classical lamination,
+(τ13, τ23) from the equilibrium distribution of Qx, Qy, and σ3 = −pressure;
+then evaluate up to four failure criteria and keep, per cell and ply, the
+lowest margin of safety with its strength ratio, case, point, criterion and
+mode. Stresses are never stored unless asked (``store``).
+
+Conventions: docs/conventions.md. Resultants order Nx, Ny, Nxy, Mx, My, Mxy,
+Qx, Qy in the element frame; the material angle φ rotates the element frame
+onto the laminate axes (counter-clockwise about the normal).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from numba import njit, prange
+
+#: Criteria evaluated per kernel pass; more are run in further passes that merge into the same envelope.
+SLOTS = 4
+
+
+@njit(cache=True)
+def unused_slot(sm, sf, p):
+    """A criterion slot left empty: never governs."""
+    return np.inf, -1
+
+
+@njit(cache=True)
+def _keep_lowest(fn, slot_code, sm, sf, p, scale, i, k, case, point,
+                 env_ms, env_sr, env_case, env_point, env_crit, env_mode):
+    sr, mode = fn(sm, sf, p)
+    ms = sr * scale - 1.0
+    if ms < env_ms[i, k]:
+        env_ms[i, k] = ms
+        env_sr[i, k] = sr
+        env_case[i, k] = case
+        env_point[i, k] = point
+        env_crit[i, k] = slot_code
+        env_mode[i, k] = mode
+
+
+@njit(cache=True, parallel=True)
+def recover_block(c0, c1, c2, c3, codes, masks,
+                  R, dT, dM, pres, fos, skip,
+                  cell_sec, cell_cos, cell_sin,
+                  comp, fixed, first, nply, z, Q, cs, alpha, beta, F, params, kd,
+                  case0,
+                  env_ms, env_sr, env_case, env_point, env_crit, env_mode,
+                  store, out_stress, out_strain, out_shear):
+    """Recover plies of a block of cells × cases and merge into the envelope (in place).
+
+    Parameters
+    ----------
+    c0, c1, c2, c3 : numba functions ``(sm, sf, p) -> (sr, mode)``
+        Criterion ``ratio`` functions (``unused_slot`` for empty slots).
+    codes : int64 (4,)
+        Registry code of each slot's criterion.
+    masks : bool (4, 3)
+        Whether each slot applies at the bottom, middle and top points.
+    R : float64 (ncase, ncell, 8)
+        Resultants, element frame.
+    dT : float64 (ncase, ncell)
+        Temperature change per case and cell.
+    dM, pres, fos : float64 (ncase,)
+        Moisture change, lateral pressure and factor of safety of each case.
+    skip : bool (ncase, ncell)
+        Cell-cases not to recover (non-finite input).
+    cell_sec : int64 (ncell,)
+        Section id of each cell (row of the section tables).
+    cell_cos, cell_sin : float64 (ncell,)
+        cos φ, sin φ of the material angle.
+    comp, fixed, first, nply, z, Q, cs, alpha, beta, F, params, kd
+        Section tables (see :class:`shells.recovery_tables.SectionTables`).
+    case0 : int
+        Global index of the block's first case (stored in ``env_case``).
+    env_ms, env_sr : float64 (ncell, maxply)
+        Envelope margin and strength ratio, updated where a lower margin is found.
+    env_case : int32, env_point, env_crit, env_mode : int8 (ncell, maxply)
+        Governing case, point, criterion code and mode.
+    store : bool
+        Write ``out_stress`` (σ1, σ2, τ12), ``out_strain`` (ε1, ε2, γ12) and
+        ``out_shear`` (τ13, τ23), each (ncase, ncell, maxply, 3, ·), material axes.
+    """
+    ncase = R.shape[0]
+    ncell = R.shape[1]
+    for i in prange(ncell):
+        sm = np.empty(6)
+        sf = np.empty(6)
+        gm = np.empty(6)
+        gf = np.empty(6)
+        em = np.empty(6)
+        ef = np.empty(6)
+        s = cell_sec[i]
+        c = cell_cos[i]
+        sn = cell_sin[i]
+        cc, ss, cx = c * c, sn * sn, c * sn
+        p0 = first[s]
+        n = nply[s]
+        for j in range(ncase):
+            if skip[j, i]:
+                continue
+            r = R[j, i]
+            # Element frame → laminate axes: v_lam = T(−φ) v_el for N and M; R(φ) for Q.
+            for o in (0, 3):
+                gm[o] = cc * r[o] + ss * r[o + 1] + 2.0 * cx * r[o + 2]
+                gm[o + 1] = ss * r[o] + cc * r[o + 1] - 2.0 * cx * r[o + 2]
+                gm[o + 2] = -cx * r[o] + cx * r[o + 1] + (cc - ss) * r[o + 2]
+            qx = c * r[6] + sn * r[7]
+            qy = -sn * r[6] + c * r[7]
+            t = dT[j, i]
+            h = dM[j]
+            for a in range(3):
+                gf[a] = fixed[s, 0, a] * t + fixed[s, 2, a] * h
+                gf[a + 3] = fixed[s, 1, a] * t + fixed[s, 3, a] * h
+            for a in range(6):
+                am = 0.0
+                af = 0.0
+                for b in range(6):
+                    am += comp[s, a, b] * gm[b]
+                    af += comp[s, a, b] * gf[b]
+                em[a] = am
+                ef[a] = af
+            scale_case = 1.0 / fos[j]
+            for k in range(n):
+                row = p0 + k
+                ct, st = cs[row, 0], cs[row, 1]
+                pc, ps, px = ct * ct, st * st, ct * st
+                q11, q12, q22, q66 = Q[row, 0], Q[row, 1], Q[row, 2], Q[row, 3]
+                fx = alpha[row, 0] * t + beta[row, 0] * h
+                fy = alpha[row, 1] * t + beta[row, 1] * h
+                pr = params[row]
+                scale = kd[row] * scale_case
+                for q in range(3):
+                    zz = z[row, q]
+                    exm = em[0] + zz * em[3]
+                    eym = em[1] + zz * em[4]
+                    gxm = em[2] + zz * em[5]
+                    exf = ef[0] + zz * ef[3]
+                    eyf = ef[1] + zz * ef[4]
+                    gxf = ef[2] + zz * ef[5]
+                    # Laminate → material axes: ε_12 = T(θ)ᵀ ε_xy.
+                    e1m = pc * exm + ps * eym + px * gxm
+                    e2m = ps * exm + pc * eym - px * gxm
+                    g12m = -2.0 * px * exm + 2.0 * px * eym + (pc - ps) * gxm
+                    e1f = pc * exf + ps * eyf + px * gxf
+                    e2f = ps * exf + pc * eyf - px * gxf
+                    g12f = -2.0 * px * exf + 2.0 * px * eyf + (pc - ps) * gxf
+                    sm[0] = q11 * e1m + q12 * e2m
+                    sm[1] = q12 * e1m + q22 * e2m
+                    sm[2] = q66 * g12m
+                    txz = F[row, q, 0, 0] * qx + F[row, q, 0, 1] * qy
+                    tyz = F[row, q, 1, 0] * qx + F[row, q, 1, 1] * qy
+                    sm[3] = ct * txz + st * tyz
+                    sm[4] = -st * txz + ct * tyz
+                    sm[5] = -pres[j]
+                    sf[0] = q11 * (e1f - fx) + q12 * (e2f - fy)
+                    sf[1] = q12 * (e1f - fx) + q22 * (e2f - fy)
+                    sf[2] = q66 * g12f
+                    sf[3] = 0.0
+                    sf[4] = 0.0
+                    sf[5] = 0.0
+                    if store:
+                        for a in range(3):
+                            out_stress[j, i, k, q, a] = sm[a] + sf[a]
+                        out_strain[j, i, k, q, 0] = e1m + e1f
+                        out_strain[j, i, k, q, 1] = e2m + e2f
+                        out_strain[j, i, k, q, 2] = g12m + g12f
+                        out_shear[j, i, k, q, 0] = sm[3]
+                        out_shear[j, i, k, q, 1] = sm[4]
+                    cj = case0 + j
+                    if masks[0, q]:
+                        _keep_lowest(c0, codes[0], sm, sf, pr, scale, i, k, cj, q,
+                                     env_ms, env_sr, env_case, env_point, env_crit, env_mode)
+                    if masks[1, q]:
+                        _keep_lowest(c1, codes[1], sm, sf, pr, scale, i, k, cj, q,
+                                     env_ms, env_sr, env_case, env_point, env_crit, env_mode)
+                    if masks[2, q]:
+                        _keep_lowest(c2, codes[2], sm, sf, pr, scale, i, k, cj, q,
+                                     env_ms, env_sr, env_case, env_point, env_crit, env_mode)
+                    if masks[3, q]:
+                        _keep_lowest(c3, codes[3], sm, sf, pr, scale, i, k, cj, q,
+                                     env_ms, env_sr, env_case, env_point, env_crit, env_mode)

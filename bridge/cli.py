@@ -55,3 +55,7 @@ def _register() -> None:
 
 
 _register()
+
+
+if __name__ == "__main__":
+    main()

@@ -29,7 +29,7 @@ from .zones import Zone, parse_zones
 #: Largest definition file read (bytes): a bound on everything parsed.
 MAX_BYTES = 4 * 1024 * 1024
 
-TOP_LEVEL = ("units", "title", "description", "materials", "laminates", "analysis", "zones", "cases",
+TOP_LEVEL = ("units", "title", "description", "materials", "laminates", "analysis", "zones", "frames", "cases",
              "combinations", "fields", "resultants", "solver_plies")
 
 

@@ -13,7 +13,7 @@ def _matrix(name: str, rows: list[list[float]], unit: str) -> list[str]:
 
 def format_sections(summaries: dict[str, dict], units: UnitSystem) -> str:
     lines = [f"units: {units.name}"]
-    L, F = units.label("length"), units.force
+    L, F = units.label("length"), units.force_symbol
     for name, s in summaries.items():
         flags = ", ".join(k for k, v in s["flags"].items() if v) or "none"
         lines += ["", f"laminate {name}: {len(s['plies'])} plies, thickness {s['thickness']:.6g} {L}, "

@@ -24,6 +24,9 @@ class UnitSystem:
     force: str
     length: str
     temperature: str  # a temperature *difference* unit
+    force_symbol: str = "N"
+    length_symbol: str = "mm"
+    temperature_symbol: str = "°C"
 
     @property
     def stress(self) -> str:
@@ -47,23 +50,24 @@ class UnitSystem:
 
     def label(self, kind: str) -> str:
         """Short human label of a unit, for tables and colour-bar titles."""
+        f, l = self.force_symbol, self.length_symbol
         return {
-            "stress": f"{self.force}/{self.length}²",
-            "length": self.length,
-            "force_per_length": f"{self.force}/{self.length}",
-            "moment_per_length": f"{self.force}·{self.length}/{self.length}",
-            "stiffness_A": f"{self.force}/{self.length}",
-            "stiffness_B": f"{self.force}",
-            "stiffness_D": f"{self.force}·{self.length}",
-            "areal_mass": f"{self.force}·s²/{self.length}³",
-            "temperature": self.temperature.replace("delta_deg", "°"),
+            "stress": "MPa" if self.name == "N-mm" else ("psi" if self.name == "lbf-in" else f"{f}/{l}²"),
+            "length": l,
+            "force_per_length": f"{f}/{l}",
+            "moment_per_length": f"{f}·{l}/{l}",
+            "stiffness_A": f"{f}/{l}",
+            "stiffness_B": f,
+            "stiffness_D": f"{f}·{l}",
+            "areal_mass": {"N-mm": "t/mm²", "N-m": "kg/m²"}.get(self.name, f"{f}·s²/{l}³"),
+            "temperature": self.temperature_symbol,
         }.get(kind, kind)
 
 
 SYSTEMS = {
-    "N-mm": UnitSystem("N-mm", "newton", "millimeter", "delta_degC"),
-    "N-m": UnitSystem("N-m", "newton", "meter", "delta_degC"),
-    "lbf-in": UnitSystem("lbf-in", "force_pound", "inch", "delta_degF"),
+    "N-mm": UnitSystem("N-mm", "newton", "millimeter", "delta_degC", "N", "mm", "°C"),
+    "N-m": UnitSystem("N-m", "newton", "meter", "delta_degC", "N", "m", "°C"),
+    "lbf-in": UnitSystem("lbf-in", "force_pound", "inch", "delta_degF", "lbf", "in", "°F"),
 }
 
 

@@ -49,7 +49,7 @@ class Zone:
     offset: float = 0.0
 
 
-def _vector(value: Any, where: str) -> tuple[float, float, float]:
+def vector3(value: Any, where: str) -> tuple[float, float, float]:
     if (not isinstance(value, list) or len(value) != 3
             or not all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in value)):
         raise DefinitionError(f"{where} must be a list of three numbers, e.g. [1, 0, 0]")
@@ -72,7 +72,7 @@ def parse_orientation(spec: Any, where: str):
     if "vector" in spec:
         if len(spec) > 1:
             raise DefinitionError(f"{where}: vector takes no other keys")
-        direction = _vector(spec["vector"], f"{where}.vector")
+        direction = vector3(spec["vector"], f"{where}.vector")
         if np.linalg.norm(direction) == 0:
             raise DefinitionError(f"{where}.vector is zero; give a direction")
         return Vector(direction)
@@ -83,10 +83,10 @@ def parse_orientation(spec: Any, where: str):
     mode = spec.get("mode", "axial")
     if mode not in ("axial", "hoop"):
         raise DefinitionError(f"{where}.mode = {mode!r}; use axial or hoop")
-    direction = _vector(spec["axis"], f"{where}.axis")
+    direction = vector3(spec["axis"], f"{where}.axis")
     if np.linalg.norm(direction) == 0:
         raise DefinitionError(f"{where}.axis is zero; give a direction")
-    origin = _vector(spec.get("origin", [0, 0, 0]), f"{where}.origin")
+    origin = vector3(spec.get("origin", [0, 0, 0]), f"{where}.origin")
     return Axis(direction, origin, mode)
 
 

@@ -99,7 +99,8 @@ def _slots(criteria: Sequence[type]) -> list[tuple[tuple, np.ndarray, np.ndarray
 def recover_into(env: Envelope, criteria: Sequence[type], tables: SectionTables, cell_sec: np.ndarray,
                  phi_deg: np.ndarray, R: np.ndarray, dT: np.ndarray, dM: np.ndarray, pres: np.ndarray,
                  fos: np.ndarray, skip: np.ndarray | None = None, case0: int = 0,
-                 store: dict[str, np.ndarray] | None = None) -> None:
+                 store: dict[str, np.ndarray] | None = None, case_ms: np.ndarray | None = None,
+                 crit_ms: np.ndarray | None = None) -> None:
     """Recover one block of cells × cases and merge it into ``env`` (rows of the same cells).
 
     Parameters
@@ -120,6 +121,8 @@ def recover_into(env: Envelope, criteria: Sequence[type], tables: SectionTables,
         Index of the block's first case in the run.
     store : dict, optional
         Arrays ``stress``, ``strain`` (ncase, ncell, maxply, 3, 3) and ``shear`` (…, 2) to fill.
+    case_ms, crit_ms : float64 (ncell, case0 + ncase), (ncell, len(CRITERIA)), optional
+        Lowest margin per cell and case / per cell and criterion, updated in place.
     """
     ncase, ncell = R.shape[:2]
     f64 = lambda a: np.ascontiguousarray(a, dtype=np.float64)  # noqa: E731
@@ -131,6 +134,10 @@ def recover_into(env: Envelope, criteria: Sequence[type], tables: SectionTables,
         out = (False, empty, empty, empty)
     else:
         out = (True, store["stress"], store["strain"], store["shear"])
+    if case_ms is None:
+        case_ms = np.full((ncell, case0 + ncase), np.inf)
+    if crit_ms is None:
+        crit_ms = np.full((ncell, len(CRITERIA)), np.inf)
     t = tables
     for n, (fns, codes, masks) in enumerate(_slots(criteria)):
         keep = out if n == 0 else (False,) + out[1:]
@@ -138,9 +145,51 @@ def recover_into(env: Envelope, criteria: Sequence[type], tables: SectionTables,
                       np.ascontiguousarray(cell_sec, dtype=np.int64), np.cos(phi), np.sin(phi),
                       t.compliance, t.fixed, t.first, t.nply, t.z, t.Q, t.cs, t.alpha, t.beta, t.F, t.params,
                       t.knockdown, case0, env.margin, env.strength_ratio, env.case, env.point, env.criterion,
-                      env.mode, *keep)
+                      env.mode, case_ms, crit_ms, *keep)
 
 
 def criterion_names() -> tuple[str, ...]:
     """Names of every registered criterion, in code order (stored beside integer codes)."""
     return tuple(c.name for c in CRITERIA)
+
+
+def recover_cells(criteria: Sequence[type], tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray,
+                  R: np.ndarray, dT: np.ndarray, dM: np.ndarray, pres: np.ndarray, fos: np.ndarray,
+                  store_plies: bool = False) -> tuple[dict, dict, dict | None]:
+    """Envelope, cell summary and (optionally) ply states of one block of cells over all cases.
+
+    Cell-cases with non-finite resultants are skipped: the cell is ``flagged``
+    and its envelope covers the remaining cases (NaN when none remain).
+
+    Returns
+    -------
+    envelope : dict of (ncell, maxply) arrays (see :class:`Envelope`)
+    cells : dict of (ncell,) arrays (see :func:`cell_summary`, plus ``flagged``), and
+        ``case_margin`` (ncell, ncase), ``criterion_margin`` (ncell, len(CRITERIA)): lowest margin per
+        case and per criterion (inf where nothing applies, NaN for skipped cell-cases)
+    plies : dict or None
+        ``stress``, ``strain`` (ncase, ncell, maxply, 3, 3) and ``transverse_shear`` (…, 2).
+    """
+    R = np.asarray(R, dtype=np.float64)
+    ncase, ncell = R.shape[:2]
+    skip = ~np.isfinite(R).all(axis=-1)
+    R = np.where(skip[..., None], 0.0, R)
+    env = Envelope.empty(ncell, tables.max_plies)
+    plies = None
+    if store_plies:
+        shape = (ncase, ncell, tables.max_plies, 3)
+        plies = {"stress": np.full(shape + (3,), np.nan), "strain": np.full(shape + (3,), np.nan),
+                 "shear": np.full(shape + (2,), np.nan)}
+    case_ms = np.full((ncell, ncase), np.inf)
+    crit_ms = np.full((ncell, len(CRITERIA)), np.inf)
+    recover_into(env, criteria, tables, cell_sec, phi_deg, R, dT, dM, pres, fos, skip, 0, plies, case_ms, crit_ms)
+    if plies is not None:
+        for name in ("stress", "strain", "shear"):
+            plies[name][skip] = np.nan
+        plies["transverse_shear"] = plies.pop("shear")
+    done = env.finish(tables.nply[cell_sec], skip.all(axis=0))
+    cells = cell_summary(done)
+    cells["flagged"] = skip.any(axis=0)
+    cells["case_margin"] = np.where(skip.T, np.nan, case_ms)
+    cells["criterion_margin"] = crit_ms
+    return {f: getattr(done, f) for f in done.__dataclass_fields__}, cells, plies

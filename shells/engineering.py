@@ -66,7 +66,7 @@ def flags(lam: Laminate, sp: SectionProperties) -> dict[str, bool]:
     d_scale = float(np.abs(D).max())
     b_scale = float(np.sqrt(a_scale * d_scale))
     balanced = _small(A[0, 2], a_scale) and _small(A[1, 2], a_scale)
-    return {
+    out = {
         "symmetric": is_symmetric_stack(lam),
         "balanced": balanced,
         "coupled": not bool(np.all(np.abs(B) <= FLAG_TOLERANCE * b_scale)),
@@ -74,6 +74,7 @@ def flags(lam: Laminate, sp: SectionProperties) -> dict[str, bool]:
         "quasi_isotropic": balanced and _small(A[0, 0] - A[1, 1], a_scale)
         and _small(A[2, 2] - (A[0, 0] - A[0, 1]) / 2.0, a_scale),
     }
+    return {k: bool(v) for k, v in out.items()}
 
 
 def polar_moduli(sp: SectionProperties, angles_deg: np.ndarray) -> dict[str, np.ndarray]:

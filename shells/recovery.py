@@ -32,9 +32,13 @@ def unused_slot(sm, sf, p):
 
 @njit(cache=True)
 def _keep_lowest(fn, slot_code, sm, sf, p, scale, i, k, case, point,
-                 env_ms, env_sr, env_case, env_point, env_crit, env_mode):
+                 env_ms, env_sr, env_case, env_point, env_crit, env_mode, case_ms, crit_ms):
     sr, mode = fn(sm, sf, p)
     ms = sr * scale - 1.0
+    if ms < case_ms[i, case]:
+        case_ms[i, case] = ms
+    if ms < crit_ms[i, slot_code]:
+        crit_ms[i, slot_code] = ms
     if ms < env_ms[i, k]:
         env_ms[i, k] = ms
         env_sr[i, k] = sr
@@ -50,7 +54,7 @@ def recover_block(c0, c1, c2, c3, codes, masks,
                   cell_sec, cell_cos, cell_sin,
                   comp, fixed, first, nply, z, Q, cs, alpha, beta, F, params, kd,
                   case0,
-                  env_ms, env_sr, env_case, env_point, env_crit, env_mode,
+                  env_ms, env_sr, env_case, env_point, env_crit, env_mode, case_ms, crit_ms,
                   store, out_stress, out_strain, out_shear):
     """Recover plies of a block of cells × cases and merge into the envelope (in place).
 
@@ -82,6 +86,8 @@ def recover_block(c0, c1, c2, c3, codes, masks,
         Envelope margin and strength ratio, updated where a lower margin is found.
     env_case : int32, env_point, env_crit, env_mode : int8 (ncell, maxply)
         Governing case, point, criterion code and mode.
+    case_ms, crit_ms : float64 (ncell, ncase_total), (ncell, ncriteria_registered)
+        Lowest margin of each cell per case (global case index) and per criterion code.
     store : bool
         Write ``out_stress`` (σ1, σ2, τ12), ``out_strain`` (ε1, ε2, γ12) and
         ``out_shear`` (τ13, τ23), each (ncase, ncell, maxply, 3, ·), material axes.
@@ -175,13 +181,13 @@ def recover_block(c0, c1, c2, c3, codes, masks,
                     cj = case0 + j
                     if masks[0, q]:
                         _keep_lowest(c0, codes[0], sm, sf, pr, scale, i, k, cj, q,
-                                     env_ms, env_sr, env_case, env_point, env_crit, env_mode)
+                                     env_ms, env_sr, env_case, env_point, env_crit, env_mode, case_ms, crit_ms)
                     if masks[1, q]:
                         _keep_lowest(c1, codes[1], sm, sf, pr, scale, i, k, cj, q,
-                                     env_ms, env_sr, env_case, env_point, env_crit, env_mode)
+                                     env_ms, env_sr, env_case, env_point, env_crit, env_mode, case_ms, crit_ms)
                     if masks[2, q]:
                         _keep_lowest(c2, codes[2], sm, sf, pr, scale, i, k, cj, q,
-                                     env_ms, env_sr, env_case, env_point, env_crit, env_mode)
+                                     env_ms, env_sr, env_case, env_point, env_crit, env_mode, case_ms, crit_ms)
                     if masks[3, q]:
                         _keep_lowest(c3, codes[3], sm, sf, pr, scale, i, k, cj, q,
-                                     env_ms, env_sr, env_case, env_point, env_crit, env_mode)
+                                     env_ms, env_sr, env_case, env_point, env_crit, env_mode, case_ms, crit_ms)

@@ -12,7 +12,7 @@ from . import params as P
 from .errors import LayupError
 from .engineering import flags, flexural_constants, membrane_constants
 from .laminate import Laminate, Ply, SectionProperties, section_properties
-from .sandwich import dimpling_allowable, wrinkling_allowable
+from .sandwich import dimpling_stress, wrinkling_stress
 from .shear import PLY_POINTS, equilibrium_shear_stiffness, factor_shear_stiffness, shear_distribution
 
 
@@ -96,9 +96,9 @@ def _face_allowables(lam: Laminate, params: np.ndarray, k_wrinkle: float) -> Non
         mc = membrane_constants(section_properties(face))
         ef = min(mc["Ex"], mc["Ey"])
         if getattr(core, "Ez", None):
-            params[run, P.WRINKLING] = wrinkling_allowable(ef, core.Ez, min(core.G13, core.G23), k_wrinkle)
+            params[run, P.WRINKLING] = wrinkling_stress(ef, core.Ez, min(core.G13, core.G23), k_wrinkle)
         if getattr(core, "cell_size", None):
-            params[run, P.DIMPLING] = dimpling_allowable(ef, mc["nuxy"], face.thickness, core.cell_size)
+            params[run, P.DIMPLING] = dimpling_stress(ef, mc["nuxy"], face.thickness, core.cell_size)
 
 
 def build_section(lam: Laminate, shear_method: str = "equilibrium", shear_factor: float = 5.0 / 6.0,

@@ -14,8 +14,6 @@ ROOT = Path(__file__).resolve().parent.parent
 if str(ROOT) not in sys.path:
     sys.path.insert(0, str(ROOT))
 
-EXAMPLE = ROOT / "examples" / "definition.toml"
-
 
 @pytest.fixture
 def write_definition(tmp_path):

@@ -1,5 +1,7 @@
 """The CLI commands, one module each, registered in one explicit list."""
 
+from .assign import assign
+from .recover import recover
 from .section import section
 
-COMMANDS = (section,)
+COMMANDS = (section, assign, recover)

@@ -1,0 +1,81 @@
+"""``plybridge recover``: ply strains, stresses, strength ratios and margins over every cell and case."""
+
+from __future__ import annotations
+
+import json
+import sys
+from pathlib import Path
+
+import click
+
+from shells.errors import InputError
+
+
+def sidecar(output: str | Path, suffix: str) -> Path:
+    out = Path(output)
+    return out.with_name(out.stem + suffix)
+
+
+def _progress():
+    state = {"last": -1}
+
+    def report(done: int, total: int) -> None:
+        pct = int(100 * done / max(total, 1))
+        if pct // 5 != state["last"] // 5 or done == total:
+            state["last"] = pct
+            click.echo(f"\rrecover: {done}/{total} cells ({pct}%)", err=True, nl=done == total)
+
+    return report
+
+
+def summary_lines(summary: dict, units: str) -> str:
+    """The short key<TAB>value summary printed on stdout."""
+    w = summary["worst"] or {}
+    rows = [("min_margin", f"{w['min_margin']:.6g}" if w else "none"), ("cell", w.get("cell", "")),
+            ("ply", w.get("ply", "")), ("case", w.get("case", "")), ("criterion", w.get("criterion", "")),
+            ("mode", w.get("mode", "")), ("point", w.get("point", "")),
+            ("strength_ratio", f"{w['strength_ratio']:.6g}" if w else ""),
+            ("flagged_cells", summary["flagged_cells"]), ("units", units)]
+    zone = next((z for z, v in summary["zones"].items() if w and v["cell"] == w.get("cell")), "")
+    rows.insert(2, ("zone", zone))
+    return "".join(f"{k}\t{v}\n" for k, v in rows)
+
+
+@click.command(help="Recover every ply of every cell and case of MESH from RESULTANTS (HDF5 /resultants, "
+                    "an XDMF series, or VTU files) and write the results store OUTPUT (docs/results.md). "
+                    "Prints a short summary on stdout; progress on stderr.")
+@click.argument("definition", type=click.Path(dir_okay=False))
+@click.argument("mesh", type=click.Path(dir_okay=False))
+@click.argument("resultants", nargs=-1, required=True, type=click.Path(dir_okay=False))
+@click.option("-o", "--output", required=True, type=click.Path(dir_okay=False), help="Results store (.h5).")
+@click.option("--store", "store_kind", type=click.Choice(["envelope", "plies"]), default="envelope",
+              show_default=True, help="'plies' also stores every ply stress and strain of every case.")
+@click.option("--view", type=click.Path(dir_okay=False), help="Also write the envelope as cell data (.vtu/.xdmf).")
+@click.option("--hot-spots", "hot_path", type=click.Path(dir_okay=False),
+              help="Hot-spot CSV (default: OUTPUT-stem.hotspots.csv).")
+@click.option("--json", "as_json", is_flag=True, help="Print the full summary as JSON instead.")
+@click.option("--quiet", is_flag=True, help="No progress on stderr.")
+def recover(definition, mesh, resultants, output, store_kind, view, hot_path, as_json, quiet) -> None:
+    from bridge.atomic import write_text
+    from bridge.recover_run import run_recover
+    from bridge.view import write_view
+    from postproc.summary import hot_spots_csv
+
+    if view and not view.lower().endswith((".vtu", ".xdmf")):
+        raise InputError(f"--view {view}: write a .vtu or .xdmf file")
+    summary = run_recover(definition, mesh, list(resultants), output, store_kind == "plies",
+                          None if quiet else _progress())
+    write_text(hot_path or sidecar(output, ".hotspots.csv"), hot_spots_csv(summary))
+    if view:
+        write_view(output, view)
+    from bridge.store import StoreReader
+
+    with StoreReader(output) as st:
+        units = st.meta("units")
+    if as_json:
+        click.echo(json.dumps(summary, indent=1))
+    else:
+        click.echo(summary_lines(summary, units), nl=False)
+    if summary["flagged_cells"]:
+        click.echo(f"warning: {summary['flagged_cells']} cells had NaN or infinite resultants in some case; "
+                   f"they are flagged in /cells/flagged (e.g. {summary['flagged_examples'][:5]})", err=True)

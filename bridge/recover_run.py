@@ -1,0 +1,239 @@
+"""Orchestration of ``plybridge recover``: inputs → blocks of cells → the results store.
+
+Cells are processed in blocks (memory flat in model size): for each block the
+resultants of every input step are read (streamed from HDF5, sliced from memory
+for the other formats), combined into the run's cases, recovered, and the
+envelope rows written to the store before the next block is read.
+"""
+
+from __future__ import annotations
+
+import datetime
+import hashlib
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Callable, Sequence
+
+import numpy as np
+
+from shells.criteria import CRITERIA, by_name, check_requirements
+from shells.errors import InputError, ResultantsError
+
+from .cases import Case
+from .definition import Definition, load_definition
+from .formats import read_mesh
+from .model import Model, build_model
+from .resultant_settings import resultant_options
+from .resultants import _HDF5_SIGNATURE, H5_DATASET, apply_settings, read_resultants, to_element_frame
+
+#: Target size of the resultants of one block (bytes): bounds the memory of a run.
+BLOCK_BYTES = 32 * 2 ** 20
+
+
+def sha256_of(path: str | Path) -> str:
+    h = hashlib.sha256()
+    with open(path, "rb") as fh:
+        for chunk in iter(lambda: fh.read(2 ** 20), b""):
+            h.update(chunk)
+    return h.hexdigest()
+
+
+class ResultantSource:
+    """Input steps of the resultants, read by cell ranges, in the element frame and definition units."""
+
+    def __init__(self, paths: Sequence[str], model: Model):
+        self.paths = [str(p) for p in paths]
+        fields, self.settings = resultant_options(model.defn)
+        self.model = model
+        self._h5 = None
+        first = self.paths[0]
+        head = Path(first).read_bytes()[:8] if Path(first).is_file() else b""
+        if len(self.paths) == 1 and head.startswith(_HDF5_SIGNATURE) and self._is_plain_h5(first):
+            # Validates shape, cell count and case names.
+            from .resultants import _h5_source
+
+            names, _, _ = _h5_source(first, model.n_cells)
+            self.names = tuple(names)
+            self._h5 = first
+            self._data = None
+        else:
+            src = self.paths[0] if len(self.paths) == 1 else self.paths
+            self.names, self._data = read_resultants(
+                src, model.n_cells, fields, self.settings, material_angle_deg=model.phi,
+                frames=(model.frame_x, model.frame_y, model.normal), allow_nonfinite=True)
+
+    @staticmethod
+    def _is_plain_h5(path: str) -> bool:
+        import h5py
+
+        with h5py.File(path, "r", locking=False) as h5:
+            return H5_DATASET in h5
+
+    def read(self, start: int, stop: int) -> np.ndarray:
+        """(n_steps, stop − start, 8) resultants of cells start … stop − 1."""
+        if self._data is not None:
+            return self._data[:, start:stop]
+        import h5py
+
+        with h5py.File(self._h5, "r", locking=False) as h5:
+            raw = h5[H5_DATASET][:, start:stop, :]
+        m = self.model
+        vectors = None
+        if self.settings.frame == "vectors":
+            raise ResultantsError("frame = 'vectors' is not available for HDF5 resultants; give the "
+                                  "resultants in the element frame or laminate axes", self._h5)
+        sl = slice(start, stop)
+        return to_element_frame(apply_settings(raw, self.settings), self.settings.frame, m.phi[sl],
+                                (m.frame_x[sl], m.frame_y[sl], m.normal[sl]), vectors)
+
+
+@dataclass(frozen=True)
+class CasePlan:
+    """How the run's cases are built from the input steps."""
+
+    cases: tuple[Case, ...]
+    weights: np.ndarray    # (ncase, nstep)
+    dM: np.ndarray
+    pres: np.ndarray
+    fos: np.ndarray
+
+    @property
+    def names(self) -> tuple[str, ...]:
+        return tuple(c.name for c in self.cases)
+
+    def delta_T(self, model: Model, start: int, stop: int) -> np.ndarray:
+        out = np.empty((len(self.cases), stop - start))
+        for j, c in enumerate(self.cases):
+            if c.temperature_field is None:
+                out[j] = c.delta_T
+            else:
+                out[j] = np.asarray(model.mesh.cell_data[c.temperature_field], dtype=float).reshape(
+                    model.n_cells, -1)[start:stop, 0]
+        return out
+
+
+def plan_cases(defn: Definition, model: Model, step_names: tuple[str, ...]) -> CasePlan:
+    cases = defn.cases.resolve(step_names)
+    W = np.zeros((len(cases), len(step_names)))
+    for j, c in enumerate(cases):
+        for idx, f in c.factors:
+            W[j, idx] += f
+        if c.temperature_field is not None and c.temperature_field not in model.mesh.cell_data:
+            raise ResultantsError(f"cases.{c.name}.temperature_field: the mesh has no cell array "
+                                  f"'{c.temperature_field}'", defn.source)
+    return CasePlan(cases, W, np.array([c.delta_M for c in cases]), np.array([c.pressure for c in cases]),
+                    np.array([defn.analysis.fos(c.kind) for c in cases]))
+
+
+def criteria_of(defn: Definition, model: Model) -> tuple[type, ...]:
+    crit = tuple(by_name(n) for n in defn.analysis.criteria)
+    materials = {p.material.name: p.material.params() for s in model.sections for p in s.laminate.plies}
+    try:
+        check_requirements(crit, materials)
+    except InputError as err:
+        raise err.within(defn.source) from None
+    return crit
+
+
+def block_size(n_steps: int, n_cases: int, max_plies: int, store_plies: bool) -> int:
+    per_cell = 8 * 8 * (n_steps + n_cases) + (max_plies * 3 * 8 * 8 * n_cases if store_plies else 0)
+    return int(max(256, min(65536, BLOCK_BYTES // max(per_cell, 1))))
+
+
+def provenance(defn: Definition, paths: dict[str, str]) -> dict:
+    from shells import __version__
+
+    return {
+        "tool": "plybridge", "tool_version": __version__,
+        "created": datetime.datetime.now(datetime.timezone.utc).isoformat(timespec="seconds"),
+        "inputs": {role: {"path": p, "sha256": sha256_of(p)} for role, p in paths.items()},
+    }
+
+
+Progress = Callable[[int, int], None]
+
+
+def prepare(definition: str, mesh_path: str, resultants: Sequence[str]):
+    """Load every input of a run: (definition, model, source, case plan, criteria)."""
+    defn = load_definition(definition)
+    mesh = read_mesh(mesh_path)
+    model = build_model(defn, mesh)
+    source = ResultantSource(resultants, model)
+    plan = plan_cases(defn, model, source.names)
+    return defn, model, source, plan, criteria_of(defn, model)
+
+
+def criterion_table() -> dict[str, list[str]]:
+    return {c.name: list(c.modes) for c in CRITERIA}
+
+
+def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], output: str,
+                store_plies: bool = False, progress: Progress | None = None) -> dict:
+    """Recover every cell and case and write the results store at ``output``.
+
+    Returns
+    -------
+    dict
+        The run summary (see :func:`postproc.summary.run_summary`).
+    """
+    from postproc.recover import recover_cells
+    from postproc.summary import SummaryAccumulator
+
+    from .store import StoreLayout, create_store, mesh_group
+    from .section_fields import section_table
+
+    defn, model, source, plan, crit = prepare(definition, mesh_path, resultants)
+    tables = model.tables()
+    n = model.n_cells
+    layout = StoreLayout(n, tables.max_plies, plan.names, store_plies, len(CRITERIA))
+    step = block_size(len(source.names), len(plan.cases), tables.max_plies, store_plies)
+    acc = SummaryAccumulator(model.zone, len(defn.zones), len(plan.cases), defn.analysis.hot_spots)
+    with create_store(output, layout) as store:
+        for start in range(0, n, step):
+            stop = min(n, start + step)
+            R = np.einsum("js,sck->jck", plan.weights, source.read(start, stop))
+            env, cells, plies = recover_cells(
+                crit, tables, model.section[start:stop], model.phi[start:stop], R,
+                plan.delta_T(model, start, stop), plan.dM, plan.pres, plan.fos, store_plies)
+            store.write_block(start, stop, env, cells, plies)
+            acc.add(start, stop, env, cells)
+            if progress:
+                progress(stop, n)
+        summary = acc.result(plan.names, zone_names=[z.name for z in defn.zones],
+                             laminate_of_zone=[z.laminate for z in defn.zones])
+        store.write_static("mesh", mesh_group(model.mesh.points, model.mesh.blocks))
+        store.write_static("model", {"zone": model.zone.astype(np.int32), "section": model.section.astype(np.int32),
+                                     "material_angle": model.phi, "normal": model.normal,
+                                     "frame_x": model.frame_x})
+        store.write_meta({
+            **provenance(defn, {"definition": definition, "mesh": mesh_path,
+                                **{f"resultants{k}": p for k, p in enumerate(resultants)}}),
+            "title": defn.title, "units": defn.units.name, "conventions": "docs/conventions.md",
+            "criteria": criterion_table(), "criteria_used": list(defn.analysis.criteria),
+            "zones": [z.name for z in defn.zones], "zone_laminates": [z.laminate for z in defn.zones],
+            "sections": section_table(model)["sections"],
+            "cases_detail": [{"name": c.name, "kind": c.kind, "delta_T": c.delta_T, "pressure": c.pressure,
+                              "factor_of_safety": float(f)} for c, f in zip(plan.cases, plan.fos)],
+            "materials": _materials_meta(defn), "analysis": _analysis_meta(defn),
+            "store": "plies" if store_plies else "envelope", "summary": summary,
+            "caution": CAUTION,
+        })
+    return summary
+
+
+CAUTION = ("Results support, and never replace, review by a qualified engineer under the applicable "
+           "regulations and local codes.")
+
+
+def _materials_meta(defn: Definition) -> dict:
+    from dataclasses import asdict
+
+    return {name: {"kind": m.kind, **{k: v for k, v in asdict(m).items() if v is not None and k != "name"}}
+            for name, m in defn.materials.items()}
+
+
+def _analysis_meta(defn: Definition) -> dict:
+    a = defn.analysis
+    return {"criteria": list(a.criteria), "factor_of_safety": dict(a.factor_of_safety),
+            "transverse_shear": a.transverse_shear, "shear_factor": a.shear_factor,
+            "wrinkling_coefficient": a.wrinkling_coefficient, "hot_spots": a.hot_spots}

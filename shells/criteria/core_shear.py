@@ -1,0 +1,32 @@
+"""Sandwich core shear: ribbon (13) and transverse (23) shear against the core strengths.
+
+Statement (common practice for honeycomb and foam cores; e.g. Zenkert,
+*An Introduction to Sandwich Construction*, 1995, ch. 9):
+``(τ13/S13)² + (τ23/S23)² = 1`` with S13 = p[CORE_S13] (ribbon, L) and
+S23 = p[CORE_S23] (transverse, W). The core shear stress itself is about Q/d
+(:func:`shells.sandwich.core_shear_stress`). Quadratic in the load factor:
+solved exactly. Mode: the larger term at failure.
+"""
+
+from __future__ import annotations
+
+from numba import njit
+
+from .. import params as P
+from .base import INF, Criterion, shear_pair_ratio
+
+
+class CoreShear(Criterion):
+    name = "core-shear"
+    title = "Core shear"
+    modes = ("ribbon shear (13)", "transverse shear (23)")
+    requires = {P.KIND_CORE: ("core_S13", "core_S23")}
+    points = (0, 1, 2)
+
+    @staticmethod
+    @njit(cache=True)
+    def ratio(sm, sf, p):
+        """Strength ratio and mode (index in ``modes``) of ``sf + R·sm``; see the module docstring."""
+        if p[P.KIND] != P.KIND_CORE:
+            return INF, -1
+        return shear_pair_ratio(sm, sf, p[P.CORE_S13], p[P.CORE_S23])

@@ -1,0 +1,31 @@
+"""Sandwich intracell dimpling: the face's most compressive principal stress against its dimpling allowable.
+
+Statement (common practice; allowable from :func:`shells.sandwich.dimpling_stress`,
+σ_dim = 2·Ef/(1 − νf²)·(tf/s)²): failure when the most compressive in-plane
+principal stress reaches ``−σ_dim``, σ_dim = p[DIMPLING], set per ply by the
+section builder (NaN for plies not next to a honeycomb core: not applicable,
+sr = inf). Solved exactly as for wrinkling.
+"""
+
+from __future__ import annotations
+
+from numba import njit
+
+from .. import params as P
+from .base import INF, Criterion, compressive_principal_ratio
+
+
+class Dimpling(Criterion):
+    name = "dimpling"
+    title = "Intracell dimpling"
+    modes = ("intracell dimpling",)
+    requires = {P.KIND_PLY: (), P.KIND_ISOTROPIC: ()}
+    points = (0, 1, 2)
+
+    @staticmethod
+    @njit(cache=True)
+    def ratio(sm, sf, p):
+        """Strength ratio and mode (index in ``modes``) of ``sf + R·sm``; see the module docstring."""
+        if p[P.KIND] == P.KIND_CORE:
+            return INF, -1
+        return compressive_principal_ratio(sm, sf, p[P.DIMPLING])

@@ -1,0 +1,34 @@
+"""Hoffman criterion (plane stress, transversely isotropic ply).
+
+Statement (Hoffman, J. Composite Materials 1 (1967) 200–206), σ3 = 0 and
+Zt = Yt, Zc = Yc: ``σ1²/(Xt·Xc) − σ1σ2/(Xt·Xc) + σ2²/(Yt·Yc)
++ (1/Xt − 1/Xc)σ1 + (1/Yt − 1/Yc)σ2 + τ12²/S12² = 1``, i.e. the Tsai-Wu form
+with F12 = −1/(2·Xt·Xc). Quadratic in the load factor: solved exactly. Mode:
+the dominant term at failure, as for Tsai-Wu.
+"""
+
+from __future__ import annotations
+
+from numba import njit
+
+from .. import params as P
+from .base import INF, PLY_MODES, Criterion, polynomial_ratio
+
+
+class Hoffman(Criterion):
+    name = "hoffman"
+    title = "Hoffman"
+    modes = PLY_MODES
+    requires = {P.KIND_PLY: ("Xt", "Xc", "Yt", "Yc", "S12")}
+    points = (0, 1, 2)
+
+    @staticmethod
+    @njit(cache=True)
+    def ratio(sm, sf, p):
+        """Strength ratio and mode (index in ``modes``) of ``sf + R·sm``; see the module docstring."""
+        if p[P.KIND] != P.KIND_PLY:
+            return INF, -1
+        xt, xc, yt, yc, s = p[P.XT], p[P.XC], p[P.YT], p[P.YC], p[P.S12]
+        f11 = 1.0 / (xt * xc)
+        return polynomial_ratio(sm, sf, 1.0 / xt - 1.0 / xc, 1.0 / yt - 1.0 / yc, f11,
+                                1.0 / (yt * yc), 1.0 / (s * s), -0.5 * f11, 0.0, INF)

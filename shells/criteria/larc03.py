@@ -1,0 +1,145 @@
+"""LaRC03 criterion for a unidirectional ply in plane stress (fibre and matrix, tension and compression).
+
+Statement (Dávila, Camanho & Rose, J. Composite Materials 39 (2005) 323–345;
+NASA/TM-2003-212663). Inputs: Xt, Xc, Yc, S12, G12, ν12, the fracture angle of
+pure transverse compression α0 = p[ALPHA0] (rad), and the (possibly in-situ)
+strengths Y_T = p[YT_IS], S_L = p[S12_IS]. Derived, as in the paper:
+``η_T = −1/tan 2α0``, ``S_T = Yc·cos α0·(sin α0 + cos α0/tan 2α0)``,
+``η_L = −S12·cos 2α0/(Yc·cos² α0)``.
+
+- matrix tension, σ2 ≥ 0 (LaRC03 #1): ``(σ2/Y_T)² + (τ12/S_L)² = 1``;
+- matrix compression, σ2 < 0 (#2; #6 with the misalignment-frame stresses when
+  σ1 < −Yc): ``(τ_T/S_T)² + (τ_L/S_L)² = 1`` with
+  ``τ_T = <−σ2·cos α·(sin α − η_T cos α)>``, ``τ_L = <cos α·(|τ12| + η_L σ2 cos α)>``,
+  maximised over the fracture angle 0 ≤ α ≤ α0 (coarse scan + golden section);
+- fibre tension, σ1 ≥ 0 (#3): ``ε1/ε1t = (σ1 − ν12σ2)/Xt = 1``;
+- fibre compression, σ1 < 0 (#4 / #5): stresses in the misalignment frame,
+  ``φ = (|τ12| + (G12 − Xc)φc)/(G12 + σ1 − σ2)``, φc from the paper's closed
+  form; ``<|τ12m| + η_L σ2m>/S_L = 1`` when σ2m < 0, else the matrix-tension
+  form on (σ2m, τ12m).
+
+Where the spec was silent: the fracture toughness ratio g = G_Ic/G_IIc of #1 and
+#5 is not in the property vector and is taken as 1 (quadratic interaction).
+Exposures are written as degree-1 forms (square roots of the quadratic
+indices, failure at 1). With no fixed part and σ1 ≥ 0 along the load
+they are homogeneous, so R = 1/exposure exactly; otherwise (misalignment angle
+depends on G12, fixed part) R comes from the bracketed search
+:func:`shells.criteria.base.search_next`.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+from numba import njit
+
+from .. import params as P
+from .base import (INF, PLY_MODES, S1, S2, T12, Criterion, at, has_fixed, search_done,
+                   search_next, search_point, search_result, search_start)
+
+_GOLD = 0.5 * (math.sqrt(5.0) - 1.0)
+
+
+@njit(cache=True)
+def _plane_index(s2, t, alpha, eta_t, eta_l, s_t, s_l):
+    """Quadratic matrix-compression index on the fracture plane at angle ``alpha``."""
+    ca, sa = math.cos(alpha), math.sin(alpha)
+    tt = max(0.0, -s2 * ca * (sa - eta_t * ca))
+    tl = max(0.0, ca * (t + eta_l * s2 * ca))
+    return (tt / s_t) ** 2 + (tl / s_l) ** 2
+
+
+@njit(cache=True)
+def _matrix_compression(s2, t, alpha0, eta_t, eta_l, s_t, s_l):
+    """Exposure sqrt(max over 0 ≤ α ≤ α0 of the plane index); ``t`` = |τ12|."""
+    n = 8
+    best, kb = -1.0, 0
+    for k in range(n + 1):
+        v = _plane_index(s2, t, alpha0 * k / n, eta_t, eta_l, s_t, s_l)
+        if v > best:
+            best, kb = v, k
+    lo, hi = alpha0 * max(kb - 1, 0) / n, alpha0 * min(kb + 1, n) / n
+    x1, x2 = hi - _GOLD * (hi - lo), lo + _GOLD * (hi - lo)
+    v1 = _plane_index(s2, t, x1, eta_t, eta_l, s_t, s_l)
+    v2 = _plane_index(s2, t, x2, eta_t, eta_l, s_t, s_l)
+    for _ in range(34):
+        if v1 >= v2:
+            hi, x2, v2 = x2, x1, v1
+            x1 = hi - _GOLD * (hi - lo)
+            v1 = _plane_index(s2, t, x1, eta_t, eta_l, s_t, s_l)
+        else:
+            lo, x1, v1 = x1, x2, v2
+            x2 = lo + _GOLD * (hi - lo)
+            v2 = _plane_index(s2, t, x2, eta_t, eta_l, s_t, s_l)
+    return math.sqrt(max(best, v1, v2))
+
+
+@njit(cache=True)
+def _misaligned(s1, s2, t, p, phic):
+    """(σ2m, τ12m) in the fibre-misalignment frame; ``t`` = |τ12|. NaN pair when the kink is unstable."""
+    g12 = p[P.G12]
+    den = g12 + s1 - s2
+    if not den > 0.0:
+        return np.nan, np.nan
+    phi = (t + (g12 - p[P.XC]) * phic) / den
+    c, s = math.cos(phi), math.sin(phi)
+    return (s1 * s * s + s2 * c * c - 2.0 * t * s * c,
+            -s1 * s * c + s2 * s * c + t * (c * c - s * s))
+
+
+@njit(cache=True)
+def _exposure(sm, sf, r, p):
+    """LaRC03 exposure (failure at 1) and mode index at ``sf + r·sm``."""
+    s1, s2, t = at(sm, sf, r, S1), at(sm, sf, r, S2), abs(at(sm, sf, r, T12))
+    a0, yc, y_t, s_l = p[P.ALPHA0], p[P.YC], p[P.YT_IS], p[P.S12_IS]
+    eta_t = -1.0 / math.tan(2.0 * a0)
+    s_t = yc * math.cos(a0) * (math.sin(a0) + math.cos(a0) / math.tan(2.0 * a0))
+    eta_l = -p[P.S12] * math.cos(2.0 * a0) / (yc * math.cos(a0) ** 2)
+    phic = 0.0
+    s2m, t2m = s2, t
+    if s1 < 0.0:
+        q = s_l / p[P.XC]
+        phic = math.atan((1.0 - math.sqrt(max(0.0, 1.0 - 4.0 * (q + eta_l) * q))) / (2.0 * (q + eta_l)))
+        s2m, t2m = _misaligned(s1, s2, t, p, phic)
+        if s2m != s2m:
+            return INF, 1
+        t2m = abs(t2m)
+    # fibre modes
+    if s1 >= 0.0:
+        ff, fm = max(0.0, (s1 - p[P.NU12] * s2) / p[P.XT]), 0
+    elif s2m < 0.0:
+        ff, fm = max(0.0, t2m + eta_l * s2m) / s_l, 1
+    else:
+        ff, fm = math.sqrt((s2m / y_t) ** 2 + (t2m / s_l) ** 2), 1
+    # matrix modes
+    if s2 >= 0.0:
+        fmx, mm = math.sqrt((s2 / y_t) ** 2 + (t / s_l) ** 2), 2
+    elif s1 >= -yc:
+        fmx, mm = _matrix_compression(s2, t, a0, eta_t, eta_l, s_t, s_l), 3
+    else:
+        fmx, mm = _matrix_compression(s2m, t2m, a0, eta_t, eta_l, s_t, s_l), 3
+    if ff >= fmx:
+        return ff, fm
+    return fmx, mm
+
+
+class LaRC03(Criterion):
+    name = "larc03"
+    title = "LaRC03 (Dávila, Camanho & Rose 2005)"
+    modes = PLY_MODES[:4]
+    requires = {P.KIND_PLY: ("Xt", "Xc", "Yc", "S12", "G12", "nu12", "alpha0", "YT_is", "S12_is")}
+    points = (0, 1, 2)
+
+    @staticmethod
+    @njit(cache=True)
+    def ratio(sm, sf, p):
+        """Strength ratio and mode (index in ``modes``) of ``sf + R·sm``; see the module docstring."""
+        if p[P.KIND] != P.KIND_PLY:
+            return INF, -1
+        st = search_start(sm[S1] >= 0.0 and not has_fixed(sf))
+        f, m = _exposure(sm, sf, 0.0, p)
+        while not search_done(st):
+            st = search_next(st, f)
+            f, m = _exposure(sm, sf, search_point(st), p)
+        return search_result(st, m)

@@ -1,0 +1,38 @@
+"""Maximum strain criterion: each material-axis strain against its allowable.
+
+Statement (common practice; e.g. Kaw, *Mechanics of Composite Materials*,
+2nd ed., 2006, sec. 2.8): failure when ε1 ≥ e1t or −ε1 ≥ e1c, ε2 ≥ e2t or
+−ε2 ≥ e2c, or |γ12| ≥ g12u (engineering shear). The strains follow from the
+stresses by the plane-stress compliance, ε1 = (σ1 − ν12 σ2)/E1,
+ε2 = σ2/E2 − ν12 σ1/E1, γ12 = τ12/G12, so the fixed stress part maps to a
+fixed strain part and the criterion stays linear in R (solved exactly).
+"""
+
+from __future__ import annotations
+
+from numba import njit
+
+from .. import params as P
+from .base import INF, PLY_MODES, S1, S2, T12, Criterion, limits_ratio
+
+
+class MaxStrain(Criterion):
+    name = "max-strain"
+    title = "Maximum strain"
+    modes = PLY_MODES
+    requires = {P.KIND_PLY: ("E1", "E2", "G12", "nu12", "e1t", "e1c", "e2t", "e2c", "g12u")}
+    points = (0, 1, 2)
+
+    @staticmethod
+    @njit(cache=True)
+    def ratio(sm, sf, p):
+        """Strength ratio and mode (index in ``modes``) of ``sf + R·sm``; see the module docstring."""
+        if p[P.KIND] != P.KIND_PLY:
+            return INF, -1
+        e1, e2, g12, nu12 = p[P.E1], p[P.E2], p[P.G12], p[P.NU12]
+        m1 = (sm[S1] - nu12 * sm[S2]) / e1
+        f1 = (sf[S1] - nu12 * sf[S2]) / e1
+        m2 = sm[S2] / e2 - nu12 * sm[S1] / e1
+        f2 = sf[S2] / e2 - nu12 * sf[S1] / e1
+        return limits_ratio(m1, f1, m2, f2, sm[T12] / g12, sf[T12] / g12,
+                            p[P.E1T], p[P.E1C], p[P.E2T], p[P.E2C], p[P.G12U])

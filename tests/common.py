@@ -1,0 +1,30 @@
+"""Paths and helpers shared by tests (import as ``from tests.common import ...``)."""
+
+from __future__ import annotations
+
+import os
+import subprocess
+import sys
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parent.parent
+EXAMPLE = ROOT / "examples" / "definition.toml"
+
+
+def run_cli(*args, timeout: float = 600) -> subprocess.CompletedProcess:
+    """Run ``plybridge ARGS`` in a fresh interpreter (as a user would), capturing stdout and stderr."""
+    env = dict(os.environ)
+    env.setdefault("NUMBA_CACHE_DIR", str(ROOT / ".numba-cache"))
+    return subprocess.run([sys.executable, "-m", "bridge.cli", *map(str, args)], capture_output=True, text=True,
+                          cwd=ROOT, timeout=timeout, env=env)
+
+
+def assert_one_line_error(proc: subprocess.CompletedProcess, *needles: str) -> str:
+    """Exit code 2, exactly one line on stderr containing every needle, no traceback."""
+    assert proc.returncode == 2, (proc.returncode, proc.stderr)
+    lines = proc.stderr.strip().splitlines()
+    assert len(lines) == 1, proc.stderr
+    assert "Traceback" not in proc.stderr
+    for needle in needles:
+        assert needle in lines[0], (needle, lines[0])
+    return lines[0]

@@ -15,7 +15,7 @@ from typing import Sequence
 import numpy as np
 
 from shells.criteria import CRITERIA, code
-from shells.recovery import SLOTS, recover_block, unused_slot
+from shells.recovery import recover_block
 from shells.recovery_tables import SectionTables
 
 
@@ -82,18 +82,13 @@ def cell_summary(env: Envelope) -> dict[str, np.ndarray]:
     return out
 
 
-def _slots(criteria: Sequence[type]) -> list[tuple[tuple, np.ndarray, np.ndarray]]:
-    """Group criteria into kernel passes of SLOTS criteria each."""
-    passes = []
-    for start in range(0, len(criteria), SLOTS):
-        group = list(criteria[start:start + SLOTS])
-        fns = [c.ratio for c in group] + [unused_slot] * (SLOTS - len(group))
-        codes = np.array([code(c.name) for c in group] + [0] * (SLOTS - len(group)), dtype=np.int64)
-        masks = np.zeros((SLOTS, 3), dtype=np.bool_)
-        for s, c in enumerate(group):
-            masks[s, list(c.points)] = True
-        passes.append((tuple(fns), codes, masks))
-    return passes
+def _codes(criteria: Sequence[type]) -> tuple[np.ndarray, np.ndarray]:
+    """Registry codes and point masks of the chosen criteria, for the kernel."""
+    codes = np.array([code(c.name) for c in criteria], dtype=np.int64)
+    masks = np.zeros((len(criteria), 3), dtype=np.bool_)
+    for s, c in enumerate(criteria):
+        masks[s, list(c.points)] = True
+    return codes, masks
 
 
 def recover_into(env: Envelope, criteria: Sequence[type], tables: SectionTables, cell_sec: np.ndarray,
@@ -139,13 +134,12 @@ def recover_into(env: Envelope, criteria: Sequence[type], tables: SectionTables,
     if crit_ms is None:
         crit_ms = np.full((ncell, len(CRITERIA)), np.inf)
     t = tables
-    for n, (fns, codes, masks) in enumerate(_slots(criteria)):
-        keep = out if n == 0 else (False,) + out[1:]
-        recover_block(*fns, codes, masks, R, dT, f64(dM), f64(pres), f64(fos), skip,
-                      np.ascontiguousarray(cell_sec, dtype=np.int64), np.cos(phi), np.sin(phi),
-                      t.compliance, t.fixed, t.first, t.nply, t.z, t.Q, t.cs, t.alpha, t.beta, t.F, t.params,
-                      t.knockdown, case0, env.margin, env.strength_ratio, env.case, env.point, env.criterion,
-                      env.mode, case_ms, crit_ms, *keep)
+    codes, masks = _codes(criteria)
+    recover_block(codes, masks, R, dT, f64(dM), f64(pres), f64(fos), skip,
+                  np.ascontiguousarray(cell_sec, dtype=np.int64), np.cos(phi), np.sin(phi),
+                  t.compliance, t.fixed, t.first, t.nply, t.z, t.Q, t.cs, t.alpha, t.beta, t.F, t.params,
+                  t.knockdown, case0, env.margin, env.strength_ratio, env.case, env.point, env.criterion,
+                  env.mode, case_ms, crit_ms, *out)
 
 
 def criterion_names() -> tuple[str, ...]:

@@ -6,7 +6,7 @@ mid-plane strains and curvatures (mechanical part, and the fixed part from the
 thermal and moisture resultants), and at the bottom, middle and top of every
 ply form the material-axis stresses (σ1, σ2, τ12) from classical lamination,
 (τ13, τ23) from the equilibrium distribution of Qx, Qy, and σ3 = −pressure;
-then evaluate up to four failure criteria and keep, per cell and ply, the
+then evaluate the chosen failure criteria and keep, per cell and ply, the
 lowest margin of safety with its strength ratio, case, point, criterion and
 mode. Stresses are never stored unless asked (``store``).
 
@@ -20,20 +20,12 @@ from __future__ import annotations
 import numpy as np
 from numba import njit, prange
 
-#: Criteria evaluated per kernel pass; more are run in further passes that merge into the same envelope.
-SLOTS = 4
-
+from .criteria.dispatch import ratio_by_code
 
 @njit(cache=True)
-def unused_slot(sm, sf, p):
-    """A criterion slot left empty: never governs."""
-    return np.inf, -1
-
-
-@njit(cache=True)
-def _keep_lowest(fn, slot_code, sm, sf, p, scale, i, k, case, point,
+def _keep_lowest(slot_code, sm, sf, p, scale, i, k, case, point,
                  env_ms, env_sr, env_case, env_point, env_crit, env_mode, case_ms, crit_ms):
-    sr, mode = fn(sm, sf, p)
+    sr, mode = ratio_by_code(slot_code, sm, sf, p)
     ms = sr * scale - 1.0
     if ms < case_ms[i, case]:
         case_ms[i, case] = ms
@@ -49,7 +41,7 @@ def _keep_lowest(fn, slot_code, sm, sf, p, scale, i, k, case, point,
 
 
 @njit(cache=True, parallel=True)
-def recover_block(c0, c1, c2, c3, codes, masks,
+def recover_block(codes, masks,
                   R, dT, dM, pres, fos, skip,
                   cell_sec, cell_cos, cell_sin,
                   comp, fixed, first, nply, z, Q, cs, alpha, beta, F, params, kd,
@@ -60,12 +52,10 @@ def recover_block(c0, c1, c2, c3, codes, masks,
 
     Parameters
     ----------
-    c0, c1, c2, c3 : numba functions ``(sm, sf, p) -> (sr, mode)``
-        Criterion ``ratio`` functions (``unused_slot`` for empty slots).
-    codes : int64 (4,)
-        Registry code of each slot's criterion.
-    masks : bool (4, 3)
-        Whether each slot applies at the bottom, middle and top points.
+    codes : int64 (ncrit,)
+        Registry codes of the criteria to evaluate (``shells.criteria.code``).
+    masks : bool (ncrit, 3)
+        Whether each criterion applies at the bottom, middle and top points.
     R : float64 (ncase, ncell, 8)
         Resultants, element frame.
     dT : float64 (ncase, ncell)
@@ -179,15 +169,7 @@ def recover_block(c0, c1, c2, c3, codes, masks,
                         out_shear[j, i, k, q, 0] = sm[3]
                         out_shear[j, i, k, q, 1] = sm[4]
                     cj = case0 + j
-                    if masks[0, q]:
-                        _keep_lowest(c0, codes[0], sm, sf, pr, scale, i, k, cj, q,
-                                     env_ms, env_sr, env_case, env_point, env_crit, env_mode, case_ms, crit_ms)
-                    if masks[1, q]:
-                        _keep_lowest(c1, codes[1], sm, sf, pr, scale, i, k, cj, q,
-                                     env_ms, env_sr, env_case, env_point, env_crit, env_mode, case_ms, crit_ms)
-                    if masks[2, q]:
-                        _keep_lowest(c2, codes[2], sm, sf, pr, scale, i, k, cj, q,
-                                     env_ms, env_sr, env_case, env_point, env_crit, env_mode, case_ms, crit_ms)
-                    if masks[3, q]:
-                        _keep_lowest(c3, codes[3], sm, sf, pr, scale, i, k, cj, q,
-                                     env_ms, env_sr, env_case, env_point, env_crit, env_mode, case_ms, crit_ms)
+                    for m in range(codes.shape[0]):
+                        if masks[m, q]:
+                            _keep_lowest(codes[m], sm, sf, pr, scale, i, k, cj, q,
+                                         env_ms, env_sr, env_case, env_point, env_crit, env_mode, case_ms, crit_ms)

@@ -14,7 +14,6 @@ from collections.abc import Iterable, Mapping
 
 import numpy as np
 
-from .. import params as P
 from ..errors import DefinitionError, MaterialError
 from .base import Criterion, evaluate, evaluate_block, failure_index
 from .core_crushing import CoreCrushing

@@ -144,26 +144,6 @@ def linear_ratio(f, m, upper, lower):
 
 
 @njit(cache=True)
-def limits_ratio(m1, f1, m2, f2, m6, f6, x_t, x_c, y_t, y_c, s):
-    """Exact R for independent limits on three in-plane components; mode in :data:`PLY_MODES`.
-
-    Component 1 lies in (−x_c, x_t), 2 in (−y_c, y_t), 12 in (−s, s); each
-    is ``f + R·m``. The smallest R governs (ties: fibre, then matrix, then
-    shear); the mode's sign is that of the component at failure.
-    """
-    r1 = linear_ratio(f1, m1, x_t, x_c)
-    r2 = linear_ratio(f2, m2, y_t, y_c)
-    r6 = linear_ratio(f6, m6, s, s)
-    if r1 == INF and r2 == INF and r6 == INF:
-        return INF, -1
-    if r1 <= r2 and r1 <= r6:
-        return r1, (FT if f1 + r1 * m1 >= 0.0 else FC)
-    if r2 <= r6:
-        return r2, (MT if f2 + r2 * m2 >= 0.0 else MC)
-    return r6, SH
-
-
-@njit(cache=True)
 def quadratic_roots(a, b, c):
     """Real roots (r1 ≤ r2) of ``a R² + b R + c = 0``; missing roots are inf.
 
@@ -224,91 +204,6 @@ def sign_between(f, m, lo, hi):
     mid = 2.0 * lo + 1.0 if hi == INF else 0.5 * (lo + hi)
     v = f + mid * m
     return 1 if v > 0.0 else (-1 if v < 0.0 else 0)
-
-
-@njit(cache=True)
-def plane_quadratic(sm, sf, f1, f2, f11, f22, f66, f12):
-    """Coefficients (a, b, c) of the in-plane polynomial criterion minus 1 along the ray.
-
-    Criterion ``F1σ1 + F2σ2 + F11σ1² + F22σ2² + F66τ12² + 2F12σ1σ2`` at
-    ``sf + R·sm`` written as ``a R² + b R + c + 1``.
-    """
-    m1, m2, m6 = sm[S1], sm[S2], sm[T12]
-    g1, g2, g6 = sf[S1], sf[S2], sf[T12]
-    a = f11 * m1 * m1 + f22 * m2 * m2 + f66 * m6 * m6 + 2.0 * f12 * m1 * m2
-    b = (f1 * m1 + f2 * m2 + 2.0 * (f11 * g1 * m1 + f22 * g2 * m2 + f66 * g6 * m6)
-         + 2.0 * f12 * (g1 * m2 + g2 * m1))
-    c = f1 * g1 + f2 * g2 + f11 * g1 * g1 + f22 * g2 * g2 + f66 * g6 * g6 + 2.0 * f12 * g1 * g2 - 1.0
-    return a, b, c
-
-
-@njit(cache=True)
-def dominant_mode(sm, sf, r, f1, f2, f11, f22, f66):
-    """Index in :data:`PLY_MODES` of the largest term of an in-plane polynomial at ``sf + r·sm``.
-
-    Terms: fibre ``F1σ1 + F11σ1²``, matrix ``F2σ2 + F22σ2²``, shear ``F66τ12²``;
-    the interaction term is left out. -1 when ``r`` is inf.
-    """
-    if r == INF:
-        return -1
-    s1, s2, s6 = at(sm, sf, r, S1), at(sm, sf, r, S2), at(sm, sf, r, T12)
-    fib = f1 * s1 + f11 * s1 * s1
-    mat = f2 * s2 + f22 * s2 * s2
-    she = f66 * s6 * s6
-    if she >= fib and she >= mat:
-        return SH
-    if fib >= mat:
-        return FT if s1 >= 0.0 else FC
-    return MT if s2 >= 0.0 else MC
-
-
-@njit(cache=True)
-def polynomial_ratio(sm, sf, f1, f2, f11, f22, f66, f12, lo, hi):
-    """Exact first R in [lo, hi] at which the in-plane polynomial (see :func:`plane_quadratic`) reaches 1.
-
-    Returns (R, mode of the dominant term) or (inf, -1).
-    """
-    a, b, c = plane_quadratic(sm, sf, f1, f2, f11, f22, f66, f12)
-    r = first_crossing(a, b, c, lo, hi)
-    return r, dominant_mode(sm, sf, r, f1, f2, f11, f22, f66)
-
-
-@njit(cache=True)
-def shear_pair_ratio(sm, sf, s13, s23):
-    """Exact R for ``(τ13/S13)² + (τ23/S23)² = 1``; mode 0 (13) or 1 (23), the larger term."""
-    a13, a23 = 1.0 / (s13 * s13), 1.0 / (s23 * s23)
-    m13, m23, g13, g23 = sm[T13], sm[T23], sf[T13], sf[T23]
-    a = a13 * m13 * m13 + a23 * m23 * m23
-    b = 2.0 * (a13 * g13 * m13 + a23 * g23 * m23)
-    c = a13 * g13 * g13 + a23 * g23 * g23 - 1.0
-    r = first_crossing(a, b, c, 0.0, INF)
-    if r == INF:
-        return INF, -1
-    t13, t23 = at(sm, sf, r, T13), at(sm, sf, r, T23)
-    return r, (0 if a13 * t13 * t13 >= a23 * t23 * t23 else 1)
-
-
-@njit(cache=True)
-def compressive_principal_ratio(sm, sf, allow):
-    """Exact R at which the most compressive in-plane principal stress reaches ``-allow``.
-
-    λ_min(σ) = −W is the first R at which ``σ + W·I`` (in-plane 2×2 tensor)
-    stops being positive definite: the smallest positive root of the quadratic
-    ``(σ1 + W)(σ2 + W) − τ12² = 0`` (λ_max ≥ λ_min, so λ_min reaches zero
-    first). Returns (R, 0) or (inf, -1); NaN or non-positive ``allow`` → inf.
-    """
-    if not allow > 0.0:
-        return INF, -1
-    g1, g2, g6 = sf[S1] + allow, sf[S2] + allow, sf[T12]
-    m1, m2, m6 = sm[S1], sm[S2], sm[T12]
-    if g1 <= 0.0 or g2 <= 0.0 or g1 * g2 - g6 * g6 <= 0.0:
-        return 0.0, 0
-    # g(R) = −det(σ(R) + W·I): negative while safe.
-    a = -(m1 * m2 - m6 * m6)
-    b = -(g1 * m2 + g2 * m1 - 2.0 * g6 * m6)
-    c = -(g1 * g2 - g6 * g6)
-    r = first_crossing(a, b, c, 0.0, INF)
-    return (INF, -1) if r == INF else (r, 0)
 
 
 # Bracketed root search by reverse communication: the criterion owns the loop and

@@ -13,7 +13,22 @@ from __future__ import annotations
 from numba import njit
 
 from .. import params as P
-from .base import INF, Criterion, shear_pair_ratio
+from .base import INF, T13, T23, Criterion, at, first_crossing
+
+
+@njit(cache=True)
+def shear_pair_ratio(sm, sf, s13, s23):
+    """Exact R for ``(τ13/S13)² + (τ23/S23)² = 1``; mode 0 (13) or 1 (23), the larger term."""
+    a13, a23 = 1.0 / (s13 * s13), 1.0 / (s23 * s23)
+    m13, m23, g13, g23 = sm[T13], sm[T23], sf[T13], sf[T23]
+    a = a13 * m13 * m13 + a23 * m23 * m23
+    b = 2.0 * (a13 * g13 * m13 + a23 * g23 * m23)
+    c = a13 * g13 * g13 + a23 * g23 * g23 - 1.0
+    r = first_crossing(a, b, c, 0.0, INF)
+    if r == INF:
+        return INF, -1
+    t13, t23 = at(sm, sf, r, T13), at(sm, sf, r, T23)
+    return r, (0 if a13 * t13 * t13 >= a23 * t23 * t23 else 1)
 
 
 class CoreShear(Criterion):

@@ -12,7 +12,8 @@ from __future__ import annotations
 from numba import njit
 
 from .. import params as P
-from .base import INF, Criterion, compressive_principal_ratio
+from .base import INF, Criterion
+from .wrinkling import compressive_principal_ratio
 
 
 class Dimpling(Criterion):

@@ -12,7 +12,8 @@ from __future__ import annotations
 from numba import njit
 
 from .. import params as P
-from .base import INF, PLY_MODES, Criterion, polynomial_ratio
+from .base import INF, PLY_MODES, Criterion
+from .tsai_wu import polynomial_ratio
 
 
 class Hoffman(Criterion):

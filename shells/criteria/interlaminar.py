@@ -14,7 +14,8 @@ import math
 from numba import njit
 
 from .. import params as P
-from .base import INF, Criterion, shear_pair_ratio
+from .base import INF, Criterion
+from .core_shear import shear_pair_ratio
 
 
 class Interlaminar(Criterion):

@@ -13,7 +13,8 @@ from __future__ import annotations
 from numba import njit
 
 from .. import params as P
-from .base import INF, PLY_MODES, S1, S2, T12, Criterion, limits_ratio
+from .base import INF, PLY_MODES, S1, S2, T12, Criterion
+from .max_stress import limits_ratio
 
 
 class MaxStrain(Criterion):

@@ -13,7 +13,27 @@ from __future__ import annotations
 from numba import njit
 
 from .. import params as P
-from .base import INF, PLY_MODES, S1, S2, T12, Criterion, limits_ratio
+from .base import FC, FT, INF, MC, MT, PLY_MODES, S1, S2, SH, T12, Criterion, linear_ratio
+
+
+@njit(cache=True)
+def limits_ratio(m1, f1, m2, f2, m6, f6, x_t, x_c, y_t, y_c, s):
+    """Exact R for independent limits on three in-plane components; mode in :data:`PLY_MODES`.
+
+    Component 1 lies in (−x_c, x_t), 2 in (−y_c, y_t), 12 in (−s, s); each
+    is ``f + R·m``. The smallest R governs (ties: fibre, then matrix, then
+    shear); the mode's sign is that of the component at failure.
+    """
+    r1 = linear_ratio(f1, m1, x_t, x_c)
+    r2 = linear_ratio(f2, m2, y_t, y_c)
+    r6 = linear_ratio(f6, m6, s, s)
+    if r1 == INF and r2 == INF and r6 == INF:
+        return INF, -1
+    if r1 <= r2 and r1 <= r6:
+        return r1, (FT if f1 + r1 * m1 >= 0.0 else FC)
+    if r2 <= r6:
+        return r2, (MT if f2 + r2 * m2 >= 0.0 else MC)
+    return r6, SH
 
 
 class MaxStress(Criterion):

@@ -15,7 +15,8 @@ from __future__ import annotations
 from numba import njit
 
 from .. import params as P
-from .base import INF, PLY_MODES, S1, S2, Criterion, break_point, polynomial_ratio, sign_between
+from .base import INF, PLY_MODES, S1, S2, Criterion, break_point, sign_between
+from .tsai_wu import polynomial_ratio
 
 
 @njit(cache=True)

@@ -1,0 +1,57 @@
+"""Criterion evaluation by registry code, for the fused recovery kernel.
+
+The kernel calls :func:`ratio_by_code` with the integer code of each chosen
+criterion. The branches below call the registered ``ratio`` functions as
+module globals, so numba inlines them and caches the kernel across processes
+(a kernel that takes criterion functions as arguments recompiles in every
+process). The functions are taken from :data:`shells.criteria.CRITERIA` in
+registry order; the unpacking fails loudly if a criterion is added to the
+registry without a branch here, and ``tests/test_recovery.py`` checks every
+code against the criterion's own ``ratio``.
+
+Numba's cache keys on this file only: after editing a criterion module, clear
+``NUMBA_CACHE_DIR`` (see DEVELOPERS.md).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from numba import njit
+
+from . import CRITERIA
+
+(_r0, _r1, _r2, _r3, _r4, _r5, _r6, _r7, _r8, _r9, _r10, _r11, _r12, _r13) = (c.ratio for c in CRITERIA)
+
+
+@njit(cache=True)
+def ratio_by_code(code, sm, sf, p):
+    """``CRITERIA[code].ratio(sm, sf, p)`` → (strength ratio, mode)."""
+    if code == 0:
+        return _r0(sm, sf, p)
+    if code == 1:
+        return _r1(sm, sf, p)
+    if code == 2:
+        return _r2(sm, sf, p)
+    if code == 3:
+        return _r3(sm, sf, p)
+    if code == 4:
+        return _r4(sm, sf, p)
+    if code == 5:
+        return _r5(sm, sf, p)
+    if code == 6:
+        return _r6(sm, sf, p)
+    if code == 7:
+        return _r7(sm, sf, p)
+    if code == 8:
+        return _r8(sm, sf, p)
+    if code == 9:
+        return _r9(sm, sf, p)
+    if code == 10:
+        return _r10(sm, sf, p)
+    if code == 11:
+        return _r11(sm, sf, p)
+    if code == 12:
+        return _r12(sm, sf, p)
+    if code == 13:
+        return _r13(sm, sf, p)
+    return np.inf, -1

@@ -71,20 +71,22 @@ class ResultantSource:
 
     def read(self, start: int, stop: int) -> np.ndarray:
         """(n_steps, stop − start, 8) resultants of cells start … stop − 1."""
+        return self.read_cells(slice(start, stop))
+
+    def read_cells(self, cells: slice | np.ndarray) -> np.ndarray:
+        """(n_steps, ncell, 8) resultants of a cell slice or of increasing cell ids."""
         if self._data is not None:
-            return self._data[:, start:stop]
+            return self._data[:, cells]
         import h5py
 
-        with h5py.File(self._h5, "r", locking=False) as h5:
-            raw = h5[H5_DATASET][:, start:stop, :]
-        m = self.model
-        vectors = None
         if self.settings.frame == "vectors":
             raise ResultantsError("frame = 'vectors' is not available for HDF5 resultants; give the "
                                   "resultants in the element frame or laminate axes", self._h5)
-        sl = slice(start, stop)
-        return to_element_frame(apply_settings(raw, self.settings), self.settings.frame, m.phi[sl],
-                                (m.frame_x[sl], m.frame_y[sl], m.normal[sl]), vectors)
+        with h5py.File(self._h5, "r", locking=False) as h5:
+            raw = h5[H5_DATASET][:, cells, :]
+        m = self.model
+        return to_element_frame(apply_settings(raw, self.settings), self.settings.frame, m.phi[cells],
+                                (m.frame_x[cells], m.frame_y[cells], m.normal[cells]))
 
 
 @dataclass(frozen=True)
@@ -201,6 +203,7 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
                 progress(stop, n)
         summary = acc.result(plan.names, zone_names=[z.name for z in defn.zones],
                              laminate_of_zone=[z.laminate for z in defn.zones])
+        store.write_static("hotspots", _hot_states(summary, crit, tables, model, source, plan))
         store.write_static("mesh", mesh_group(model.mesh.points, model.mesh.blocks))
         store.write_static("model", {"zone": model.zone.astype(np.int32), "section": model.section.astype(np.int32),
                                      "material_angle": model.phi, "normal": model.normal,
@@ -219,6 +222,21 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
             "caution": CAUTION,
         })
     return summary
+
+
+def _hot_states(summary: dict, crit, tables, model: Model, source: ResultantSource, plan: CasePlan) -> dict:
+    """Through-thickness states of the hot-spot cells (docs/results.md, /hotspots)."""
+    from postproc.states import cell_states
+
+    ids = np.array(sorted({h["cell"] for h in summary["hot_spots"]}), dtype=np.int64)
+    if ids.size == 0:
+        return {"cell": ids}
+    R = np.einsum("js,sck->jck", plan.weights, source.read_cells(ids))
+    dT = np.stack([plan.delta_T(model, i, i + 1)[:, 0] for i in ids], axis=1)
+    states = cell_states(crit, tables, model.section[ids], model.phi[ids], np.nan_to_num(R), dT, plan.dM,
+                         plan.pres)
+    return {"cell": ids, "resultants": R, "delta_T": dT, **states,
+            "criteria": np.array([c.name for c in crit], dtype=object).astype("S")}
 
 
 CAUTION = ("Results support, and never replace, review by a qualified engineer under the applicable "

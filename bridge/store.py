@@ -187,3 +187,15 @@ class StoreReader:
         group = self.h5["mesh"]
         blocks = [(key.split("_", 1)[1], group[key][()]) for key in sorted(group) if key.startswith("block")]
         return group["points"][()], blocks
+
+
+def materials_from_meta(meta: Mapping[str, Mapping[str, Any]]):
+    """Rebuild material dataclasses from the store's ``materials`` attribute (name → kind and fields)."""
+    from shells.materials import Core, Isotropic, Orthotropic
+
+    classes = {"ply": Orthotropic, "isotropic": Isotropic, "core": Core}
+    out = {}
+    for name, entry in meta.items():
+        fields = {k: v for k, v in entry.items() if k != "kind"}
+        out[name] = classes[entry["kind"]](name=name, **fields)
+    return out

@@ -26,43 +26,62 @@ _GAUSS_X = 0.5 + 0.5 * np.array([-np.sqrt(0.6), 0.0, np.sqrt(0.6)])
 _GAUSS_W = np.array([5.0, 8.0, 5.0]) / 18.0
 
 
-def shear_distribution(sp: SectionProperties, fractions: np.ndarray = PLY_POINTS) -> np.ndarray:
-    """Transverse shear stress per unit shear force at points inside every ply.
+def equilibrium_shear(sp: SectionProperties, dM_dx: np.ndarray, dM_dy: np.ndarray,
+                      fractions: np.ndarray = PLY_POINTS) -> np.ndarray:
+    """Transverse shear through the thickness from the moment gradients, by integrating equilibrium.
+
+    τxz,z = −(σx,x + τxy,y), τyz,z = −(τxy,x + σy,y), τ = 0 at the bottom face; the in-plane stress
+    gradients follow from ∂(ε⁰, κ) = [A B; B D]⁻¹ ∂(N, M) with N constant.
 
     Parameters
     ----------
     sp : SectionProperties
+    dM_dx, dM_dy : array_like (3,) or (3, k)
+        (Mx, My, Mxy) differentiated along x and along y (moment/length²); k load states at once.
     fractions : array_like (m,)
-        Positions inside each ply as fractions of its thickness (0 bottom, 1 top).
+        Positions inside each ply (0 bottom, 1 top).
+
+    Returns
+    -------
+    ndarray (nply, m, 2) or (nply, m, 2, k)
+        (τxz, τyz) in laminate axes (force/length²).
+    """
+    comp = np.linalg.inv(sp.ABD)
+    gx = comp[:, 3:] @ np.asarray(dM_dx, dtype=float)
+    gy = comp[:, 3:] @ np.asarray(dM_dy, dtype=float)
+    zb, zt = sp.z[:-1], sp.z[1:]
+
+    def partial(z_lo, z_hi, k, g):        # ∫ Q̄ (e + ζ c) dζ over [z_lo, z_hi] in ply k
+        return sp.Qbar[k] @ (g[:3] * (z_hi - z_lo) + g[3:] * (z_hi ** 2 - z_lo ** 2) / 2.0)
+
+    def rates(z_lo, z_hi, k):              # ∫ (τxz,z, τyz,z) dζ
+        sx, sy = partial(z_lo, z_hi, k, gx), partial(z_lo, z_hi, k, gy)
+        return -np.stack([sx[0] + sy[2], sx[2] + sy[1]])
+
+    n = len(zb)
+    below = [np.zeros_like(rates(zb[0], zb[0], 0))]
+    for k in range(1, n):
+        below.append(below[-1] + rates(zb[k - 1], zt[k - 1], k - 1))
+    frac = np.asarray(fractions, dtype=float)
+    return np.stack([np.stack([below[k] + rates(zb[k], zb[k] + f * (zt[k] - zb[k]), k) for f in frac])
+                     for k in range(n)])
+
+
+def shear_distribution(sp: SectionProperties, fractions: np.ndarray = PLY_POINTS) -> np.ndarray:
+    """Transverse shear stress per unit shear force at points inside every ply (Rolfes & Rohwer 1997).
+
+    The two cylindrical-bending states Mx,x = Qx and My,y = Qy (derivatives of N and Mxy and mixed
+    derivatives neglected) of :func:`equilibrium_shear`.
 
     Returns
     -------
     F : ndarray (nply, m, 2, 2)
-        (τxz, τyz) = F · (Qx, Qy) at each point, laminate axes. Per unit length
-        of Q (1/length).
+        (τxz, τyz) = F · (Qx, Qy) at each point, laminate axes (1/length).
     """
-    comp = np.linalg.inv(sp.ABD)
-    g = comp[:, [3, 4]]            # strain/curvature gradients of the states Mx,x = 1 and My,y = 1
-    e, c = g[:3], g[3:]            # (3, 2) each
-    zb, zt = sp.z[:-1], sp.z[1:]
-    # ∫_{zb}^{z} Q̄ (e + ζ c) dζ for each ply; accumulated over the plies below.
-    def partial(z_lo, z_hi, k):
-        return sp.Qbar[k] @ (e * (z_hi - z_lo) + c * (z_hi ** 2 - z_lo ** 2) / 2.0)
-
-    n = len(zb)
-    below = np.zeros((n, 3, 2))
-    for k in range(1, n):
-        below[k] = below[k - 1] + partial(zb[k - 1], zt[k - 1], k - 1)
-    frac = np.asarray(fractions, dtype=float)
-    out = np.empty((n, len(frac), 2, 2))
-    for k in range(n):
-        for j, f in enumerate(frac):
-            z = zb[k] + f * (zt[k] - zb[k])
-            I = below[k] + partial(zb[k], z, k)      # (3 stress comps, 2 states)
-            # state Qx (column 0): τxz' = −σx,x, τyz' = −τxy,x; state Qy (column 1): τxz' = −τxy,y, τyz' = −σy,y
-            out[k, j, 0, 0], out[k, j, 1, 0] = -I[0, 0], -I[2, 0]
-            out[k, j, 0, 1], out[k, j, 1, 1] = -I[2, 1], -I[1, 1]
-    return out
+    unit = np.eye(3)[:, :2]                  # columns: state Qx (Mx,x = 1), state Qy (My,y = 1)
+    dx = np.stack([unit[:, 0], np.zeros(3)], axis=1)
+    dy = np.stack([np.zeros(3), unit[:, 1]], axis=1)
+    return equilibrium_shear(sp, dx, dy, fractions)
 
 
 def equilibrium_shear_stiffness(sp: SectionProperties) -> np.ndarray:

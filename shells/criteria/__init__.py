@@ -41,7 +41,7 @@ DEFAULT = ("max-stress", "max-strain", "tsai-wu", "hashin")
 NAMES = tuple(c.name for c in CRITERIA)
 
 # Property-vector names whose definition-file key differs (for the fix in error messages).
-_DEFINITION_KEY = {"core_S13": "S13", "core_S23": "S23", "alpha0": "alpha0_deg",
+_DEFINITION_KEY = {"core_S13": "S13", "core_S23": "S23", "alpha0": "alpha0",
                    "YT_is": "Yt", "S12_is": "S12"}
 
 

@@ -22,24 +22,6 @@ from numba import njit, prange
 
 from .criteria.dispatch import ratio_by_code
 
-@njit(cache=True)
-def _keep_lowest(slot_code, sm, sf, p, scale, i, k, case, point,
-                 env_ms, env_sr, env_case, env_point, env_crit, env_mode, case_ms, crit_ms):
-    sr, mode = ratio_by_code(slot_code, sm, sf, p)
-    ms = sr * scale - 1.0
-    if ms < case_ms[i, case]:
-        case_ms[i, case] = ms
-    if ms < crit_ms[i, slot_code]:
-        crit_ms[i, slot_code] = ms
-    if ms < env_ms[i, k]:
-        env_ms[i, k] = ms
-        env_sr[i, k] = sr
-        env_case[i, k] = case
-        env_point[i, k] = point
-        env_crit[i, k] = slot_code
-        env_mode[i, k] = mode
-
-
 @njit(cache=True, parallel=True)
 def recover_block(codes, masks,
                   R, dT, dM, pres, fos, skip,
@@ -169,7 +151,22 @@ def recover_block(codes, masks,
                         out_shear[j, i, k, q, 0] = sm[3]
                         out_shear[j, i, k, q, 1] = sm[4]
                     cj = case0 + j
+                    # Criteria; the envelope update is written out here (a call taking the envelope
+                    # arrays would reference-count eight arrays per point).
                     for m in range(codes.shape[0]):
-                        if masks[m, q]:
-                            _keep_lowest(codes[m], sm, sf, pr, scale, i, k, cj, q,
-                                         env_ms, env_sr, env_case, env_point, env_crit, env_mode, case_ms, crit_ms)
+                        if not masks[m, q]:
+                            continue
+                        cm = codes[m]
+                        sr, mode = ratio_by_code(cm, sm, sf, pr)
+                        ms = sr * scale - 1.0
+                        if ms < case_ms[i, cj]:
+                            case_ms[i, cj] = ms
+                        if ms < crit_ms[i, cm]:
+                            crit_ms[i, cm] = ms
+                        if ms < env_ms[i, k]:
+                            env_ms[i, k] = ms
+                            env_sr[i, k] = sr
+                            env_case[i, k] = cj
+                            env_point[i, k] = q
+                            env_crit[i, k] = cm
+                            env_mode[i, k] = mode

@@ -1,10 +1,34 @@
-"""``plybridge compare``: placeholder until its module is written."""
+"""``plybridge compare``: cross-check a solver's ply stresses or strains against plybridge's own recovery."""
 
 from __future__ import annotations
+
+import json
 
 import click
 
 
-@click.command(help="(not yet available)")
-def compare() -> None:
-    raise click.UsageError("plybridge compare is not available yet")
+@click.command(help="Recover MESH from RESULTANTS independently and compare every ply, point, component, cell "
+                    "and case with the solver's ply values SOLVER_PLIES (mapped by the [solver_plies] table of "
+                    "DEFINITION; docs/compare.md). On a failure, tests the usual convention errors zone by zone "
+                    "and names those that explain it. Exit code 0: within tolerance; 1: the comparison failed; "
+                    "2: bad input.\n\nResults support, and never replace, review by a qualified engineer under the "
+                    "applicable regulations and local codes.")
+@click.argument("definition", type=click.Path(dir_okay=False))
+@click.argument("mesh", type=click.Path(dir_okay=False))
+@click.argument("resultants", type=click.Path(dir_okay=False))
+@click.argument("solver_plies", nargs=-1, required=True, type=click.Path(dir_okay=False))
+@click.option("-o", "--output", required=True, type=click.Path(dir_okay=False), help="Comparison file (.h5).")
+@click.option("--tolerance", type=float, default=1e-3, show_default=True,
+              help="Largest relative difference accepted (relative to each ply component's value scale).")
+@click.option("--view", type=click.Path(dir_okay=False), help="Also write the per-cell discrepancy (.vtu/.xdmf).")
+@click.option("--map", "map_png", type=click.Path(dir_okay=False), help="Also render the discrepancy as a PNG.")
+@click.option("--fragment", type=click.Path(dir_okay=False),
+              help="Also write the HTML section for plybridge report --compare.")
+@click.option("--json", "as_json", is_flag=True, help="Print the full summary as JSON instead.")
+def compare(definition, mesh, resultants, solver_plies, output, tolerance, view, map_png, fragment, as_json):
+    from bridge.compare_run import run_compare, verdict_lines
+
+    summary = run_compare(definition, mesh, [resultants], list(solver_plies), output, tolerance, view, map_png,
+                          fragment)
+    click.echo(json.dumps(summary, indent=1) if as_json else verdict_lines(summary), nl=as_json)
+    raise click.exceptions.Exit(0 if summary["verdict"] == "pass" else 1)

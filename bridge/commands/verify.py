@@ -1,10 +1,30 @@
-"""``plybridge verify``: placeholder until its module is written."""
+"""``plybridge verify``: run the built-in published cases (shells.published) and print the table."""
 
 from __future__ import annotations
+
+import json
 
 import click
 
 
-@click.command(help="(not yet available)")
-def verify() -> None:
-    raise click.UsageError("plybridge verify is not available yet")
+@click.command(help="Check plybridge's mechanics against published values (lamina stiffness, engineering "
+                    "constants, strength ratios, quasi-isotropic constants, the Pagano plate thin limit, "
+                    "transverse shear factors). Prints case, source, quantity, expected, computed, relative "
+                    "error and pass. Exit code 0 only when every case passes.")
+@click.option("--json", "as_json", is_flag=True, help="Print the results as a JSON list instead.")
+def verify(as_json) -> None:
+    from shells.published import PUBLISHED, check
+
+    rows = [check(case) for case in PUBLISHED]
+    if as_json:
+        click.echo(json.dumps(rows, indent=1))
+    else:
+        head = ("case", "source", "quantity", "expected", "computed", "rel_error", "pass")
+        cells = [head] + [(r["case"], r["source"], r["quantity"], f"{r['expected']:.6g}", f"{r['computed']:.6g}",
+                           f"{r['relative_error']:.2e}", "yes" if r["pass"] else "NO") for r in rows]
+        width = [max(len(c[i]) for c in cells) for i in range(len(head) - 1)]
+        for c in cells:
+            click.echo("  ".join(v.ljust(w) for v, w in zip(c, width)) + "  " + c[-1])
+        failed = sum(not r["pass"] for r in rows)
+        click.echo(f"{len(rows) - failed} of {len(rows)} published cases pass", err=True)
+    raise click.exceptions.Exit(0 if all(r["pass"] for r in rows) else 1)

@@ -37,6 +37,7 @@ def atomic_path(target: str | os.PathLike, suffix: str | None = None) -> Iterato
     fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.tmp", suffix=suffix, dir=folder)
     os.close(fd)
     tmp_path = Path(tmp)
+    os.chmod(tmp_path, 0o666 & ~_umask())   # mkstemp makes 0600; outputs get the usual permissions
     try:
         yield tmp_path
         os.replace(tmp_path, target)
@@ -44,6 +45,12 @@ def atomic_path(target: str | os.PathLike, suffix: str | None = None) -> Iterato
         with contextlib.suppress(FileNotFoundError):
             tmp_path.unlink()
         raise
+
+
+def _umask() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask
 
 
 def write_text(target: str | os.PathLike, text: str) -> None:

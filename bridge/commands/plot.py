@@ -1,10 +1,24 @@
-"""``plybridge plot``: placeholder until its module is written."""
+"""``plybridge plot``: through-thickness profiles, polar moduli and failure envelopes (PNG or SVG)."""
 
 from __future__ import annotations
 
 import click
 
 
-@click.command(help="(not yet available)")
-def plot() -> None:
-    raise click.UsageError("plybridge plot is not available yet")
+@click.command(help="Plot from the results store RESULTS into FIG (.png or .svg, by extension). "
+                    "profile: stresses and failure indices through the thickness of a cell; polar: membrane and "
+                    "flexural moduli of a laminate against direction; envelope: failure envelopes of a material "
+                    "in the s1-s2 and s2-t12 planes, with a cell's ply states.")
+@click.argument("results", type=click.Path(dir_okay=False))
+@click.option("-o", "--output", required=True, type=click.Path(dir_okay=False), help="Figure (.png or .svg).")
+@click.option("--kind", type=click.Choice(["profile", "polar", "envelope"]), default="profile", show_default=True)
+@click.option("--cell", type=int, help="Cell (0-based global index); profile default: the worst cell.")
+@click.option("--case", help="Case name (profile; default: the cell's governing case).")
+@click.option("--laminate", help="Laminate name (polar; default: the first).")
+@click.option("--material", help="Material name (envelope; default: the first).")
+@click.option("--criteria", help="Comma-separated criteria (envelope; default: those evaluated).")
+def plot(results, output, kind, cell, case, laminate, material, criteria) -> None:
+    from bridge.render_run import plot_store
+
+    plot_store(results, output, kind=kind, cell=cell, case=case, laminate=laminate, material=material,
+               criteria=criteria)

@@ -1,10 +1,26 @@
-"""``plybridge report``: placeholder until its module is written."""
+"""``plybridge report``: one self-contained HTML report of the results store."""
 
 from __future__ import annotations
 
+import os
+from pathlib import Path
+
 import click
 
+from postproc.report import CAUTION
 
-@click.command(help="(not yet available)")
-def report() -> None:
-    raise click.UsageError("plybridge report is not available yet")
+
+@click.command(help="Write the HTML report of the results store RESULTS to OUTPUT: minimum margins by zone, "
+                    "laminate, case and criterion, hot spots, maps, the worst cell through the thickness, inputs "
+                    f"and provenance, pictures embedded. {CAUTION}")
+@click.argument("results", type=click.Path(dir_okay=False))
+@click.option("-o", "--output", required=True, type=click.Path(dir_okay=False), help="Report (.html).")
+@click.option("--compare", "compare", type=click.Path(dir_okay=False),
+              help="HTML fragment written by plybridge compare, inserted as a section.")
+def report(results, output, compare) -> None:
+    os.environ.setdefault("VTK_DEFAULT_OPENGL_WINDOW", "vtkEGLRenderWindow")
+    from bridge.report_run import write_report
+
+    fragment = Path(compare).read_text(encoding="utf-8") if compare else None
+    write_report(results, output, fragment)
+    click.echo(output)

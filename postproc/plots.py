@@ -1,0 +1,183 @@
+"""Matplotlib figures: through-thickness profiles, polar moduli, failure envelopes.
+
+Figures are built as :class:`matplotlib.figure.Figure` objects on the Agg
+canvas, never through ``pyplot``: nothing is registered globally, so nothing
+stays open; callers save them with :func:`save_figure` (or ``savefig``) and drop
+them. Colours come from :mod:`postproc.colors`.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Callable, Mapping, Sequence
+
+import numpy as np
+
+from . import colors
+
+#: Through-thickness panels: (title, component indices into the six-state, names).
+PROFILE_PANELS = (("fibre direction", (0,), ("σ1",)), ("in-plane transverse and shear", (1, 2), ("σ2", "τ12")),
+                  ("transverse shear", (3, 4), ("τ13", "τ23")))
+
+
+@dataclass(frozen=True)
+class Profile:
+    """Through-thickness states of one cell in one case.
+
+    Attributes
+    ----------
+    z : ndarray (nply, 3)
+        z of the bottom, middle and top point of every ply (length), ply 1 first.
+    stress : ndarray (nply, 3, 5)
+        (σ1, σ2, τ12, τ13, τ23) at those points (force/length²), total (mechanical + fixed).
+    failure_index : mapping str → ndarray (nply, 3)
+        1/R of each criterion at those points.
+    interfaces : ndarray (nply + 1,)
+        Ply interfaces, bottom to top.
+    ply_labels : sequence of str
+        One label per ply (e.g. ``"ply 2: 45° cf"``).
+    """
+
+    z: np.ndarray
+    stress: np.ndarray
+    failure_index: Mapping[str, np.ndarray]
+    interfaces: np.ndarray
+    ply_labels: Sequence[str]
+
+
+def new_figure(width: float = 10.0, height: float = 6.0):
+    """A Figure on the Agg canvas (not registered with pyplot)."""
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
+
+    fig = Figure(figsize=(width, height), dpi=100, layout="constrained")
+    FigureCanvasAgg(fig)
+    return fig
+
+
+def save_figure(fig, path, fmt: str) -> None:
+    """Save ``fig`` to ``path`` (a path or a binary file object) as ``png`` or ``svg``."""
+    fig.savefig(path, format=fmt, dpi=110, facecolor="white")
+
+
+def _ply_lines(ax, interfaces: np.ndarray) -> None:
+    for zk in interfaces:
+        ax.axhline(zk, color=colors.EDGE, lw=0.6, ls=":")
+
+
+def profile_figure(profile: Profile, *, title: str, stress_unit: str):
+    """Through-thickness σ1; σ2, τ12; τ13, τ23 and the failure index of every criterion against z.
+
+    Ply boundaries are dotted lines; each ply is labelled (angle, material) beside the last panel.
+    """
+    fig = new_figure(12.0, 6.0)
+    axes = fig.subplots(1, len(PROFILE_PANELS) + 1, sharey=True)
+    z = np.asarray(profile.z, dtype=float)
+    pal = colors.palette(8)
+    for ax, (name, comps, symbols) in zip(axes, PROFILE_PANELS):
+        for j, (c, sym) in enumerate(zip(comps, symbols)):
+            for k in range(z.shape[0]):
+                ax.plot(profile.stress[k, :, c], z[k], color=pal[j], lw=1.8, label=sym if k == 0 else None)
+        ax.axvline(0.0, color="black", lw=0.6)
+        ax.set_title(name, fontsize=10)
+        ax.set_xlabel(f"stress [{stress_unit}]")
+        ax.legend(fontsize=8, loc="best")
+        _ply_lines(ax, profile.interfaces)
+    ax = axes[-1]
+    for j, (crit, fi) in enumerate(profile.failure_index.items()):
+        for k in range(z.shape[0]):
+            ax.plot(np.asarray(fi)[k], z[k], color=pal[(j + 3) % len(pal)], lw=1.8, marker="o", ms=3,
+                    label=crit if k == 0 else None)
+    ax.axvline(1.0, color=colors.BALANCE[0], lw=1.0, ls="--", label="failure (1)")
+    ax.set_title("failure index 1/R", fontsize=10)
+    ax.set_xlabel("failure index [-]")
+    ax.legend(fontsize=8, loc="best")
+    _ply_lines(ax, profile.interfaces)
+    mids = 0.5 * (np.asarray(profile.interfaces[:-1]) + np.asarray(profile.interfaces[1:]))
+    for zm, label in zip(mids, profile.ply_labels):
+        ax.annotate(label, xy=(1.02, zm), xycoords=("axes fraction", "data"), fontsize=8, va="center")
+    axes[0].set_ylabel("z [length]")
+    fig.suptitle(title, fontsize=11)
+    return fig
+
+
+def polar_figure(angles_deg: np.ndarray, membrane: np.ndarray, flexural: np.ndarray, *, title: str,
+                 unit: str):
+    """Membrane and flexural Young's moduli against direction (degrees from laminate x), on polar axes."""
+    fig = new_figure(6.5, 6.0)
+    ax = fig.add_subplot(projection="polar")
+    t = np.radians(np.asarray(angles_deg, dtype=float))
+    pal = colors.palette(2)
+    ax.plot(t, membrane, color=pal[0], lw=2.0, label="membrane E(θ)")
+    ax.plot(t, flexural, color=pal[1], lw=2.0, ls="--", label="flexural E(θ)")
+    ax.set_title(f"{title}\nmoduli [{unit}] against direction from laminate x", fontsize=10)
+    ax.legend(loc="lower left", bbox_to_anchor=(0.0, -0.12), fontsize=8, ncols=2)
+    return fig
+
+
+def trace_envelope(ratio: Callable, params: np.ndarray, plane: tuple[int, int], n: int = 361) -> np.ndarray:
+    """Failure envelope of one criterion in a stress plane, traced by scanning load directions.
+
+    Along each direction a = (sx·cos t, sy·sin t) of the plane (sx, sy: the mean
+    axis intercepts, so the scan is even on an elongated envelope) (components ``plane`` of
+    the six-state (σ1, σ2, τ12, τ13, τ23, σ3), every other component zero, no
+    fixed stress) the strength ratio R = ``ratio(sm, sf, params)[0]`` puts the
+    envelope point at R·a.
+
+    Returns
+    -------
+    ndarray (n, 2)
+        Envelope points (NaN where the direction never fails).
+    """
+    sf = np.zeros(6)
+
+    def point(a: float, b: float) -> np.ndarray:
+        sm = np.zeros(6)
+        sm[plane[0]], sm[plane[1]] = a, b
+        r = float(ratio(sm, sf, params)[0])
+        return np.array([r * a, r * b]) if np.isfinite(r) else np.full(2, np.nan)
+
+    # Scan evenly in the plane scaled by the axis intercepts, so a long thin envelope is sampled evenly.
+    axes = np.array([point(1, 0)[0], -point(-1, 0)[0], point(0, 1)[1], -point(0, -1)[1]])
+    finite = axes[np.isfinite(axes) & (axes > 0)]
+    default = float(finite.mean()) if finite.size else 1.0
+    sx = np.nanmean([v if np.isfinite(v) and v > 0 else default for v in axes[:2]])
+    sy = np.nanmean([v if np.isfinite(v) and v > 0 else default for v in axes[2:]])
+    t = np.linspace(0.0, 2.0 * np.pi, n)
+    return np.array([point(sx * np.cos(a), sy * np.sin(a)) for a in t])
+
+
+ENVELOPE_PLANES = (((0, 1), "σ1", "σ2"), ((1, 2), "σ2", "τ12"))
+
+
+def envelope_figure(curves: Mapping[str, Sequence[np.ndarray]], states: np.ndarray | None, *, title: str,
+                    unit: str, states_label: str = ""):
+    """Failure envelopes in the σ1–σ2 and σ2–τ12 planes, with ply stress states overlaid.
+
+    Parameters
+    ----------
+    curves : mapping criterion → (points in σ1–σ2, points in σ2–τ12)
+        From :func:`trace_envelope` with :data:`ENVELOPE_PLANES`.
+    states : ndarray (k, 6) or None
+        Stress states (σ1, σ2, τ12, τ13, τ23, σ3) to overlay as points.
+    """
+    fig = new_figure(12.0, 5.5)
+    axes = fig.subplots(1, 2)
+    pal = colors.palette(max(len(curves), 1))
+    for p, (ax, (plane, xs, ys)) in enumerate(zip(axes, ENVELOPE_PLANES)):
+        for j, (crit, pair) in enumerate(curves.items()):
+            pts = np.asarray(pair[p])
+            ax.plot(pts[:, 0], pts[:, 1], color=pal[j], lw=1.8, label=crit)
+        if states is not None and len(states):
+            s = np.asarray(states)
+            ax.scatter(s[:, plane[0]], s[:, plane[1]], s=14, color=colors.MARK, edgecolor="black", lw=0.4,
+                       zorder=5, label=states_label or "ply states")
+        ax.axhline(0.0, color="black", lw=0.6)
+        ax.axvline(0.0, color="black", lw=0.6)
+        ax.set_xlabel(f"{xs} [{unit}]")
+        ax.set_ylabel(f"{ys} [{unit}]")
+        ax.set_title(f"{xs}–{ys} plane (other components zero)", fontsize=10)
+        ax.grid(True, lw=0.3)
+        ax.legend(fontsize=8, loc="best")
+    fig.suptitle(title, fontsize=11)
+    return fig

@@ -32,11 +32,11 @@ def assign(definition: str, mesh: str, output: str) -> None:
         raise InputError(f"--output {output}: write a .vtu or .xdmf file")
     defn = load_definition(definition)
     m = read_mesh(mesh)
-    for note in m.notes:
-        click.echo(f"note: {note}", err=True)
     model = build_model(defn, m)
     fields = section_fields(model)
     write_text(sections_path(output), section_table_json(model))
     write_mesh(output, m, fields)
+    for note in m.notes:
+        click.echo(f"note: {note}", err=True)
     counts = ", ".join(f"{k}: {v}" for k, v in describe(model).items())
     click.echo(f"assigned {model.n_cells} cells ({counts}); wrote {output} and {sections_path(output)}", err=True)

@@ -15,7 +15,7 @@ from collections.abc import Iterable, Mapping
 import numpy as np
 
 from ..errors import DefinitionError, MaterialError
-from .base import Criterion, evaluate, evaluate_block, failure_index
+from .base import Criterion, evaluate_block, failure_index
 from .core_crushing import CoreCrushing
 from .core_shear import CoreShear
 from .dimpling import Dimpling
@@ -100,6 +100,8 @@ def check_requirements(criteria: Iterable[str | type[Criterion]], materials: Map
                 raise MaterialError(f"material '{mat}' lacks {key} needed by criterion '{crit.name}'; "
                                     f"add {key} to [materials.{mat}]")
 
+
+from .dispatch import evaluate  # noqa: E402  (needs CRITERIA above)
 
 __all__ = ["CRITERIA", "DEFAULT", "NAMES", "Criterion", "by_name", "code", "check_requirements",
            "evaluate", "evaluate_block", "failure_index"]

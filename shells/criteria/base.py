@@ -305,9 +305,13 @@ def search_next(st, f):
 
 # --------------------------------------------------------------------------- block driver
 
-@njit(cache=True, parallel=True)
+@njit(parallel=True)
 def evaluate_block(ratio_fn, point_mask, sm, sf, pidx, params, out_sr, out_mode):
     """Strength ratios of one criterion over a block of cells × cases × plies × points.
+
+    Not cached: numba's cache cannot hold specialisations on a function argument
+    (they recompile in every process and saving them fails intermittently). The
+    cached driver by registry code is :func:`shells.criteria.dispatch.evaluate_block_by_code`.
 
     Parameters
     ----------
@@ -346,8 +350,8 @@ def evaluate_block(ratio_fn, point_mask, sm, sf, pidx, params, out_sr, out_mode)
                         out_mode[c, j, k, q] = m
 
 
-def evaluate(criterion, sm, sf, pidx, params):
-    """Allocate the outputs and run :func:`evaluate_block` for ``criterion``.
+def evaluate(criterion, sm, sf, pidx, params, block=None):
+    """Allocate the outputs and run :func:`evaluate_block` (or ``block``) for ``criterion``.
 
     Parameters
     ----------
@@ -356,6 +360,9 @@ def evaluate(criterion, sm, sf, pidx, params):
     sm, sf, pidx, params : array_like
         As in :func:`evaluate_block`; copied only when not already contiguous
         of the right dtype (never modified).
+    block : callable, optional
+        ``block(mask, sm, sf, pidx, params, out_sr, out_mode)`` to run instead of
+        ``evaluate_block`` with ``criterion.ratio``.
 
     Returns
     -------
@@ -380,5 +387,8 @@ def evaluate(criterion, sm, sf, pidx, params):
     mask[list(criterion.points)] = True
     out_sr = np.empty(sm.shape[:4])
     out_mode = np.empty(sm.shape[:4], dtype=np.int8)
-    evaluate_block(criterion.ratio, mask, sm, sf, pidx, params, out_sr, out_mode)
+    if block is None:
+        evaluate_block(criterion.ratio, mask, sm, sf, pidx, params, out_sr, out_mode)
+    else:
+        block(mask, sm, sf, pidx, params, out_sr, out_mode)
     return out_sr, out_mode

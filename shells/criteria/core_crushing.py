@@ -18,12 +18,10 @@ class CoreCrushing(Criterion):
     title = "Core flatwise crushing"
     modes = ("flatwise compression",)
     requires = {P.KIND_CORE: ("Zc",)}
-    points = (0, 1, 2)
 
     @staticmethod
     @njit(cache=True)
     def ratio(sm, sf, p):
-        """Strength ratio and mode (index in ``modes``) of ``sf + R·sm``; see the module docstring."""
         if p[P.KIND] != P.KIND_CORE:
             return INF, -1
         r = linear_ratio(sf[S3], sm[S3], INF, p[P.ZC])

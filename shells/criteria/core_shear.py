@@ -36,12 +36,10 @@ class CoreShear(Criterion):
     title = "Core shear"
     modes = ("ribbon shear (13)", "transverse shear (23)")
     requires = {P.KIND_CORE: ("core_S13", "core_S23")}
-    points = (0, 1, 2)
 
     @staticmethod
     @njit(cache=True)
     def ratio(sm, sf, p):
-        """Strength ratio and mode (index in ``modes``) of ``sf + R·sm``; see the module docstring."""
         if p[P.KIND] != P.KIND_CORE:
             return INF, -1
         return shear_pair_ratio(sm, sf, p[P.CORE_S13], p[P.CORE_S23])

@@ -21,12 +21,10 @@ class Dimpling(Criterion):
     title = "Intracell dimpling"
     modes = ("intracell dimpling",)
     requires = {P.KIND_PLY: (), P.KIND_ISOTROPIC: ()}
-    points = (0, 1, 2)
 
     @staticmethod
     @njit(cache=True)
     def ratio(sm, sf, p):
-        """Strength ratio and mode (index in ``modes``) of ``sf + R·sm``; see the module docstring."""
         if p[P.KIND] == P.KIND_CORE:
             return INF, -1
         return compressive_principal_ratio(sm, sf, p[P.DIMPLING])

@@ -84,12 +84,10 @@ class Hashin(Criterion):
     title = "Hashin (1980)"
     modes = PLY_MODES[:4]
     requires = {P.KIND_PLY: ("Xt", "Xc", "Yt", "Yc", "S12")}
-    points = (0, 1, 2)
 
     @staticmethod
     @njit(cache=True)
     def ratio(sm, sf, p):
-        """Strength ratio and mode (index in ``modes``) of ``sf + R·sm``; see the module docstring."""
         if p[P.KIND] != P.KIND_PLY:
             return INF, -1
         s23 = p[P.S23]

@@ -21,12 +21,10 @@ class Hoffman(Criterion):
     title = "Hoffman"
     modes = PLY_MODES
     requires = {P.KIND_PLY: ("Xt", "Xc", "Yt", "Yc", "S12")}
-    points = (0, 1, 2)
 
     @staticmethod
     @njit(cache=True)
     def ratio(sm, sf, p):
-        """Strength ratio and mode (index in ``modes``) of ``sf + R·sm``; see the module docstring."""
         if p[P.KIND] != P.KIND_PLY:
             return INF, -1
         xt, xc, yt, yc, s = p[P.XT], p[P.XC], p[P.YT], p[P.YC], p[P.S12]

@@ -28,7 +28,6 @@ class Interlaminar(Criterion):
     @staticmethod
     @njit(cache=True)
     def ratio(sm, sf, p):
-        """Strength ratio and mode (index in ``modes``) of ``sf + R·sm``; see the module docstring."""
         kind = p[P.KIND]
         if kind != P.KIND_PLY and kind != P.KIND_ISOTROPIC:
             return INF, -1

@@ -129,12 +129,10 @@ class LaRC03(Criterion):
     title = "LaRC03 (Dávila, Camanho & Rose 2005)"
     modes = PLY_MODES[:4]
     requires = {P.KIND_PLY: ("Xt", "Xc", "Yc", "S12", "G12", "nu12", "alpha0", "YT_is", "S12_is")}
-    points = (0, 1, 2)
 
     @staticmethod
     @njit(cache=True)
     def ratio(sm, sf, p):
-        """Strength ratio and mode (index in ``modes``) of ``sf + R·sm``; see the module docstring."""
         if p[P.KIND] != P.KIND_PLY:
             return INF, -1
         st = search_start(sm[S1] >= 0.0 and not has_fixed(sf))

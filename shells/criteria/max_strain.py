@@ -22,12 +22,10 @@ class MaxStrain(Criterion):
     title = "Maximum strain"
     modes = PLY_MODES
     requires = {P.KIND_PLY: ("E1", "E2", "G12", "nu12", "e1t", "e1c", "e2t", "e2c", "g12u")}
-    points = (0, 1, 2)
 
     @staticmethod
     @njit(cache=True)
     def ratio(sm, sf, p):
-        """Strength ratio and mode (index in ``modes``) of ``sf + R·sm``; see the module docstring."""
         if p[P.KIND] != P.KIND_PLY:
             return INF, -1
         e1, e2, g12, nu12 = p[P.E1], p[P.E2], p[P.G12], p[P.NU12]

@@ -42,12 +42,10 @@ class MaxStress(Criterion):
     modes = PLY_MODES
     requires = {P.KIND_PLY: ("Xt", "Xc", "Yt", "Yc", "S12"),
                 P.KIND_ISOTROPIC: ("Xt", "Xc", "S12")}
-    points = (0, 1, 2)
 
     @staticmethod
     @njit(cache=True)
     def ratio(sm, sf, p):
-        """Strength ratio and mode (index in ``modes``) of ``sf + R·sm``; see the module docstring."""
         kind = p[P.KIND]
         if kind != P.KIND_PLY and kind != P.KIND_ISOTROPIC:
             return INF, -1

@@ -72,12 +72,10 @@ class Puck(Criterion):
     modes = ("fibre tension", "fibre compression", "inter-fibre mode A", "inter-fibre mode B",
              "inter-fibre mode C")
     requires = {P.KIND_PLY: ("Xt", "Xc", "Yt", "Yc", "S12", "p_tpl", "p_cpl")}
-    points = (0, 1, 2)
 
     @staticmethod
     @njit(cache=True)
     def ratio(sm, sf, p):
-        """Strength ratio and mode (index in ``modes``) of ``sf + R·sm``; see the module docstring."""
         if p[P.KIND] != P.KIND_PLY:
             return INF, -1
         st = search_start(True and not has_fixed(sf))

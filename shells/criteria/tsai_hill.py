@@ -36,12 +36,10 @@ class TsaiHill(Criterion):
     title = "Tsai-Hill"
     modes = PLY_MODES
     requires = {P.KIND_PLY: ("Xt", "Xc", "Yt", "Yc", "S12")}
-    points = (0, 1, 2)
 
     @staticmethod
     @njit(cache=True)
     def ratio(sm, sf, p):
-        """Strength ratio and mode (index in ``modes``) of ``sf + R·sm``; see the module docstring."""
         if p[P.KIND] != P.KIND_PLY:
             return INF, -1
         b1 = break_point(sf[S1], sm[S1])

@@ -33,12 +33,10 @@ class VonMises(Criterion):
     title = "Von Mises equivalent stress"
     modes = ("yield",)
     requires = {P.KIND_ISOTROPIC: ("yield_strength",)}
-    points = (0, 1, 2)
 
     @staticmethod
     @njit(cache=True)
     def ratio(sm, sf, p):
-        """Strength ratio and mode (index in ``modes``) of ``sf + R·sm``; see the module docstring."""
         if p[P.KIND] != P.KIND_ISOTROPIC:
             return INF, -1
         a, b, c = _vm_square_coeffs(sm, sf)

@@ -46,12 +46,10 @@ class Wrinkling(Criterion):
     title = "Face wrinkling"
     modes = ("face wrinkling",)
     requires = {P.KIND_PLY: (), P.KIND_ISOTROPIC: ()}
-    points = (0, 1, 2)
 
     @staticmethod
     @njit(cache=True)
     def ratio(sm, sf, p):
-        """Strength ratio and mode (index in ``modes``) of ``sf + R·sm``; see the module docstring."""
         if p[P.KIND] == P.KIND_CORE:
             return INF, -1
         return compressive_principal_ratio(sm, sf, p[P.WRINKLING])

@@ -42,6 +42,11 @@ class Field:
     bar_title: str
     mark: int | None
     mark_label: str | None
+    cap: float | None = None
+
+
+#: Margins above this take the end colour of the map, so the low margins keep the colour range.
+MARGIN_CAP = 2.0
 
 
 class FieldError(InputError):
@@ -164,7 +169,10 @@ def select_field(st: StoreReader, field: str = "margin", ply: str | int = "envel
         label = None if worst is None else f"{symbol} {values[worst]:.3g} (cell {worst})"
         what = "Margin of safety" if field == "margin" else "Strength ratio"
         kind = "diverging" if field == "margin" else "sequential"
-        return Field(field, values, kind, None, f"{what}: {where}, all criteria", f"{symbol} [-]", worst, label)
+        cap = MARGIN_CAP if field == "margin" and np.nanmax(np.where(finite, values, -np.inf), initial=0) > \
+            MARGIN_CAP else None
+        bar = f"{symbol} [-]" + (f" (>= {MARGIN_CAP:g} at top)" if cap else "")
+        return Field(field, values, kind, None, f"{what}: {where}, all criteria", bar, worst, label, cap)
     if c is not None:
         raise FieldError(f"--field {field} is stored for the envelope of cases only; use --case envelope", st.path)
     src = "cells" if k is None else "envelope"
@@ -206,9 +214,9 @@ def draw_store_field(st: StoreReader, field: str = "margin", ply: str | int = "e
 
     f = select_field(st, field, ply, case)
     points, blocks = st.mesh()
-    title = f"{st.meta('title') or Path(st.path).stem}: {f.title}"
+    title = f"{st.meta('title') or Path(st.path).stem}\n{f.title}"
     pic = draw_field(points, blocks, f.values, kind=f.kind, labels=f.labels, title=title, bar_title=f.bar_title,
-                     views=tuple(views), size=tuple(size), mark=f.mark, mark_label=f.mark_label)
+                     views=tuple(views), size=tuple(size), mark=f.mark, mark_label=f.mark_label, cap=f.cap)
     return f, pic
 
 

@@ -59,16 +59,20 @@ def balance_map():
     return LinearSegmentedColormap.from_list("plybridge-balance", list(BALANCE), N=256)
 
 
-def diverging_limits(values: np.ndarray) -> tuple[float, float]:
+def diverging_limits(values: np.ndarray, cap: float | None = None) -> tuple[float, float]:
     """Colour limits of a diverging field: the finite range widened to include zero.
 
     A field that is all positive gets ``(0, max)`` (zero at the pale end), all
-    negative ``(min, 0)``; an all-zero or empty field ``(-1, 1)``.
+    negative ``(min, 0)``; an all-zero or empty field ``(-1, 1)``. With ``cap``
+    the upper limit is at most ``cap`` (larger values take the end colour), so
+    that a few very large margins do not wash out the low ones a reviewer looks for.
     """
     v = np.asarray(values, dtype=float)
     v = v[np.isfinite(v)]
     lo = min(float(v.min()), 0.0) if v.size else 0.0
     hi = max(float(v.max()), 0.0) if v.size else 0.0
+    if cap is not None:
+        hi = min(hi, cap)
     if lo == hi:
         return -1.0, 1.0
     return lo, hi

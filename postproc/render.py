@@ -137,12 +137,12 @@ def _field_values(kind: str, values, labels) -> np.ndarray:
     return v
 
 
-def _colour_args(kind: str, v: np.ndarray, labels) -> tuple[dict, tuple | None]:
+def _colour_args(kind: str, v: np.ndarray, labels, cap: float | None = None) -> tuple[dict, tuple | None]:
     if kind == "categorical":
         n = len(labels)
         return dict(cmap=colors.categorical_lut(n), clim=(-0.5, n - 0.5), n_colors=n), None
     if kind == "diverging":
-        lo, hi = colors.diverging_limits(v)
+        lo, hi = colors.diverging_limits(v, cap)
         return dict(cmap=colors.diverging_lut(lo, hi), clim=(lo, hi)), (lo, hi)
     finite = v[np.isfinite(v)]
     lo, hi = (float(finite.min()), float(finite.max())) if finite.size else (0.0, 1.0)
@@ -203,7 +203,7 @@ def _legend(plotter, entries, viewport_px: float, font: int) -> None:
 def draw_field(points: np.ndarray, blocks: Sequence[tuple[str, np.ndarray]], values: np.ndarray, *,
                kind: str, labels: Sequence[str] | None = None, title: str, bar_title: str,
                views: Sequence[str | Camera] = ("iso",), size: tuple[int, int] = (1200, 900),
-               mark: int | None = None, mark_label: str | None = None) -> Picture:
+               mark: int | None = None, mark_label: str | None = None, cap: float | None = None) -> Picture:
     """Render a cell field and report what was drawn (see :func:`render_field` for the parameters)."""
     import pyvista as pv
 
@@ -212,7 +212,7 @@ def draw_field(points: np.ndarray, blocks: Sequence[tuple[str, np.ndarray]], val
     if len(v) != grid.n_cells:
         raise ValueError(f"{len(v)} values for {grid.n_cells} cells")
     grid.cell_data[bar_title] = v
-    args, limits = _colour_args(kind, v, labels)
+    args, limits = _colour_args(kind, v, labels, cap)
     entries = legend_entries(kind, v, labels, mark_label if mark is not None else None)
     centres = cell_centres(points, blocks)
     width, height = int(size[0]), int(size[1])
@@ -255,7 +255,7 @@ def draw_field(points: np.ndarray, blocks: Sequence[tuple[str, np.ndarray]], val
 def render_field(points: np.ndarray, blocks: Sequence[tuple[str, np.ndarray]], values: np.ndarray, *,
                  kind: str, labels: Sequence[str] | None = None, title: str, bar_title: str,
                  views: Sequence[str | Camera] = ("iso",), size: tuple[int, int] = (1200, 900),
-                 mark: int | None = None, mark_label: str | None = None) -> np.ndarray:
+                 mark: int | None = None, mark_label: str | None = None, cap: float | None = None) -> np.ndarray:
     """Render one value per cell over a shell mesh, offscreen, and return the RGB picture.
 
     Parameters
@@ -289,10 +289,12 @@ def render_field(points: np.ndarray, blocks: Sequence[tuple[str, np.ndarray]], v
         A cell (global index) to mark with a dot and ``mark_label``.
     mark_label : str, optional
         Text beside the mark (default ``"cell N"``).
+    cap : float, optional
+        Upper colour limit of a ``diverging`` field (larger values take the end colour).
 
     Returns
     -------
     ndarray (height, width, 3) uint8
     """
     return draw_field(points, blocks, values, kind=kind, labels=labels, title=title, bar_title=bar_title,
-                      views=views, size=size, mark=mark, mark_label=mark_label).image
+                      views=views, size=size, mark=mark, mark_label=mark_label, cap=cap).image

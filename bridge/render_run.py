@@ -207,6 +207,27 @@ def png_bytes(image: np.ndarray) -> bytes:
     return buf.getvalue()
 
 
+#: Named view looking at the marked (worst) cell along its normal, from the side the normal points to.
+WORST_VIEW = "worst"
+
+
+def worst_view(st: StoreReader, points: np.ndarray, blocks, cell: int | None):
+    """Explicit camera (position, focal point, view-up) facing ``cell``; the iso view when there is none."""
+    if cell is None:
+        return "iso"
+    start = 0
+    for _, c in blocks:
+        if cell < start + len(c):
+            centre = points[c[cell - start]].mean(axis=0)
+            break
+        start += len(c)
+    n = np.asarray(st.h5["model/normal"][cell], dtype=float)
+    span = float(np.linalg.norm(points.max(axis=0) - points.min(axis=0))) or 1.0
+    up = np.array([0.0, 0.0, 1.0]) if abs(n[2]) < 0.9 else np.array([1.0, 0.0, 0.0])
+    up = up - n * (up @ n)
+    return (tuple(centre + 2.2 * span * n), tuple(centre), tuple(up / np.linalg.norm(up)))
+
+
 def draw_store_field(st: StoreReader, field: str = "margin", ply: str | int = "envelope", case: str = "envelope",
                      views=("iso",), size=(1200, 900)):
     """(Field, postproc.render.Picture) of a field of an open store."""
@@ -214,6 +235,7 @@ def draw_store_field(st: StoreReader, field: str = "margin", ply: str | int = "e
 
     f = select_field(st, field, ply, case)
     points, blocks = st.mesh()
+    views = [worst_view(st, points, blocks, f.mark) if v == WORST_VIEW else v for v in views]
     title = f"{st.meta('title') or Path(st.path).stem}\n{f.title}"
     pic = draw_field(points, blocks, f.values, kind=f.kind, labels=f.labels, title=title, bar_title=f.bar_title,
                      views=tuple(views), size=tuple(size), mark=f.mark, mark_label=f.mark_label, cap=f.cap)

@@ -15,7 +15,7 @@ from .store import StoreReader
 REPORT_MAPS = (("margin", "Margin of safety, envelope of cases, critical ply"),
                ("critical-ply", "Critical ply (the ply with the lowest margin)"),
                ("mode", "Governing criterion and failure mode"))
-MAP_SIZE = (900, 650)
+MAP_SIZE = (1400, 650)
 
 
 class CompareFragmentError(InputError):
@@ -27,7 +27,7 @@ def _figures(st: StoreReader) -> list[tuple[str, bytes]]:
 
     out = []
     for field, caption in REPORT_MAPS:
-        f, pic = draw_store_field(st, field, views=("iso",), size=MAP_SIZE)
+        f, pic = draw_store_field(st, field, views=("iso", "worst"), size=MAP_SIZE)
         out.append((caption, png_bytes(pic.image)))
     fig = profile_figure_of(st)
     buf = io.BytesIO()

@@ -9,7 +9,7 @@ import click
 
 from shells.errors import InputError
 
-VIEW_NAMES = ("iso", "top", "front", "side", "+normal", "-normal")
+VIEW_NAMES = ("iso", "top", "front", "side", "+normal", "-normal", "worst")
 FIELD_HELP = ("margin, strength-ratio, critical-ply, criterion, mode, case, or a ply component "
               "stress:s1|s2|s12|s13|s23, strain:e1|e2|e12 (needs recover --store plies)")
 
@@ -46,7 +46,7 @@ def parse_size(text: str) -> tuple[int, int]:
               help="Ply number (1 = bottom) or 'envelope' (the critical ply of each cell).")
 @click.option("--case", default="envelope", show_default=True, help="Case name or 'envelope' (governing case).")
 @click.option("--view", "views", multiple=True, type=click.Choice(VIEW_NAMES),
-              help="View; repeat for several views side by side (default iso).")
+              help="View; repeat for several views side by side (default iso); worst: facing the worst cell along its normal.")
 @click.option("--camera", "cameras", multiple=True, help="Explicit camera 'px,py,pz;fx,fy,fz;ux,uy,uz' "
               "(position; focal point; view-up); repeatable, drawn after the --view views.")
 @click.option("--size", default="1200x900", show_default=True, help="Picture size WIDTHxHEIGHT in pixels.")

@@ -145,3 +145,21 @@ def parse_cases(cases: Any, combinations: Any, units: UnitSystem) -> Cases:
         _check_kind(values, where)
         combos[name] = values
     return Cases(parsed, combos)
+
+
+def combine_steps(weights: np.ndarray, steps: np.ndarray) -> np.ndarray:
+    """Cases as linear sums of input steps: ``out[j] = Σ_s weights[j, s] · steps[s]``.
+
+    Only the steps a case uses enter its sum, so a NaN in one step never spreads
+    into cases that do not use it (0 · NaN would).
+
+    Parameters
+    ----------
+    weights : (ncase, nstep)
+    steps : (nstep, ncell, 8)
+    """
+    out = np.zeros((weights.shape[0],) + steps.shape[1:])
+    for j, row in enumerate(weights):
+        for s in np.flatnonzero(row):
+            out[j] += row[s] * steps[s]
+    return out

@@ -37,7 +37,7 @@ class _Group(click.Group):
 
 
 def _fail(message: str, code: int = 2) -> None:
-    click.echo(f"plybridge: error: {message}", err=True)
+    click.echo(f"plybridge: error: {' '.join(message.split())}", err=True)
     sys.exit(code)
 
 

@@ -228,15 +228,22 @@ def read_with_meshio(path: str, file_format: str | None = None) -> ShellMesh:
     """
     import meshio
 
+    import contextlib
+    import io
+
     src = str(path)
+    chatter = io.StringIO()
     try:
-        m = meshio.read(src, file_format=file_format)
+        # meshio prints and calls sys.exit on some unreadable files: keep both inside.
+        with contextlib.redirect_stdout(chatter), contextlib.redirect_stderr(chatter):
+            m = meshio.read(src, file_format=file_format)
     except FileNotFoundError:
         raise MeshError("file not found; check the path", src) from None
-    except Exception as exc:  # meshio raises ReadError, ValueError, KeyError, ...
+    except (Exception, SystemExit) as exc:  # meshio raises ReadError, ValueError, KeyError, SystemExit ...
+        reason = " ".join((str(exc) if not isinstance(exc, SystemExit) else chatter.getvalue()).split())[:300]
         raise MeshError(f"cannot read as {file_format or 'a meshio format'}: "
-                        f"{type(exc).__name__}: {exc}; check the file is complete and of that format",
-                        src) from exc
+                        f"{type(exc).__name__}: {reason or 'no reason given'}; check the file is complete and "
+                        "of that format", src) from None
     return from_meshio(m, src)
 
 

@@ -8,23 +8,27 @@ envelope rows written to the store before the next block is read.
 
 from __future__ import annotations
 
+import contextlib
 import datetime
 import hashlib
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Callable, Sequence
+from typing import Callable, Iterator, Sequence
 
 import numpy as np
 
 from shells.criteria import CRITERIA, by_name, check_requirements
 from shells.errors import InputError, ResultantsError
 
-from .cases import Case
+from .cases import Case, combine_steps
 from .definition import Definition, load_definition
 from .formats import read_mesh
 from .model import Model, build_model
 from .resultant_settings import resultant_options
-from .resultants import _HDF5_SIGNATURE, H5_DATASET, apply_settings, read_resultants, to_element_frame
+from .resume import companions
+from .store import CHUNK_CELLS, LAYOUT_VERSION, StoreLayout, mesh_group
+from .distributed import BlockContext, BlockSpec, read_h5_block
+from .resultants import _HDF5_SIGNATURE, H5_DATASET, _h5_source, read_resultants
 
 #: Target size of the resultants of one block (bytes): bounds the memory of a run.
 BLOCK_BYTES = 32 * 2 ** 20
@@ -39,23 +43,28 @@ def sha256_of(path: str | Path) -> str:
 
 
 class ResultantSource:
-    """Input steps of the resultants, read by cell ranges, in the element frame and definition units."""
+    """Input steps of the resultants, read by cell ranges, in the element frame and definition units.
+
+    An HDF5 ``/resultants`` file is streamed block by block (tasks open it by
+    path); the other formats are read whole, once, and sliced.
+    """
 
     def __init__(self, paths: Sequence[str], model: Model):
         self.paths = [str(p) for p in paths]
         fields, self.settings = resultant_options(model.defn)
         self.model = model
-        self._h5 = None
+        self.h5_path: str | None = None
+        self._data = None
         first = self.paths[0]
         head = Path(first).read_bytes()[:8] if Path(first).is_file() else b""
         if len(self.paths) == 1 and head.startswith(_HDF5_SIGNATURE) and self._is_plain_h5(first):
+            if self.settings.frame == "vectors":
+                raise ResultantsError("frame = 'vectors' is not available for HDF5 resultants; give the "
+                                      "resultants in the element frame or laminate axes ([resultants] frame)", first)
             # Validates shape, cell count and case names.
-            from .resultants import _h5_source
-
             names, _, _ = _h5_source(first, model.n_cells)
             self.names = tuple(names)
-            self._h5 = first
-            self._data = None
+            self.h5_path = first
         else:
             src = self.paths[0] if len(self.paths) == 1 else self.paths
             self.names, self._data = read_resultants(
@@ -66,8 +75,12 @@ class ResultantSource:
     def _is_plain_h5(path: str) -> bool:
         import h5py
 
-        with h5py.File(path, "r", locking=False) as h5:
-            return H5_DATASET in h5
+        try:
+            with h5py.File(path, "r", locking=False) as h5:
+                return H5_DATASET in h5
+        except OSError:
+            raise ResultantsError("an HDF5 file that cannot be opened (truncated or damaged); write it again",
+                                  path) from None
 
     def read(self, start: int, stop: int) -> np.ndarray:
         """(n_steps, stop − start, 8) resultants of cells start … stop − 1."""
@@ -77,16 +90,11 @@ class ResultantSource:
         """(n_steps, ncell, 8) resultants of a cell slice or of increasing cell ids."""
         if self._data is not None:
             return self._data[:, cells]
-        import h5py
+        return read_h5_block(self.h5_path, cells, self.settings, self.model.phi[cells])
 
-        if self.settings.frame == "vectors":
-            raise ResultantsError("frame = 'vectors' is not available for HDF5 resultants; give the "
-                                  "resultants in the element frame or laminate axes", self._h5)
-        with h5py.File(self._h5, "r", locking=False) as h5:
-            raw = h5[H5_DATASET][:, cells, :]
-        m = self.model
-        return to_element_frame(apply_settings(raw, self.settings), self.settings.frame, m.phi[cells],
-                                (m.frame_x[cells], m.frame_y[cells], m.normal[cells]))
+    def block_steps(self, start: int, stop: int) -> np.ndarray | None:
+        """What a block task needs besides the file path: the steps when there is no HDF5 file to open."""
+        return None if self.h5_path is not None else self._data[:, start:stop]
 
 
 @dataclass(frozen=True)
@@ -115,7 +123,10 @@ class CasePlan:
 
 
 def plan_cases(defn: Definition, model: Model, step_names: tuple[str, ...]) -> CasePlan:
-    cases = defn.cases.resolve(step_names)
+    try:
+        cases = defn.cases.resolve(step_names)
+    except InputError as err:
+        raise err.within(defn.source) from None
     W = np.zeros((len(cases), len(step_names)))
     for j, c in enumerate(cases):
         for idx, f in c.factors:
@@ -137,22 +148,46 @@ def criteria_of(defn: Definition, model: Model) -> tuple[type, ...]:
     return crit
 
 
+#: Largest --block-cells.
+MAX_BLOCK_CELLS = 2 ** 22
+
+
 def block_size(n_steps: int, n_cases: int, max_plies: int, store_plies: bool) -> int:
+    """Cells per block: about BLOCK_BYTES of block arrays, a whole number of store chunks."""
     per_cell = 8 * 8 * (n_steps + n_cases) + (max_plies * 3 * 8 * 8 * n_cases if store_plies else 0)
-    return int(max(256, min(65536, BLOCK_BYTES // max(per_cell, 1))))
+    cells = int(max(256, min(65536, BLOCK_BYTES // max(per_cell, 1))))
+    return cells // CHUNK_CELLS * CHUNK_CELLS if cells >= CHUNK_CELLS else cells
 
 
-def provenance(defn: Definition, paths: dict[str, str]) -> dict:
+def check_block_cells(block_cells: int | None) -> None:
+    if block_cells is not None and not 1 <= block_cells <= MAX_BLOCK_CELLS:
+        raise InputError(f"--block-cells {block_cells}: give a number of cells from 1 to {MAX_BLOCK_CELLS}")
+
+
+def input_digests(paths: dict[str, str]) -> dict[str, dict]:
+    """role → {path, sha256} of every input, plus ``data_sha256`` of the heavy data beside an XDMF file."""
+    out = {}
+    for role, p in paths.items():
+        entry = {"path": p, "sha256": sha256_of(p)}
+        extra = [sha256_of(c) for c in companions(p)]
+        if extra:
+            entry["data_sha256"] = extra[0] if len(extra) == 1 else extra
+        out[role] = entry
+    return out
+
+
+def provenance(defn: Definition, paths: dict[str, str], digests: dict[str, dict] | None = None) -> dict:
     from shells import __version__
 
     return {
         "tool": "plybridge", "tool_version": __version__,
         "created": datetime.datetime.now(datetime.timezone.utc).isoformat(timespec="seconds"),
-        "inputs": {role: {"path": p, "sha256": sha256_of(p)} for role, p in paths.items()},
+        "inputs": digests if digests is not None else input_digests(paths),
     }
 
 
 Progress = Callable[[int, int], None]
+Note = Callable[[str], None]
 
 
 def prepare(definition: str, mesh_path: str, resultants: Sequence[str]):
@@ -169,59 +204,121 @@ def criterion_table() -> dict[str, list[str]]:
     return {c.name: list(c.modes) for c in CRITERIA}
 
 
+def block_context(defn: Definition, tables, source: ResultantSource, plan: CasePlan,
+                  store_plies: bool) -> BlockContext:
+    """What every block task shares: small arrays and names, no file handles."""
+    return BlockContext(tuple(defn.analysis.criteria), tables, plan.weights, plan.dM, plan.pres, plan.fos,
+                        store_plies, source.h5_path, source.settings)
+
+
+def block_specs(model: Model, source: ResultantSource, plan: CasePlan, step: int,
+                skip: set[int] = frozenset()) -> Iterator[BlockSpec]:
+    """The blocks not in ``skip``, in order, built lazily (one block's inputs at a time)."""
+    n = model.n_cells
+    for index, start in enumerate(range(0, n, step)):
+        if index in skip:
+            continue
+        stop = min(n, start + step)
+        yield BlockSpec(index, start, stop, model.section[start:stop], model.phi[start:stop],
+                        plan.delta_T(model, start, stop), source.block_steps(start, stop))
+
+
 def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], output: str,
-                store_plies: bool = False, progress: Progress | None = None) -> dict:
+                store_plies: bool = False, progress: Progress | None = None, *, workers: int | None = None,
+                scheduler: str | None = None, client=None, block_cells: int | None = None,
+                resume: bool = False, note: Note | None = None) -> dict:
     """Recover every cell and case and write the results store at ``output``.
+
+    Parameters
+    ----------
+    definition, mesh_path : str
+        Definition file and mesh file.
+    resultants : sequence of str
+        Resultants input (one HDF5 / XDMF file, or VTU files, docs/meshes.md).
+    output : str
+        The store; replaced only when complete (docs/results.md, docs/scale.md).
+    store_plies : bool
+        Also store every ply stress and strain.
+    progress : callable(done_cells, total_cells), optional
+    workers : int, optional
+        Compute blocks on a local cluster of this many single-threaded worker processes.
+    scheduler : str, optional
+        Compute blocks on the running dask cluster at this address.
+    client : distributed.Client, optional
+        Compute blocks with this client (tests, notebooks).
+    block_cells : int, optional
+        Cells per block (default: about 32 MiB of block arrays, a multiple of the store chunk).
+    resume : bool
+        Continue the unfinished run of ``output`` (same inputs and options) instead of starting again.
+    note : callable(str), optional
+        Receives one-line notes about resuming.
 
     Returns
     -------
     dict
-        The run summary (see :func:`postproc.summary.run_summary`).
+        The run summary (see :func:`postproc.summary.SummaryAccumulator.result`).
     """
-    from postproc.recover import recover_cells
     from postproc.summary import SummaryAccumulator
 
-    from .store import StoreLayout, create_store, mesh_group
-    from .section_fields import section_table
+    from .distributed import check_workers, open_runner
+    from .resume import PartialStore
 
+    check_workers(workers, scheduler)
+    check_block_cells(block_cells)
     defn, model, source, plan, crit = prepare(definition, mesh_path, resultants)
     tables = model.tables()
     n = model.n_cells
-    layout = StoreLayout(n, tables.max_plies, plan.names, store_plies, len(CRITERIA))
-    step = block_size(len(source.names), len(plan.cases), tables.max_plies, store_plies)
+    step = block_cells or block_size(len(source.names), len(plan.cases), tables.max_plies, store_plies)
+    layout = StoreLayout(n, tables.max_plies, plan.names, store_plies, len(CRITERIA), chunk_cells=step)
+    paths = {"definition": definition, "mesh": mesh_path, **{f"resultants{k}": p for k, p in enumerate(resultants)}}
+    digests = input_digests(paths)
+    fingerprint = {"inputs": digests, "options": {"block_cells": step, "store_plies": store_plies,
+                                                  "n_cells": n, "layout_version": LAYOUT_VERSION}}
     acc = SummaryAccumulator(model.zone, len(defn.zones), len(plan.cases), defn.analysis.hot_spots)
-    with create_store(output, layout) as store:
-        for start in range(0, n, step):
+    with contextlib.ExitStack() as stack:
+        runner = stack.enter_context(open_runner(workers, scheduler, client))
+        partial = stack.enter_context(PartialStore(output, fingerprint, layout, resume, note))
+        store, done = partial.writer, set(partial.done)
+        results = stack.enter_context(contextlib.closing(runner.map(
+            block_context(defn, tables, source, plan, store_plies), block_specs(model, source, plan, step, done))))
+        for index, start in enumerate(range(0, n, step)):
             stop = min(n, start + step)
-            R = np.einsum("js,sck->jck", plan.weights, source.read(start, stop))
-            env, cells, plies = recover_cells(
-                crit, tables, model.section[start:stop], model.phi[start:stop], R,
-                plan.delta_T(model, start, stop), plan.dM, plan.pres, plan.fos, store_plies)
-            store.write_block(start, stop, env, cells, plies)
-            acc.add(start, stop, env, cells)
+            if index in done:
+                acc.add(start, stop, {}, store.read_cells(start, stop))
+            else:
+                res = next(results)
+                store.write_block(res.start, res.stop, res.envelope, res.cells, res.plies)
+                acc.add(res.start, res.stop, res.envelope, res.cells)
+                partial.record(res.index)
             if progress:
                 progress(stop, n)
         summary = acc.result(plan.names, zone_names=[z.name for z in defn.zones],
                              laminate_of_zone=[z.laminate for z in defn.zones])
-        store.write_static("hotspots", _hot_states(summary, crit, tables, model, source, plan))
-        store.write_static("mesh", mesh_group(model.mesh.points, model.mesh.blocks))
-        store.write_static("model", {"zone": model.zone.astype(np.int32), "section": model.section.astype(np.int32),
-                                     "material_angle": model.phi, "normal": model.normal,
-                                     "frame_x": model.frame_x})
-        store.write_meta({
-            **provenance(defn, {"definition": definition, "mesh": mesh_path,
-                                **{f"resultants{k}": p for k, p in enumerate(resultants)}}),
-            "title": defn.title, "units": defn.units.name, "conventions": "docs/conventions.md",
-            "criteria": criterion_table(), "criteria_used": list(defn.analysis.criteria),
-            "zones": [z.name for z in defn.zones], "zone_laminates": [z.laminate for z in defn.zones],
-            "sections": section_table(model)["sections"],
-            "cases_detail": [{"name": c.name, "kind": c.kind, "delta_T": c.delta_T, "pressure": c.pressure,
-                              "factor_of_safety": float(f)} for c, f in zip(plan.cases, plan.fos)],
-            "materials": _materials_meta(defn), "analysis": _analysis_meta(defn),
-            "store": "plies" if store_plies else "envelope", "summary": summary,
-            "caution": CAUTION,
-        })
+        _finish(store, summary, crit, tables, model, source, plan, defn, paths, digests, store_plies)
+        partial.complete()
     return summary
+
+
+def _finish(store, summary, crit, tables, model, source, plan, defn, paths, digests, store_plies) -> None:
+    """The datasets and attributes written once, after every block."""
+    from .section_fields import section_table
+
+    store.write_static("hotspots", _hot_states(summary, crit, tables, model, source, plan))
+    store.write_static("mesh", mesh_group(model.mesh.points, model.mesh.blocks))
+    store.write_static("model", {"zone": model.zone.astype(np.int32), "section": model.section.astype(np.int32),
+                                 "material_angle": model.phi, "normal": model.normal, "frame_x": model.frame_x})
+    store.write_meta({
+        **provenance(defn, paths, digests),
+        "title": defn.title, "units": defn.units.name, "conventions": "docs/conventions.md",
+        "criteria": criterion_table(), "criteria_used": list(defn.analysis.criteria),
+        "zones": [z.name for z in defn.zones], "zone_laminates": [z.laminate for z in defn.zones],
+        "sections": section_table(model)["sections"],
+        "cases_detail": [{"name": c.name, "kind": c.kind, "delta_T": c.delta_T, "pressure": c.pressure,
+                          "factor_of_safety": float(f)} for c, f in zip(plan.cases, plan.fos)],
+        "materials": _materials_meta(defn), "analysis": _analysis_meta(defn),
+        "store": "plies" if store_plies else "envelope", "summary": summary,
+        "caution": CAUTION,
+    })
 
 
 def _hot_states(summary: dict, crit, tables, model: Model, source: ResultantSource, plan: CasePlan) -> dict:
@@ -231,7 +328,7 @@ def _hot_states(summary: dict, crit, tables, model: Model, source: ResultantSour
     ids = np.array(sorted({h["cell"] for h in summary["hot_spots"]}), dtype=np.int64)
     if ids.size == 0:
         return {"cell": ids}
-    R = np.einsum("js,sck->jck", plan.weights, source.read_cells(ids))
+    R = combine_steps(plan.weights, source.read_cells(ids))
     dT = np.stack([plan.delta_T(model, i, i + 1)[:, 0] for i in ids], axis=1)
     states = cell_states(crit, tables, model.section[ids], model.phi[ids], np.nan_to_num(R), dT, plan.dM,
                          plan.pres)

@@ -43,10 +43,16 @@ class StoreLayout:
     case_names: tuple[str, ...]
     store_plies: bool = False
     n_criteria: int = 1
+    chunk_cells: int = CHUNK_CELLS
 
     @property
     def n_cases(self) -> int:
         return len(self.case_names)
+
+    @property
+    def chunk(self) -> int:
+        """Cells per chunk along the cell axis (run blocks are whole multiples of it)."""
+        return max(1, min(self.n_cells, self.chunk_cells, CHUNK_CELLS))
 
 
 ENVELOPE = {"strength_ratio": np.float64, "margin": np.float64, "case": np.int32, "point": np.int8,
@@ -59,11 +65,16 @@ PLIES = {"stress": 3, "strain": 3, "transverse_shear": 2}
 class StoreWriter:
     """Create the datasets of a store in an open h5py file and fill them by cell blocks."""
 
-    def __init__(self, h5, layout: StoreLayout):
+    def __init__(self, h5, layout: StoreLayout, create: bool = True):
         self.h5 = h5
         self.layout = layout
+        if create:
+            self._create()
+
+    def _create(self) -> None:
+        h5, layout = self.h5, self.layout
         n, mp = layout.n_cells, layout.max_plies
-        cc = max(1, min(n, CHUNK_CELLS))
+        cc = layout.chunk
         opts = dict(compression="gzip", compression_opts=3, shuffle=True)
         h5.create_dataset("cases", data=_strings(layout.case_names))
         env = h5.create_group("envelope")
@@ -75,7 +86,7 @@ class StoreWriter:
             fill = np.nan if np.dtype(dtype).kind == "f" else (0 if dtype == np.bool_ else -1)
             cells.create_dataset(name, shape=(n,), dtype=dtype, chunks=(cc,), fillvalue=fill, **opts)
         cells.create_dataset("case_margin", shape=(n, layout.n_cases), dtype=np.float64,
-                             chunks=(cc, max(1, layout.n_cases)), fillvalue=np.nan, **opts)
+                             chunks=(cc, max(1, min(layout.n_cases, 64))), fillvalue=np.nan, **opts)
         cells.create_dataset("criterion_margin", shape=(n, layout.n_criteria), dtype=np.float64,
                              chunks=(cc, layout.n_criteria), fillvalue=np.nan, **opts)
         if layout.store_plies:
@@ -95,6 +106,20 @@ class StoreWriter:
         if plies is not None and self.layout.store_plies:
             for name in PLIES:
                 self.h5["plies"][name][:, start:stop] = plies[name]
+
+    def read_cells(self, start: int, stop: int) -> dict[str, np.ndarray]:
+        """The cell summary of cells start … stop − 1 as written (to rebuild a resumed run's summary)."""
+        return {name: self.h5["cells"][name][start:stop] for name in (*CELLS, "case_margin", "criterion_margin")}
+
+    def matches(self) -> bool:
+        """Whether the open file has every dataset of the layout with the layout's shape."""
+        n, mp = self.layout.n_cells, self.layout.max_plies
+        want = {**{f"envelope/{k}": (n, mp) for k in ENVELOPE}, **{f"cells/{k}": (n,) for k in CELLS},
+                "cells/case_margin": (n, self.layout.n_cases),
+                "cells/criterion_margin": (n, self.layout.n_criteria)}
+        if self.layout.store_plies:
+            want.update({f"plies/{k}": (self.layout.n_cases, n, mp, 3, c) for k, c in PLIES.items()})
+        return all(key in self.h5 and self.h5[key].shape == shape for key, shape in want.items())
 
     def write_static(self, name: str, data: np.ndarray | Mapping[str, np.ndarray]) -> None:
         """A dataset (or a group of datasets) written once: per-cell model data, mesh geometry."""

@@ -80,7 +80,7 @@ def registry():
 
 
 def system(name: object, source: str) -> UnitSystem:
-    if name not in SYSTEMS:
+    if not isinstance(name, str) or name not in SYSTEMS:
         raise DefinitionError(
             f"units = {name!r} is not a known unit system; use one of {', '.join(SYSTEMS)}", source)
     return SYSTEMS[name]  # type: ignore[index]
@@ -134,7 +134,7 @@ def _parse_quantity(text: str, kind: str, units: UnitSystem, where: str) -> floa
         raise DefinitionError(
             f"{where} = {text!r} has the wrong dimension; expected a {kind.replace('_', ' ')} "
             f"(for example in {ureg.Unit(target):~})") from None
-    except (pint.PintError, ValueError, TypeError, AttributeError, SyntaxError, KeyError):
+    except Exception:  # pint's parser raises many kinds (tokenize errors, assertions) on odd text
         raise DefinitionError(
             f"{where} = {text!r} is not a quantity pint understands; write e.g. '181 GPa' or a plain number"
         ) from None

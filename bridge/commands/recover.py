@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import json
-import sys
 from pathlib import Path
 
 import click
@@ -55,7 +54,16 @@ def summary_lines(summary: dict, units: str) -> str:
               help="Hot-spot CSV (default: OUTPUT-stem.hotspots.csv).")
 @click.option("--json", "as_json", is_flag=True, help="Print the full summary as JSON instead.")
 @click.option("--quiet", is_flag=True, help="No progress on stderr.")
-def recover(definition, mesh, resultants, output, store_kind, view, hot_path, as_json, quiet) -> None:
+@click.option("--workers", type=int, default=None,
+              help="Compute on a local cluster of N single-threaded worker processes (dask.distributed).")
+@click.option("--scheduler", default=None, metavar="ADDRESS",
+              help="Compute on a running dask cluster, e.g. tcp://10.0.0.5:8786 (docs/scale.md).")
+@click.option("--block-cells", type=int, default=None,
+              help="Cells per block (default: about 32 MiB of block arrays, a multiple of the store chunk).")
+@click.option("--resume", is_flag=True,
+              help="Continue an interrupted run of OUTPUT with the same inputs; finished blocks are kept.")
+def recover(definition, mesh, resultants, output, store_kind, view, hot_path, as_json, quiet, workers,
+            scheduler, block_cells, resume) -> None:
     from bridge.atomic import write_text
     from bridge.recover_run import run_recover
     from bridge.view import write_view
@@ -63,8 +71,16 @@ def recover(definition, mesh, resultants, output, store_kind, view, hot_path, as
 
     if view and not view.lower().endswith((".vtu", ".xdmf")):
         raise InputError(f"--view {view}: write a .vtu or .xdmf file")
-    summary = run_recover(definition, mesh, list(resultants), output, store_kind == "plies",
-                          None if quiet else _progress())
+    def note(text: str) -> None:
+        click.echo(f"recover: {text}", err=True)
+
+    try:
+        summary = run_recover(definition, mesh, list(resultants), output, store_kind == "plies",
+                              None if quiet else _progress(), workers=workers, scheduler=scheduler,
+                              block_cells=block_cells, resume=resume, note=note)
+    except KeyboardInterrupt:
+        note("interrupted; finished blocks are kept beside the output: run again with --resume to finish")
+        raise
     write_text(hot_path or sidecar(output, ".hotspots.csv"), hot_spots_csv(summary))
     if view:
         write_view(output, view)

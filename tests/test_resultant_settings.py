@@ -1,0 +1,65 @@
+"""The [fields] and [resultants] tables of a definition: names, frame, twist sign and unit scales."""
+
+from __future__ import annotations
+
+import tomllib
+
+import numpy as np
+import pytest
+
+from bridge.definition import parse_definition
+from bridge.resultant_settings import resultant_options
+from bridge.resultants import apply_settings
+from shells.errors import DefinitionError, ResultantsError
+
+BASE = """
+units = "N-mm"
+[materials.a]
+E1 = 100
+E2 = 10
+G12 = 5
+nu12 = 0.3
+thickness = 1
+[laminates.l]
+layup = "[0]"
+material = "a"
+"""
+
+
+def _options(extra: str):
+    return resultant_options(parse_definition(tomllib.loads(BASE + extra), "def.toml"))
+
+
+def test_defaults():
+    f, s = _options("")
+    assert (f.n, f.m, f.q, f.scalars) == ("N", "M", "Q", None)
+    assert (s.frame, s.twist_sign, s.force_scale, s.length_scale) == ("element", 1, 1.0, 1.0)
+
+
+def test_renames_scalars_and_flags():
+    f, s = _options('[fields]\nscalars = ["nx","ny","nxy","mx","my","mxy","qx","qy"]\n'
+                    '[resultants]\nframe = "laminate"\ntwist_sign = -1\nforce_scale = 4.4482216152605\n'
+                    'length_scale = 25.4\n')
+    assert f.scalars[0] == "nx" and s.frame == "laminate" and s.twist_sign == -1
+    # lbf and inch in a N-mm definition (1 lbf = 4.4482216152605 N, 1 in = 25.4 mm, exact: NIST SP 811):
+    # N and Q scale by force/length, M by force; the twist sign flips Mxy.
+    R = apply_settings(np.ones((1, 1, 8)), s)[0, 0]
+    np.testing.assert_allclose(R, [4.4482216152605 / 25.4] * 3 + [4.4482216152605] * 2 + [-4.4482216152605]
+                               + [4.4482216152605 / 25.4] * 2)
+
+
+def test_no_transverse_shear():
+    assert _options('[fields]\nQ = ""\n')[0].q is None
+
+
+@pytest.mark.parametrize("extra, needle", [
+    ('[fields]\nNN = "x"\n', "did you mean 'N'"),
+    ('[resultants]\nframe = "global"\n', "frame"),
+    ('[resultants]\ntwist_sign = 2\n', "twist_sign"),
+    ('[resultants]\nforce_scale = "big"\n', "force_scale"),
+    ('[fields]\nscalars = ["a", "b"]\n', "eight"),
+])
+def test_bad_tables(extra, needle):
+    with pytest.raises((DefinitionError, ResultantsError)) as err:
+        _options(extra)
+    assert needle in str(err.value) and "def.toml" in str(err.value)

@@ -113,3 +113,24 @@ def test_nan_cells_are_flagged_and_reported(model, write_definition):
     with h5py.File(out) as h5:
         assert h5["cells/flagged"][()].tolist() == [i == 7 for i in range(12)]
         assert np.isfinite(h5["cells/min_margin"][7])         # case a still computed
+
+
+def test_temperature_field_equals_uniform_delta_T(tmp_path, write_definition):
+    # A per-cell temperature field holding the same value everywhere must give the same margins as a
+    # uniform delta_T (consistency of the two inputs; residual thermal stresses held fixed in both).
+    mesh = flat_plate(3, 2)
+    n = mesh.n_cells
+    write_mesh(tmp_path / "p.vtu", mesh, {"block": np.zeros(n, np.int32), "dT": np.full(n, -90.0)})
+    R = np.zeros((1, n, 8))
+    R[0, :, 1] = 15.0
+    write_resultants_h5(tmp_path / "r.h5", ["a"], R)
+    text = DEF.split("[cases.a]")[0] + (
+        '[cases.field]\nstep = 1\ntemperature_field = "dT"\n[cases.uniform]\nstep = 1\ndelta_T = -90\n')
+    text = text.replace('S12 = 68\n', 'S12 = 68\nalpha1 = "0.02e-6/degC"\nalpha2 = "22.5e-6/degC"\n')
+    out = tmp_path / "o.h5"
+    proc = run_cli("recover", write_definition(text), tmp_path / "p.vtu", tmp_path / "r.h5", "-o", out, "--quiet")
+    assert proc.returncode == 0, proc.stderr
+    with h5py.File(out) as h5:
+        cm = h5["cells/case_margin"][()]
+    np.testing.assert_array_equal(cm[:, 0], cm[:, 1])
+    assert np.all(np.isfinite(cm))

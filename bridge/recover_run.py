@@ -56,7 +56,10 @@ class ResultantSource:
         self.h5_path: str | None = None
         self._data = None
         first = self.paths[0]
-        head = Path(first).read_bytes()[:8] if Path(first).is_file() else b""
+        head = b""
+        if Path(first).is_file():
+            with open(first, "rb") as fh:
+                head = fh.read(8)
         if len(self.paths) == 1 and head.startswith(_HDF5_SIGNATURE) and self._is_plain_h5(first):
             if self.settings.frame == "vectors":
                 raise ResultantsError("frame = 'vectors' is not available for HDF5 resultants; give the "

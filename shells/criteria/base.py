@@ -112,7 +112,7 @@ def failure_index(sr):
 
 # --------------------------------------------------------------------------- numba helpers
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def has_fixed(sf):
     """True when any component of the fixed state is non-zero."""
     for i in range(NSTATE):
@@ -121,13 +121,13 @@ def has_fixed(sf):
     return False
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def at(sm, sf, r, i):
     """Component ``i`` of the state ``sf + r·sm`` (no allocation)."""
     return sf[i] + r * sm[i]
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def linear_ratio(f, m, upper, lower):
     """Smallest R ≥ 0 at which ``f + R·m`` reaches ``upper`` or ``-lower``.
 
@@ -143,7 +143,7 @@ def linear_ratio(f, m, upper, lower):
     return INF
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def quadratic_roots(a, b, c):
     """Real roots (r1 ≤ r2) of ``a R² + b R + c = 0``; missing roots are inf.
 
@@ -166,7 +166,7 @@ def quadratic_roots(a, b, c):
     return r2, r1
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def first_crossing(a, b, c, lo, hi):
     """First R in ``[lo, hi]`` with ``g(R) = a R² + b R + c ≥ 0``.
 
@@ -183,13 +183,13 @@ def first_crossing(a, b, c, lo, hi):
     return INF
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def product_coeffs(gi, mi, gj, mj):
     """Coefficients (of R², R, 1) of the product (gi + R·mi)(gj + R·mj)."""
     return mi * mj, gi * mj + gj * mi, gi * gj
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def break_point(f, m):
     """R > 0 at which ``f + R·m`` changes sign, inf if it never does."""
     if m == 0.0:
@@ -198,7 +198,7 @@ def break_point(f, m):
     return r if r > 0.0 else INF
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def sign_between(f, m, lo, hi):
     """Sign (−1, 0, 1) of ``f + R·m`` inside the open interval (lo, hi)."""
     mid = 2.0 * lo + 1.0 if hi == INF else 0.5 * (lo + hi)

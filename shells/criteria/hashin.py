@@ -28,7 +28,7 @@ from .base import (INF, PLY_MODES, S1, S2, S3, T12, T13, T23, Criterion, break_p
                    first_crossing, product_coeffs, sign_between)
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def _shear_terms(sm, sf, s12, s23):
     """Coefficients of (τ12² + τ13²)/S12² + (τ23² − σ2σ3)/S23²."""
     a12, b12, c12 = product_coeffs(sf[T12], sm[T12], sf[T12], sm[T12])
@@ -40,7 +40,7 @@ def _shear_terms(sm, sf, s12, s23):
             k * (c12 + c13) + q * (c23 - cx))
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def _fibre(sm, sf, p, lo, hi):
     """First failure R of the fibre modes on a piece of constant sign of σ1; (R, mode)."""
     if not hi > lo:
@@ -60,7 +60,7 @@ def _fibre(sm, sf, p, lo, hi):
     return first_crossing(a, b, c, lo, hi), 0
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def _matrix(sm, sf, p, lo, hi, s23):
     """First failure R of the matrix modes on a piece of constant sign of σ2 + σ3; (R, mode)."""
     if not hi > lo:

@@ -16,7 +16,7 @@ from .. import params as P
 from .base import FC, FT, INF, MC, MT, PLY_MODES, S1, S2, SH, T12, Criterion, linear_ratio
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def limits_ratio(m1, f1, m2, f2, m6, f6, x_t, x_c, y_t, y_c, s):
     """Exact R for independent limits on three in-plane components; mode in :data:`PLY_MODES`.
 

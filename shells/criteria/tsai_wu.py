@@ -18,7 +18,7 @@ from .. import params as P
 from .base import FC, FT, INF, MC, MT, PLY_MODES, S1, S2, SH, T12, Criterion, at, first_crossing
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def plane_quadratic(sm, sf, f1, f2, f11, f22, f66, f12):
     """Coefficients (a, b, c) of the in-plane polynomial criterion minus 1 along the ray.
 
@@ -34,7 +34,7 @@ def plane_quadratic(sm, sf, f1, f2, f11, f22, f66, f12):
     return a, b, c
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def dominant_mode(sm, sf, r, f1, f2, f11, f22, f66):
     """Index in :data:`PLY_MODES` of the largest term of an in-plane polynomial at ``sf + r·sm``.
 
@@ -54,7 +54,7 @@ def dominant_mode(sm, sf, r, f1, f2, f11, f22, f66):
     return MT if s2 >= 0.0 else MC
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def polynomial_ratio(sm, sf, f1, f2, f11, f22, f66, f12, lo, hi):
     """Exact first R in [lo, hi] at which the in-plane polynomial (see :func:`plane_quadratic`) reaches 1.
 

@@ -62,6 +62,23 @@ CELLS = {"min_margin": np.float64, "critical_ply": np.int32, "strength_ratio": n
 PLIES = {"stress": 3, "strain": 3, "transverse_shear": 2}
 
 
+def _name_codes(env, cells, case_names) -> None:
+    """Attributes ``names`` on the integer-code datasets, so the store explains its own codes."""
+    from shells.criteria import CRITERIA
+
+    names = {
+        "case": _strings(case_names),
+        "point": _strings(("bottom", "middle", "top")),
+        "criterion": _strings([c.name for c in CRITERIA]),
+        "mode": json.dumps({c.name: list(c.modes) for c in CRITERIA}),
+    }
+    for group in (env, cells):
+        for key, value in names.items():
+            group[key].attrs["names"] = value
+    cells["case_margin"].attrs["names"] = names["case"]
+    cells["criterion_margin"].attrs["names"] = names["criterion"]
+
+
 class StoreWriter:
     """Create the datasets of a store in an open h5py file and fill them by cell blocks."""
 
@@ -89,6 +106,7 @@ class StoreWriter:
                              chunks=(cc, max(1, min(layout.n_cases, 64))), fillvalue=np.nan, **opts)
         cells.create_dataset("criterion_margin", shape=(n, layout.n_criteria), dtype=np.float64,
                              chunks=(cc, layout.n_criteria), fillvalue=np.nan, **opts)
+        _name_codes(env, cells, layout.case_names)
         if layout.store_plies:
             plies = h5.create_group("plies")
             pc = max(1, min(n, max(1, 2 ** 20 // (mp * 3 * 3 * 8))))

@@ -115,10 +115,6 @@ def build_model(defn: Definition, mesh: ShellMesh) -> Model:
                  sections, names, tuple(lam for lam, _ in keys))
 
 
-def zone_names(defn: Definition) -> tuple[str, ...]:
-    return tuple(z.name for z in defn.zones)
-
-
 def describe(model: Model) -> Mapping[str, Any]:
     """Counts per zone, for notes on stderr."""
     counts = np.bincount(model.zone, minlength=len(model.defn.zones))

@@ -142,11 +142,6 @@ def recover_into(env: Envelope, criteria: Sequence[type], tables: SectionTables,
                   env.mode, case_ms, crit_ms, *out)
 
 
-def criterion_names() -> tuple[str, ...]:
-    """Names of every registered criterion, in code order (stored beside integer codes)."""
-    return tuple(c.name for c in CRITERIA)
-
-
 def recover_cells(criteria: Sequence[type], tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray,
                   R: np.ndarray, dT: np.ndarray, dM: np.ndarray, pres: np.ndarray, fos: np.ndarray,
                   store_plies: bool = False) -> tuple[dict, dict, dict | None]:

@@ -13,7 +13,7 @@ from numba import njit
 
 from .. import params as P
 from .base import INF, PLY_MODES, Criterion
-from .tsai_wu import polynomial_ratio
+from .tsai_wu import plane_strengths, polynomial_ratio
 
 
 class Hoffman(Criterion):
@@ -27,7 +27,5 @@ class Hoffman(Criterion):
     def ratio(sm, sf, p):
         if p[P.KIND] != P.KIND_PLY:
             return INF, -1
-        xt, xc, yt, yc, s = p[P.XT], p[P.XC], p[P.YT], p[P.YC], p[P.S12]
-        f11 = 1.0 / (xt * xc)
-        return polynomial_ratio(sm, sf, 1.0 / xt - 1.0 / xc, 1.0 / yt - 1.0 / yc, f11,
-                                1.0 / (yt * yc), 1.0 / (s * s), -0.5 * f11, 0.0, INF)
+        f1, f2, f11, f22, f66 = plane_strengths(p)
+        return polynomial_ratio(sm, sf, f1, f2, f11, f22, f66, -0.5 * f11, 0.0, INF)

@@ -55,6 +55,13 @@ def dominant_mode(sm, sf, r, f1, f2, f11, f22, f66):
 
 
 @njit(cache=True, inline="always")
+def plane_strengths(p):
+    """Coefficients (F1, F2, F11, F22, F66) of the in-plane polynomial from the ply's strengths."""
+    xt, xc, yt, yc, s = p[P.XT], p[P.XC], p[P.YT], p[P.YC], p[P.S12]
+    return 1.0 / xt - 1.0 / xc, 1.0 / yt - 1.0 / yc, 1.0 / (xt * xc), 1.0 / (yt * yc), 1.0 / (s * s)
+
+
+@njit(cache=True, inline="always")
 def polynomial_ratio(sm, sf, f1, f2, f11, f22, f66, f12, lo, hi):
     """Exact first R in [lo, hi] at which the in-plane polynomial (see :func:`plane_quadratic`) reaches 1.
 
@@ -76,9 +83,6 @@ class TsaiWu(Criterion):
     def ratio(sm, sf, p):
         if p[P.KIND] != P.KIND_PLY:
             return INF, -1
-        xt, xc, yt, yc, s = p[P.XT], p[P.XC], p[P.YT], p[P.YC], p[P.S12]
-        f11 = 1.0 / (xt * xc)
-        f22 = 1.0 / (yt * yc)
+        f1, f2, f11, f22, f66 = plane_strengths(p)
         f12 = p[P.F12STAR] * math.sqrt(f11 * f22)
-        return polynomial_ratio(sm, sf, 1.0 / xt - 1.0 / xc, 1.0 / yt - 1.0 / yc, f11, f22,
-                                1.0 / (s * s), f12, 0.0, INF)
+        return polynomial_ratio(sm, sf, f1, f2, f11, f22, f66, f12, 0.0, INF)

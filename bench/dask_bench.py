@@ -24,7 +24,7 @@ def child_distributed(paths: dict, n_cells: int, n_cases: int, out: str) -> dict
     """Start the cluster (timed), then the run on it (timed)."""
     from distributed import Client, LocalCluster
 
-    from bridge.distributed import WORKER_ENV
+    from bridge.recover.distributed import WORKER_ENV
 
     t = time.perf_counter()
     with LocalCluster(n_workers=2, threads_per_worker=1, processes=True, host="127.0.0.1",

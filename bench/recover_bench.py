@@ -34,7 +34,7 @@ DEFINITION = (ROOT / "tests" / "corpus" / "base.toml").read_text(encoding="utf-8
 
 def grid(n_cells: int):
     """A flat quad grid of about ``n_cells`` cells (nx = 2 ny), written without meshio."""
-    from bridge.mesh import ShellMesh
+    from bridge.mesh.shell import ShellMesh
 
     ny = max(1, int(round((n_cells / 2) ** 0.5)))
     nx = max(1, n_cells // ny)
@@ -50,8 +50,8 @@ def inputs(work: Path, n_cells: int, n_cases: int) -> dict[str, str]:
     """Definition, mesh (.xdmf) and resultants (.h5) of the benchmark, generated once."""
     import h5py
 
-    from bridge.formats import write_mesh
-    from bridge.resultants import H5_DATASET
+    from bridge.mesh.formats import write_mesh
+    from bridge.recover.resultants import H5_DATASET
 
     folder = work / f"c{n_cells}-k{n_cases}"
     paths = {"definition": folder / "def.toml", "mesh": folder / "mesh.xdmf", "resultants": folder / "res.h5"}
@@ -87,8 +87,8 @@ def measure_kernel(paths: dict[str, str], n_cells: int, n_cases: int) -> dict:
     from shells.criteria import DEFAULT, by_name
     from shells.recovery_tables import build_tables
     from shells.section import Section  # noqa: F401 - imported for the tables' types
-    from bridge.definition import load_definition
-    from bridge.sections import section_of
+    from bridge.definition.loader import load_definition
+    from bridge.model.sections import section_of
 
     defn = load_definition(paths["definition"])
     tables = build_tables([section_of(defn, "skin", 0.0)], ["skin"])
@@ -111,7 +111,7 @@ def measure_kernel(paths: dict[str, str], n_cells: int, n_cases: int) -> dict:
 
 def measure_command(paths: dict[str, str], n_cells: int, n_cases: int, out: str, **options) -> dict:
     """The whole run_recover from the HDF5 resultants, to a store (inputs hashed, store written)."""
-    from bridge.recover_run import run_recover
+    from bridge.recover.run import run_recover
 
     t = time.perf_counter()
     run_recover(paths["definition"], paths["mesh"], [paths["resultants"]], out, **options)

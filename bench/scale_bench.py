@@ -1,7 +1,7 @@
 """Scale benchmark: 5,000,000 cells × 10 cases through the whole ``run_recover``; peak memory and time.
 
 The target is a peak resident memory under 2 GB: block work is bounded
-(bridge.recover_run.BLOCK_BYTES); what grows with the model is the per-cell
+(bridge.recover.run.BLOCK_BYTES); what grows with the model is the per-cell
 model data (frames, angles, zones) and the mesh. Inputs are generated once in
 --work and reused; the run is measured in its own subprocess.
 

@@ -48,7 +48,7 @@ def main() -> None:
 
 
 def _register() -> None:
-    from .commands import COMMANDS
+    from bridge.commands import COMMANDS
 
     for command in COMMANDS:
         main.add_command(command)

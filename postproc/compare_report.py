@@ -47,7 +47,7 @@ def compare_section_html(summary: dict) -> str:
     Parameters
     ----------
     summary : dict
-        The summary of :func:`bridge.compare_run.run_compare` (verdict, tolerance, zones, plies, worst cells,
+        The summary of :func:`bridge.compare.run.run_compare` (verdict, tolerance, zones, plies, worst cells,
         diagnosis).
 
     Returns

@@ -12,7 +12,7 @@ from __future__ import annotations
 import numpy as np
 
 from bridge.atomic import atomic_path, write_text
-from bridge.mesh import ShellMesh
+from bridge.mesh.shell import ShellMesh
 
 
 def grid_points(nx: int, ny: int, lx: float = 2.0, ly: float = 1.0) -> np.ndarray:
@@ -133,7 +133,7 @@ def write_gmsh22_ascii(path, mesh: ShellMesh, lines: np.ndarray | None = None) -
     out += ["$EndNodes", "$Elements"]
     elems = []
     for conn in ([] if lines is None else [lines]):
-        elems += [f"1 2 99 50 " + " ".join(str(v + 1) for v in row) for row in conn]
+        elems += ["1 2 99 50 " + " ".join(str(v + 1) for v in row) for row in conn]
     for b, (t, conn) in enumerate(mesh.blocks):
         elems += [f"{_GMSH_TYPE[t]} 2 {b + 1} {b + 1} " + " ".join(str(v + 1) for v in row) for row in conn]
     out += [str(len(elems))] + [f"{k + 1} {e}" for k, e in enumerate(elems)] + ["$EndElements", ""]

@@ -9,10 +9,10 @@ import numpy as np
 import pytest
 
 from bridge.commands.assign import sections_path
-from bridge.definition import parse_definition
-from bridge.formats import read_mesh
-from bridge.model import build_model
-from bridge.section_fields import FIELD_NAMES, section_fields
+from bridge.definition.loader import parse_definition
+from bridge.mesh.formats import read_mesh
+from bridge.model.build import build_model
+from bridge.model.fields import FIELD_NAMES, section_fields
 from shells.laminate import Laminate, Ply, section_properties
 from tests.common import assert_one_line_error, run_cli
 from tests.meshes import mixed_plate, write_gmsh22_ascii

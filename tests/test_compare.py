@@ -16,13 +16,13 @@ import pytest
 from click.testing import CliRunner
 
 from bridge.cli import main
-from bridge.compare_run import run_compare
-from bridge.definition import load_definition
-from bridge.formats import vtu
-from bridge.model import build_model
-from bridge.recover_run import plan_cases
-from bridge.resultants import resultant_arrays
-from bridge.solver_plies import parse_solver_plies, read_solver_plies, solver_arrays, solver_plies_of
+from bridge.compare.run import run_compare
+from bridge.definition.loader import load_definition
+from bridge.mesh.formats import vtu
+from bridge.model.build import build_model
+from bridge.recover.run import plan_cases
+from bridge.recover.resultants import resultant_arrays
+from bridge.compare.solver_plies import parse_solver_plies, read_solver_plies, solver_arrays, solver_plies_of
 from postproc.compare import element_to_material, material_to_element, reference_values
 from postproc.compare_report import compare_section_html
 from postproc.diagnose import HYPOTHESES
@@ -219,7 +219,7 @@ def planted(world, name):
     elif name == "stacking-order":
         bad = ours[:, :, ::-1].copy()                       # the left zone has the most plies: all of them
     elif name == "material-vs-element-axes":
-        from bridge.solver_plies import ply_angles
+        from bridge.compare.solver_plies import ply_angles
         bad = material_to_element(ours, ply_angles(model)[None, :, :, None], "stress")
     elif name == "shear-strain-convention":
         bad = ours.copy()

@@ -94,7 +94,7 @@ def test_bad_input_ends_cleanly(case, good_model, tmp_path):
     if case["code"] == 2:
         assert left == [], left
     else:
-        from bridge.store import StoreReader
+        from bridge.results.store import StoreReader
 
         assert left == ["RESULT.h5", "RESULT.hotspots.csv"], left
         with StoreReader(output) as st:

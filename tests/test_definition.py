@@ -6,8 +6,8 @@ import json
 import numpy as np
 import pytest
 
-from bridge.definition import load_definition, parse_definition
-from bridge.sections import section_of
+from bridge.definition.loader import load_definition, parse_definition
+from bridge.model.sections import section_of
 from shells.errors import DefinitionError, LayupError, MaterialError
 
 from tests.common import EXAMPLE, assert_one_line_error, run_cli

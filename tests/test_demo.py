@@ -11,15 +11,15 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from bridge.definition import load_definition
+from bridge.definition.loader import load_definition
 from bridge.demo import write_inputs
 from bridge.demo.geometry import panel_of_cells, panels
 from bridge.demo.loads import load_cases
 from bridge.demo.scenario import DEMO, ZONE_LAMINATES
-from bridge.formats import read_mesh
-from bridge.model import build_model
-from bridge.resultants import read_resultants
-from bridge.sections import section_of
+from bridge.mesh.formats import read_mesh
+from bridge.model.build import build_model
+from bridge.recover.resultants import read_resultants
+from bridge.model.sections import section_of
 from tests.common import run_cli
 
 TERMS = 41          # odd terms per direction: the demo's truncation, so the comparison is term for term
@@ -190,7 +190,7 @@ def test_demo_runs_end_to_end(demo_run):
 
 
 def test_worst_margin_where_navier_puts_it(demo_run):
-    from bridge.store import StoreReader
+    from bridge.results.store import StoreReader
 
     out, proc = demo_run
     assert proc.returncode == 0, proc.stderr

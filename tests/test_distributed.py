@@ -6,9 +6,9 @@ import h5py
 import numpy as np
 import pytest
 
-from bridge.distributed import WORKER_ENV, check_workers
-from bridge.recover_run import run_recover
-from bridge.resultants import write_resultants_xdmf
+from bridge.recover.distributed import WORKER_ENV, check_workers
+from bridge.recover.run import run_recover
+from bridge.recover.resultants import write_resultants_xdmf
 from shells.errors import InputError
 from tests.corpus.models import resultants, write_model
 from tests.meshes import flat_plate

@@ -5,8 +5,8 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from bridge.frames import element_frames
-from bridge.mesh import ShellMesh
+from bridge.model.frames import element_frames
+from bridge.mesh.shell import ShellMesh
 from shells.errors import MeshError
 from tests.meshes import cylinder, cylinder_mid_angles, flat_plate, mixed_plate, quadratic_plate, warped_plate
 

@@ -13,7 +13,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from bridge.definition import parse_definition
+from bridge.definition.loader import parse_definition
 from shells.errors import DefinitionError, InputError, LayupError
 from shells.stacking import parse_layup
 from tests.corpus.models import DEFINITION

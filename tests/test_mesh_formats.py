@@ -17,9 +17,9 @@ import numpy as np
 import pytest
 from hypothesis import given, settings, strategies as st
 
-from bridge import formats
-from bridge.formats import gmsh, meshio_other, vtu, xdmf
-from bridge.mesh import ShellMesh, shell_mesh_from_blocks
+from bridge.mesh import formats
+from bridge.mesh.formats import gmsh, meshio_other, vtu, xdmf
+from bridge.mesh.shell import ShellMesh, shell_mesh_from_blocks
 from shells.errors import InputError, MeshError
 from tests.meshes import (block_tags, cylinder, flat_plate, mixed_plate, quadratic_plate, warped_plate,
                           write_gmsh22_ascii, write_gmsh41_ascii, write_gmsh_binary)

@@ -5,9 +5,10 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from bridge.frames import element_frames
-from bridge.mesh import ShellMesh
-from bridge.orientation import Axis, Field, Vector, material_angle, wrap_degrees
+from bridge.model.frames import element_frames
+from bridge.mesh.shell import ShellMesh
+from bridge.definition.orientation import Axis, Field, Vector
+from bridge.model.orientation import material_angle, wrap_degrees
 from shells.errors import DefinitionError, InputError, MeshError
 from tests.meshes import cylinder, cylinder_mid_angles, flat_plate
 

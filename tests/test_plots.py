@@ -34,8 +34,8 @@ def test_profile_from_plies_matches_the_hot_spot_route(store):
     """Invariant: zone-2 cells carry equal resultants and sections, so they have equal states; in case a
     (ΔT = 0) nothing is held fixed, so the failure index of the stored total state (the /plies route) must equal
     the hot-spot 1/R."""
-    from bridge.render_run import profile_of
-    from bridge.store import StoreReader
+    from bridge.pictures.plots import profile_of
+    from bridge.results.store import StoreReader
 
     with StoreReader(store) as st:
         hot = set(st.array("hotspots/cell").tolist())
@@ -70,7 +70,7 @@ def test_profile_needs_plies_for_a_cell_that_is_not_a_hot_spot(store, tmp_path):
 
     import h5py
 
-    from bridge.store import StoreReader
+    from bridge.results.store import StoreReader
 
     env = tmp_path / "env.h5"
     shutil.copy(store, env)

@@ -6,8 +6,8 @@ import h5py
 import numpy as np
 import pytest
 
-from bridge.formats import write_mesh
-from bridge.resultants import write_resultants_h5
+from bridge.mesh.formats import write_mesh
+from bridge.recover.resultants import write_resultants_h5
 from tests.common import assert_one_line_error, run_cli
 from tests.meshes import flat_plate
 

@@ -70,8 +70,8 @@ def build_store(base: Path) -> Path:
     store = base / "plate-store" / "out.h5"
     if store.exists():
         return store
-    from bridge.formats import write_mesh
-    from bridge.resultants import write_resultants_h5
+    from bridge.mesh.formats import write_mesh
+    from bridge.recover.resultants import write_resultants_h5
 
     folder = store.parent
     folder.mkdir(parents=True, exist_ok=True)
@@ -157,7 +157,7 @@ def test_no_value_cells_are_grey_and_named_in_the_legend():
     ("mode", ["hashin: matrix tension", "hashin: matrix compression"]),
 ])
 def test_categorical_legends_list_the_names(store, tmp_path, field, names):
-    from bridge.render_run import render_store
+    from bridge.pictures.render import render_store
 
     drawn = render_store(store, tmp_path / "map.png", field=field, size=(320, 240))
     labels = [label for label, _ in drawn["legend"]]
@@ -166,8 +166,8 @@ def test_categorical_legends_list_the_names(store, tmp_path, field, names):
 
 
 def test_margin_map_marks_the_worst_cell_and_writes_cell_data(store, tmp_path):
-    from bridge.render_run import render_store
-    from bridge.store import StoreReader
+    from bridge.pictures.render import render_store
+    from bridge.results.store import StoreReader
 
     with StoreReader(store) as st:
         worst = st.meta("summary")["worst"]
@@ -180,8 +180,8 @@ def test_margin_map_marks_the_worst_cell_and_writes_cell_data(store, tmp_path):
 
 
 def test_ply_stress_at_a_case_and_ply(store, tmp_path):
-    from bridge.render_run import select_field
-    from bridge.store import StoreReader
+    from bridge.pictures.render import select_field
+    from bridge.results.store import StoreReader
 
     with StoreReader(store) as st:
         f = select_field(st, "stress:s2", ply=2, case="b")

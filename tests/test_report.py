@@ -19,7 +19,7 @@ from tests.test_render import EVIL, build_store
 def report(tmp_path_factory):
     store = build_store(tmp_path_factory.getbasetemp())
     out = tmp_path_factory.mktemp("report") / "report.html"
-    from bridge.report_run import write_report
+    from bridge.pictures.report import write_report
 
     write_report(store, out, compare_fragment='<table class="cmp"><tr><td>solver vs plybridge</td></tr></table>')
     return store, out
@@ -34,7 +34,7 @@ def test_report_is_self_contained_and_escaped(report):
     assert not re.search(r'(src|href)="(?!data:)', text)  # nothing fetched from elsewhere
     assert "never replace, review by a qualified engineer" in text and "@media print" in text
     assert 'class="cmp"' in text
-    from bridge.store import StoreReader
+    from bridge.results.store import StoreReader
 
     with StoreReader(store) as st:
         worst = st.meta("summary")["worst"]

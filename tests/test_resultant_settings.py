@@ -7,9 +7,9 @@ import tomllib
 import numpy as np
 import pytest
 
-from bridge.definition import parse_definition
-from bridge.resultant_settings import resultant_options
-from bridge.resultants import apply_settings
+from bridge.definition.loader import parse_definition
+from bridge.definition.resultants import resultant_options
+from bridge.recover.resultants import apply_settings
 from shells.errors import DefinitionError, ResultantsError
 
 BASE = """

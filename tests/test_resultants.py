@@ -14,10 +14,10 @@ import h5py
 import numpy as np
 import pytest
 
-from bridge.formats import vtu
-from bridge.frames import element_frames
-from bridge.resultants import (ResultantFields, ResultantSettings, nonfinite_mask, read_resultants,
-                               resultant_arrays, to_element_frame, write_resultants_h5, write_resultants_xdmf)
+from bridge.mesh.formats import vtu
+from bridge.model.frames import element_frames
+from bridge.definition.resultants import ResultantFields, ResultantSettings
+from bridge.recover.resultants import (nonfinite_mask, read_resultants, resultant_arrays, to_element_frame, write_resultants_h5, write_resultants_xdmf)
 from shells.errors import InputError, ResultantsError
 from tests.meshes import mixed_plate, warped_plate
 

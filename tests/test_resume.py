@@ -12,13 +12,13 @@ import time
 
 import pytest
 
-from bridge.recover_run import run_recover
-from bridge.resume import partial_paths
+from bridge.recover.run import run_recover
+from bridge.results.partial import partial_paths
 from shells.errors import StoreError
 from tests.common import ROOT
 from tests.corpus.models import resultants, write_model
 from tests.test_distributed import assert_same_bits, datasets
-from bridge.resultants import write_resultants_h5
+from bridge.recover.resultants import write_resultants_h5
 
 
 @pytest.fixture(scope="module")

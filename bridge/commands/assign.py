@@ -23,10 +23,10 @@ def sections_path(output: str | Path) -> Path:
 @click.option("-o", "--output", required=True, type=click.Path(dir_okay=False), help="Output mesh (.vtu, .xdmf).")
 def assign(definition: str, mesh: str, output: str) -> None:
     from bridge.atomic import write_text
-    from bridge.definition import load_definition
-    from bridge.formats import read_mesh, write_mesh
-    from bridge.model import build_model, describe
-    from bridge.section_fields import section_fields, section_table_json
+    from bridge.definition.loader import load_definition
+    from bridge.mesh.formats import read_mesh, write_mesh
+    from bridge.model.build import build_model, describe
+    from bridge.model.fields import section_fields, section_table_json
 
     if not output.lower().endswith((".vtu", ".xdmf")):
         raise InputError(f"--output {output}: write a .vtu or .xdmf file")

@@ -26,7 +26,7 @@ import click
               help="Also write the HTML section for plybridge report --compare.")
 @click.option("--json", "as_json", is_flag=True, help="Print the full summary as JSON instead.")
 def compare(definition, mesh, resultants, solver_plies, output, tolerance, view, map_png, fragment, as_json):
-    from bridge.compare_run import run_compare, verdict_lines
+    from bridge.compare.run import run_compare, verdict_lines
 
     summary = run_compare(definition, mesh, [resultants], list(solver_plies), output, tolerance, view, map_png,
                           fragment)

@@ -32,11 +32,11 @@ def demo(out_dir: str) -> None:
     from bridge.atomic import write_text
     from bridge.demo import write_inputs
     from bridge.demo.geometry import camera_below
-    from bridge.recover_run import run_recover
+    from bridge.recover.run import run_recover
     from postproc.summary import hot_spots_csv
 
-    from .assign import assign
-    from .recover import _progress, sidecar
+    from bridge.commands.assign import assign
+    from bridge.commands.recover import _progress, sidecar
 
     start = time.perf_counter()
     out = Path(out_dir)
@@ -52,8 +52,8 @@ def demo(out_dir: str) -> None:
     _note(start, f"wrote {store}; worst margin {w.get('min_margin', float('nan')):.3g} in cell {w.get('cell')} "
                  f"(ply {w.get('ply')}, case {w.get('case')}, {w.get('criterion')})")
 
-    from bridge.render_run import render_store
-    from bridge.report_run import write_report
+    from bridge.pictures.render import render_store
+    from bridge.pictures.report import write_report
 
     for field, name in MAPS:
         render_store(store, out / name, field=field, views=("iso", camera_below()), size=MAP_SIZE)

@@ -65,8 +65,8 @@ def summary_lines(summary: dict, units: str) -> str:
 def recover(definition, mesh, resultants, output, store_kind, view, hot_path, as_json, quiet, workers,
             scheduler, block_cells, resume) -> None:
     from bridge.atomic import write_text
-    from bridge.recover_run import run_recover
-    from bridge.view import write_view
+    from bridge.recover.run import run_recover
+    from bridge.results.view import write_view
     from postproc.summary import hot_spots_csv
 
     if view and not view.lower().endswith((".vtu", ".xdmf")):
@@ -84,7 +84,7 @@ def recover(definition, mesh, resultants, output, store_kind, view, hot_path, as
     write_text(hot_path or sidecar(output, ".hotspots.csv"), hot_spots_csv(summary))
     if view:
         write_view(output, view)
-    from bridge.store import StoreReader
+    from bridge.results.store import StoreReader
 
     with StoreReader(output) as st:
         units = st.meta("units")

@@ -53,7 +53,7 @@ def parse_size(text: str) -> tuple[int, int]:
 @click.option("--cell-data", type=click.Path(dir_okay=False), help="Also write the field as cell data (.vtu).")
 def render(results, output, field, ply, case, views, cameras, size, cell_data) -> None:
     os.environ.setdefault("VTK_DEFAULT_OPENGL_WINDOW", "vtkEGLRenderWindow")
-    from bridge.render_run import render_store
+    from bridge.pictures.render import render_store
 
     chosen = list(views) + [parse_camera(c) for c in cameras]
     if cell_data and not cell_data.lower().endswith(".vtu"):

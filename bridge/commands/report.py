@@ -19,7 +19,7 @@ from postproc.report import CAUTION
               help="HTML fragment written by plybridge compare, inserted as a section.")
 def report(results, output, compare) -> None:
     os.environ.setdefault("VTK_DEFAULT_OPENGL_WINDOW", "vtkEGLRenderWindow")
-    from bridge.report_run import write_report
+    from bridge.pictures.report import write_report
 
     fragment = Path(compare).read_text(encoding="utf-8") if compare else None
     write_report(results, output, fragment)

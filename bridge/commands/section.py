@@ -15,9 +15,9 @@ import click
 @click.option("-o", "--output", type=click.Path(dir_okay=False), help="Write to this file instead of stdout.")
 def section(definition: str, names: tuple[str, ...], as_json: bool, output: str | None) -> None:
     from bridge.atomic import write_text
-    from bridge.definition import load_definition
-    from bridge.sections import build_sections, select_laminates
-    from bridge.section_table import format_sections
+    from bridge.definition.loader import load_definition
+    from bridge.model.sections import build_sections, select_laminates
+    from bridge.model.section_text import format_sections
 
     defn = load_definition(definition)
     chosen = select_laminates(defn, names)

@@ -13,7 +13,7 @@ import tomllib
 from dataclasses import dataclass
 from pathlib import Path
 
-from .scenario import DEMO, Scenario, definition_text
+from bridge.demo.scenario import DEMO, Scenario, definition_text
 
 DEFINITION_NAME = "demo.toml"
 MESH_NAME = "bay.vtu"
@@ -45,12 +45,12 @@ def write_inputs(folder: str | Path, s: Scenario = DEMO) -> DemoInputs:
         The three paths. Every file is written atomically.
     """
     from bridge.atomic import write_text
-    from bridge.definition import parse_definition
-    from bridge.formats import write_mesh
-    from bridge.resultants import write_resultants_h5
+    from bridge.definition.loader import parse_definition
+    from bridge.mesh.formats import write_mesh
+    from bridge.recover.resultants import write_resultants_h5
 
-    from .geometry import demo_mesh
-    from .loads import cases_toml, demo_resultants, load_cases
+    from bridge.demo.geometry import demo_mesh
+    from bridge.demo.loads import cases_toml, demo_resultants, load_cases
 
     out = Path(folder)
     out.mkdir(parents=True, exist_ok=True)

@@ -14,9 +14,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from bridge.mesh import ShellMesh
+from bridge.mesh.shell import ShellMesh
 
-from .scenario import DEMO, FRAME_ARRAY, TAG_ARRAY, Scenario
+from bridge.demo.scenario import DEMO, FRAME_ARRAY, TAG_ARRAY, Scenario
 
 _X, _Y, _Z = np.eye(3)
 

@@ -3,7 +3,7 @@
 Each panel is taken as simply supported on its four edges and solved on its
 own: the bending part is the Navier series of a first-order shear deformation
 plate (:func:`shells.navier.plate_fields`, with the panel's D and H from
-:func:`bridge.sections.section_of`) under a uniform lateral load, evaluated at
+:func:`bridge.model.sections.section_of`) under a uniform lateral load, evaluated at
 the cell centroids in the panel's plate coordinates; the membrane part is a
 uniform in-plane flow from an equilibrium estimate (below). Resultants come out
 in the panel axes (u, v) and are rotated into each cell's element frame as
@@ -26,15 +26,15 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from bridge.definition import Definition
-from bridge.mesh import ShellMesh
-from bridge.model import build_model
-from bridge.resultants import to_element_frame
-from bridge.sections import section_of
+from bridge.definition.loader import Definition
+from bridge.mesh.shell import ShellMesh
+from bridge.model.build import build_model
+from bridge.recover.resultants import to_element_frame
+from bridge.model.sections import section_of
 from shells.navier import plate_fields, resultants
 
-from .geometry import Panel, panel_of_cells, panels
-from .scenario import DEMO, G_MM, Scenario
+from bridge.demo.geometry import Panel, panel_of_cells, panels
+from bridge.demo.scenario import DEMO, G_MM, Scenario
 
 
 @dataclass(frozen=True)
@@ -153,7 +153,7 @@ def demo_resultants(defn: Definition, mesh: ShellMesh, cases: tuple[LoadCase, ..
     """Resultants (n_cases, n_cells, 8) of every case in each cell's element frame.
 
     The element frames and material angles are those :func:`bridge.model.build_model` gives the mesh under
-    ``defn``; the panel-axis resultants are rotated with :func:`bridge.resultants.to_element_frame`
+    ``defn``; the panel-axis resultants are rotated with :func:`bridge.recover.resultants.to_element_frame`
     (``frame="vectors"``, the vectors being each cell's panel u axis).
 
     Raises

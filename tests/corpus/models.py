@@ -13,8 +13,8 @@ from pathlib import Path
 
 import numpy as np
 
-from bridge.formats import write_mesh
-from bridge.resultants import write_resultants_h5
+from bridge.mesh.formats import write_mesh
+from bridge.recover.resultants import write_resultants_h5
 from tests.meshes import flat_plate
 
 HERE = Path(__file__).resolve().parent

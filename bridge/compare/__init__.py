@@ -1,0 +1,1 @@
+"""Checking a solver's own ply output against an independent recovery."""

@@ -1,0 +1,81 @@
+"""The ``[analysis]`` table: criteria, factors of safety and method settings."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any
+
+from shells.errors import DefinitionError
+
+from bridge.definition.schema import expect_table, take
+from bridge.definition.units import UnitSystem
+
+SPEC = {"criteria": "any", "factor_of_safety": "any", "transverse_shear": "str", "shear_factor": "dimensionless",
+        "wrinkling_coefficient": "dimensionless", "hot_spots": "int"}
+SHEAR_METHODS = ("equilibrium", "factor")
+#: Factor of safety by case kind: 1.5 on limit loads (14 CFR 25.303), 1.0 on ultimate loads.
+DEFAULT_FOS = {"limit": 1.5, "ultimate": 1.0}
+
+
+@dataclass(frozen=True)
+class Analysis:
+    """Settings of the recovery and margin calculation.
+
+    Attributes
+    ----------
+    criteria : tuple of str
+        Registered criterion names (``shells.criteria``), evaluated at every ply point.
+    factor_of_safety : dict
+        Case kind → factor of safety.
+    transverse_shear : str
+        ``"equilibrium"`` (Rolfes & Rohwer 1997, default) or ``"factor"`` for H.
+    shear_factor : float
+        Correction factor of the ``"factor"`` method (5/6, common practice).
+    wrinkling_coefficient : float
+        k in σ_wr = k (Ef Ec Gc)^(1/3) (0.5, design value after Hoff & Mautner).
+    hot_spots : int
+        Rows in the hot-spot table.
+    """
+
+    criteria: tuple[str, ...] = ("max-stress", "max-strain", "tsai-wu", "hashin")
+    factor_of_safety: tuple[tuple[str, float], ...] = tuple(DEFAULT_FOS.items())
+    transverse_shear: str = "equilibrium"
+    shear_factor: float = 5.0 / 6.0
+    wrinkling_coefficient: float = 0.5
+    hot_spots: int = 20
+
+    def fos(self, kind: str) -> float:
+        return dict(self.factor_of_safety)[kind]
+
+
+def parse_analysis(table: Any, units: UnitSystem) -> Analysis:
+    from shells.criteria import DEFAULT, by_name
+
+    values = take(expect_table(table, "[analysis]"), SPEC, "analysis", units)
+    criteria = values.get("criteria", DEFAULT)
+    if not isinstance(criteria, (list, tuple)) or not criteria or not all(isinstance(c, str) for c in criteria):
+        raise DefinitionError("analysis.criteria must be a non-empty list of criterion names")
+    try:
+        for name in criteria:
+            by_name(name)
+    except DefinitionError as err:
+        raise DefinitionError(f"analysis.criteria: {err.detail}") from None
+    fos = dict(DEFAULT_FOS)
+    given = expect_table(values.get("factor_of_safety", {}), "analysis.factor_of_safety")
+    for kind, value in given.items():
+        if kind not in DEFAULT_FOS:
+            raise DefinitionError(f"analysis.factor_of_safety: unknown case kind '{kind}'; use limit or ultimate")
+        if isinstance(value, bool) or not isinstance(value, (int, float)) or not value >= 1.0:
+            raise DefinitionError(f"analysis.factor_of_safety.{kind} = {value!r} must be a number >= 1")
+        fos[kind] = float(value)
+    method = values.get("transverse_shear", "equilibrium")
+    if method not in SHEAR_METHODS:
+        raise DefinitionError(f"analysis.transverse_shear = {method!r}; use one of {', '.join(SHEAR_METHODS)}")
+    k = values.get("shear_factor", 5.0 / 6.0)
+    if not 0 < k <= 1.0:
+        raise DefinitionError(f"analysis.shear_factor = {k} must lie in (0, 1]")
+    hot = values.get("hot_spots", 20)
+    if not 1 <= hot <= 100000:
+        raise DefinitionError(f"analysis.hot_spots = {hot} must lie between 1 and 100000")
+    return Analysis(tuple(dict.fromkeys(criteria)), tuple(fos.items()), method, k,
+                    values.get("wrinkling_coefficient", 0.5), hot)

@@ -1,0 +1,165 @@
+"""Load cases and combinations: ``[cases.NAME]`` and ``[combinations.NAME]``.
+
+A case takes its resultants from one step of the resultants input, named by
+``step`` (1-based position) or ``source`` (the case name in the file); with no
+``[cases]`` table every case found in the file is used, as a limit case with no
+temperature change. A combination is a named linear sum of cases with factors
+(a table of numbers, never an expression); its temperature change is the same
+linear sum unless it states its own ``delta_T`` (linear theory makes both
+consistent).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Any, Mapping
+
+import numpy as np
+
+from shells.errors import DefinitionError, ResultantsError
+
+from bridge.definition.schema import check_name, expect_table, suggest, take
+from bridge.definition.units import UnitSystem
+
+KINDS = ("limit", "ultimate")
+CASE_SPEC = {"step": "int", "source": "str", "delta_T": "temperature", "temperature_field": "str",
+             "kind": "str", "pressure": "stress", "delta_M": "dimensionless", "description": "str"}
+COMBO_SPEC = {"factors": "any", "kind": "str", "delta_T": "temperature", "description": "str"}
+MAX_CASES = 100000
+
+
+@dataclass(frozen=True)
+class Case:
+    """One load case as used by recovery.
+
+    Attributes
+    ----------
+    name : str
+    kind : str
+        ``limit`` or ``ultimate`` (chooses the factor of safety).
+    delta_T : float
+        Uniform temperature change from the stress-free state (unit of the system).
+    temperature_field : str or None
+        A per-cell temperature-change array of the mesh, overriding ``delta_T``.
+    pressure : float
+        Lateral pressure, taken as σ3 = −pressure through the section (core crushing).
+    factors : tuple of (source case index, factor)
+        How the case's resultants are built from the input steps.
+    """
+
+    name: str
+    kind: str = "limit"
+    delta_T: float = 0.0
+    delta_M: float = 0.0
+    temperature_field: str | None = None
+    pressure: float = 0.0
+    factors: tuple[tuple[int, float], ...] = ()
+
+
+@dataclass(frozen=True)
+class Cases:
+    """Case and combination tables as written (resolved against the input by :meth:`resolve`)."""
+
+    cases: Mapping[str, Mapping[str, Any]] = field(default_factory=dict)
+    combinations: Mapping[str, Mapping[str, Any]] = field(default_factory=dict)
+
+    def resolve(self, input_names: tuple[str, ...]) -> tuple[Case, ...]:
+        """Cases and combinations against the case names found in the resultants input."""
+        if not self.cases:
+            base = [Case(name, factors=((i, 1.0),)) for i, name in enumerate(input_names)]
+        else:
+            base = [_resolve_case(name, spec, input_names) for name, spec in self.cases.items()]
+        by_name = {c.name: c for c in base}
+        out = list(base)
+        for name, spec in self.combinations.items():
+            factors: dict[int, float] = {}
+            dT = 0.0
+            dM = 0.0
+            for case_name, f in spec["factors"].items():
+                if case_name not in by_name:
+                    raise DefinitionError(f"combinations.{name}.factors: unknown case '{case_name}'"
+                                          f"{suggest(case_name, by_name)}; known cases: {', '.join(by_name)}")
+                c = by_name[case_name]
+                if c.temperature_field is not None:
+                    raise DefinitionError(f"combinations.{name}: case '{case_name}' uses a temperature field; "
+                                          "combinations take uniform delta_T only")
+                for idx, g in c.factors:
+                    factors[idx] = factors.get(idx, 0.0) + f * g
+                dT += f * c.delta_T
+                dM += f * c.delta_M
+            out.append(Case(name, spec.get("kind", "limit"), spec.get("delta_T", dT), dM, None,
+                            sum(spec["factors"][n] * by_name[n].pressure for n in spec["factors"]),
+                            tuple(sorted(factors.items()))))
+        return tuple(out)
+
+
+def _resolve_case(name: str, spec: Mapping[str, Any], input_names: tuple[str, ...]) -> Case:
+    where = f"cases.{name}"
+    if "step" in spec:
+        step = spec["step"]
+        if not 1 <= step <= len(input_names):
+            raise ResultantsError(f"{where}.step = {step}: the resultants hold {len(input_names)} steps "
+                                  f"(1 … {len(input_names)})")
+        index = step - 1
+    else:
+        source = spec.get("source", name)
+        if source not in input_names:
+            raise ResultantsError(f"{where}: no case '{source}' in the resultants{suggest(source, input_names)}; "
+                                  f"found: {', '.join(input_names[:20])}; set step = k or source = \"...\"")
+        index = input_names.index(source)
+    return Case(name, spec.get("kind", "limit"), spec.get("delta_T", 0.0), spec.get("delta_M", 0.0),
+                spec.get("temperature_field"), spec.get("pressure", 0.0), ((index, 1.0),))
+
+
+def _check_kind(values: dict, where: str) -> None:
+    kind = values.get("kind", "limit")
+    if kind not in KINDS:
+        raise DefinitionError(f"{where}.kind = {kind!r}{suggest(kind, KINDS)}; use limit or ultimate")
+
+
+def parse_cases(cases: Any, combinations: Any, units: UnitSystem) -> Cases:
+    cases = expect_table(cases, "[cases]")
+    combinations = expect_table(combinations, "[combinations]")
+    if len(cases) + len(combinations) > MAX_CASES:
+        raise DefinitionError(f"more than {MAX_CASES} cases and combinations; split the run")
+    parsed: dict[str, dict] = {}
+    for name, table in cases.items():
+        where = f"cases.{check_name(name, '[cases]')}"
+        values = take(expect_table(table, f"[{where}]"), CASE_SPEC, where, units)
+        if "step" in values and "source" in values:
+            raise DefinitionError(f"[{where}]: give step or source, not both")
+        _check_kind(values, where)
+        parsed[name] = values
+    combos: dict[str, dict] = {}
+    for name, table in combinations.items():
+        where = f"combinations.{check_name(name, '[combinations]')}"
+        if name in parsed:
+            raise DefinitionError(f"[{where}]: a case of the same name exists; rename one")
+        values = take(expect_table(table, f"[{where}]"), COMBO_SPEC, where, units, required=("factors",))
+        factors = expect_table(values["factors"], f"{where}.factors")
+        if not factors:
+            raise DefinitionError(f"{where}.factors is empty; give case = factor pairs")
+        for case_name, f in factors.items():
+            if isinstance(f, bool) or not isinstance(f, (int, float)) or not np.isfinite(f):
+                raise DefinitionError(f"{where}.factors.{case_name} = {f!r} must be a finite number")
+        _check_kind(values, where)
+        combos[name] = values
+    return Cases(parsed, combos)
+
+
+def combine_steps(weights: np.ndarray, steps: np.ndarray) -> np.ndarray:
+    """Cases as linear sums of input steps: ``out[j] = Σ_s weights[j, s] · steps[s]``.
+
+    Only the steps a case uses enter its sum, so a NaN in one step never spreads
+    into cases that do not use it (0 · NaN would).
+
+    Parameters
+    ----------
+    weights : (ncase, nstep)
+    steps : (nstep, ncell, 8)
+    """
+    out = np.zeros((weights.shape[0],) + steps.shape[1:])
+    for j, row in enumerate(weights):
+        for s in np.flatnonzero(row):
+            out[j] += row[s] * steps[s]
+    return out

@@ -1,0 +1,84 @@
+"""The ``[materials.NAME]`` tables of a definition file → material dataclasses."""
+
+from __future__ import annotations
+
+from typing import Any, Mapping
+
+from shells.errors import DefinitionError, MaterialError
+from shells.materials import Core, Isotropic, Material, Orthotropic
+
+from bridge.definition.schema import check_name, expect_table, suggest, take
+from bridge.definition.units import UnitSystem
+
+S, L, D = "stress", "length", "dimensionless"
+
+_COMMON = {"kind": "str", "description": "str", "density": "density", "thickness": L, "knockdown": "any"}
+
+SPECS: dict[str, dict[str, str]] = {
+    "ply": {
+        **_COMMON,
+        "E1": S, "E2": S, "G12": S, "nu12": D, "G13": S, "G23": S, "nu23": D,
+        "alpha1": "expansion", "alpha2": "expansion", "beta1": D, "beta2": D,
+        "Xt": S, "Xc": S, "Yt": S, "Yc": S, "S12": S, "S13": S, "S23": S, "ilss": S,
+        "e1t": D, "e1c": D, "e2t": D, "e2c": D, "g12u": D,
+        "F12star": D, "p_tpl": D, "p_cpl": D, "alpha0": "angle", "insitu": "bool",
+    },
+    "isotropic": {
+        **_COMMON, "E": S, "nu": D, "alpha": "expansion", "beta": D,
+        "yield_strength": S, "Xt": S, "Xc": S, "S12": S, "ilss": S,
+    },
+    "core": {
+        **_COMMON, "G13": S, "G23": S, "Ez": S, "E1": S, "E2": S, "S13": S, "S23": S, "Zc": S,
+        "cell_size": L,
+    },
+}
+REQUIRED = {"ply": ("E1", "E2", "G12", "nu12"), "isotropic": ("E", "nu"), "core": ("G13", "G23")}
+_RENAME = {"isotropic": {"alpha": "cte", "beta": "cme"}, "ply": {"alpha0": "alpha0_deg"}}
+_CLASSES = {"ply": Orthotropic, "isotropic": Isotropic, "core": Core}
+KNOCKDOWN_KEYS = ("environment", "damage", "other")
+
+
+def _knockdown(value: Any, where: str) -> float:
+    """A number, or a table of factors (environment, damage, other) multiplied together."""
+    if isinstance(value, bool):
+        raise DefinitionError(f"{where} must be a number or a table of factors")
+    if isinstance(value, (int, float)):
+        return float(value)
+    table = expect_table(value, where)
+    product = 1.0
+    for key, factor in table.items():
+        if key not in KNOCKDOWN_KEYS:
+            raise DefinitionError(f"{where}: unknown factor '{key}'{suggest(key, KNOCKDOWN_KEYS)}; "
+                                  f"use {', '.join(KNOCKDOWN_KEYS)}")
+        if isinstance(factor, bool) or not isinstance(factor, (int, float)):
+            raise DefinitionError(f"{where}.{key} must be a number in (0, 1]")
+        product *= float(factor)
+    return product
+
+
+def parse_material(name: str, table: Mapping[str, Any], units: UnitSystem) -> Material:
+    where = f"materials.{name}"
+    table = expect_table(table, f"[{where}]")
+    kind = table.get("kind", "ply")
+    if kind not in SPECS:
+        raise DefinitionError(f"[{where}]: kind = {kind!r} is not known{suggest(kind, SPECS)}; "
+                              f"use one of {', '.join(SPECS)}")
+    values = take(table, SPECS[kind], where, units, REQUIRED[kind])
+    values.pop("kind", None)
+    values.pop("description", None)
+    if "knockdown" in values:
+        values["knockdown"] = _knockdown(values["knockdown"], f"{where}.knockdown")
+    for old, new in _RENAME.get(kind, {}).items():
+        if old in values:
+            values[new] = values.pop(old)
+    try:
+        return _CLASSES[kind](name=name, **values).validate()
+    except MaterialError as err:
+        raise MaterialError(f"[{where}]: {err.detail}") from None
+
+
+def parse_materials(tables: Any, units: UnitSystem) -> dict[str, Material]:
+    tables = expect_table(tables, "[materials]")
+    if not tables:
+        raise DefinitionError("[materials] is empty; define at least one material")
+    return {check_name(name, "[materials]"): parse_material(name, table, units) for name, table in tables.items()}

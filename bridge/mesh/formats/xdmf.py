@@ -1,0 +1,390 @@
+"""XDMF 3 (``.xdmf``/``.xmf``): our own writer and reader (XML + HDF5 via h5py).
+
+Layout written
+--------------
+- The heavy data go to ``<stem>.h5`` beside the XML file: ``/mesh/points``
+  (n, 3) float64, ``/mesh/topology`` and one dataset per cell array, chunked
+  (about 65536 rows) with shuffle + gzip. Datasets are numbered; the XML
+  carries the array names.
+- A mesh whose cells are all of one type gets that XDMF topology
+  (``Triangle``, ``Quadrilateral``, ``Triangle_6``, ``Quadrilateral_8``);
+  several types get one ``Mixed`` topology (each cell's XDMF type number
+  followed by its nodes), in global-cell order.
+- A time series is a ``Temporal`` collection of grids, one per step, each with
+  ``<Time Value=i>`` and ``<Information Name="case" Value=...>``; all steps
+  share the mesh datasets.
+- The .h5 is written first, then the XML; both are replaced atomically.
+
+Other readers: meshio 5.3.5 reads our single-grid files, including
+triangle + quad ``Mixed`` topologies, but not a ``Mixed`` topology with
+``Triangle_6`` / ``Quadrilateral_8`` cells. Cell arrays with 1, 2, 3, 6 or 9
+components are what meshio and most viewers accept; our reader takes any count.
+"""
+
+from __future__ import annotations
+
+import os
+import xml.etree.ElementTree as ET
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Mapping, Sequence
+
+import numpy as np
+
+from bridge.atomic import atomic_path, write_text
+from bridge.mesh.shell import NODES_PER_CELL, ShellMesh, flatten_cell_data, shell_mesh_from_blocks
+from shells.errors import MeshError
+
+name = "xdmf"
+extensions = (".xdmf", ".xmf")
+can_write = True
+
+TOPOLOGY = {"triangle": "Triangle", "quad": "Quadrilateral", "triangle6": "Triangle_6",
+            "quad8": "Quadrilateral_8"}
+_TOPOLOGY_IN = {"Triangle": "triangle", "Quadrilateral": "quad", "Triangle_6": "triangle6",
+                "Tri_6": "triangle6", "Quadrilateral_8": "quad8", "Quad_8": "quad8",
+                "Quadrilateral_9": "quad9", "Quad_9": "quad9", "Polyline": "line", "Polyvertex": "vertex",
+                "Tetrahedron": "tetra", "Hexahedron": "hexahedron", "Wedge": "wedge", "Pyramid": "pyramid"}
+#: XDMF Mixed-topology type numbers -> (meshio type, nodes); 0 nodes = count follows the type.
+MIXED_ID = {1: ("vertex", 0), 2: ("line", 0), 4: ("triangle", 3), 5: ("quad", 4), 6: ("tetra", 4),
+            7: ("pyramid", 5), 8: ("wedge", 6), 9: ("hexahedron", 8), 0x22: ("line3", 3),
+            0x23: ("quad9", 9), 0x24: ("triangle6", 6), 0x25: ("quad8", 8)}
+_MIXED_OUT = {"triangle": 4, "quad": 5, "triangle6": 0x24, "quad8": 0x25}
+_DTYPES = {("Float", "4"): np.float32, ("Float", "8"): np.float64, ("Int", "1"): np.int8,
+           ("Int", "2"): np.int16, ("Int", "4"): np.int32, ("Int", "8"): np.int64,
+           ("UInt", "1"): np.uint8, ("UInt", "2"): np.uint16, ("UInt", "4"): np.uint32,
+           ("UInt", "8"): np.uint64, ("Char", "1"): np.int8, ("UChar", "1"): np.uint8}
+CHUNK_ROWS = 65536
+
+
+def sniff(head: bytes) -> bool:
+    """True when the first bytes hold an ``<Xdmf`` root element."""
+    return b"<Xdmf" in head
+
+
+@dataclass(frozen=True)
+class Step:
+    """One grid of a temporal collection: its name, time value and cell arrays (global cells)."""
+
+    name: str
+    time: float | None
+    cell_data: dict
+
+
+# ----------------------------------------------------------------------------- writing
+
+def _attr_type(a: np.ndarray) -> str:
+    k = 1 if a.ndim == 1 else a.shape[1]
+    return {1: "Scalar", 3: "Vector", 6: "Tensor6", 9: "Tensor"}.get(k, "Matrix")
+
+
+def _number_type(a: np.ndarray) -> tuple[str, str]:
+    kind = {"f": "Float", "i": "Int", "u": "UInt"}.get(a.dtype.kind)
+    if kind is None:
+        raise MeshError(f"cannot write an array of dtype {a.dtype} to XDMF; give numbers")
+    return kind, str(a.dtype.itemsize)
+
+
+class _H5Writer:
+    """Adds chunked, compressed datasets to an open h5py file and returns their XML DataItems."""
+
+    def __init__(self, h5, h5name: str):
+        self.h5, self.h5name = h5, h5name
+
+    def item(self, path: str, a: np.ndarray) -> ET.Element:
+        a = np.ascontiguousarray(a.astype(np.int8) if a.dtype == bool else a)
+        kind, prec = _number_type(a)
+        chunks = (min(len(a), CHUNK_ROWS if a.ndim > 1 else 4 * CHUNK_ROWS),) + a.shape[1:]
+        if path not in self.h5:
+            self.h5.create_dataset(path, data=a, chunks=chunks if a.size else None,
+                                   compression="gzip", compression_opts=4, shuffle=True)
+        el = ET.Element("DataItem", DataType=kind, Precision=prec, Format="HDF",
+                        Dimensions=" ".join(str(d) for d in a.shape))
+        el.text = f"{self.h5name}:{path}"
+        return el
+
+
+def _topology(mesh: ShellMesh, w: _H5Writer) -> ET.Element:
+    types = {t for t, _ in mesh.blocks}
+    if len(types) == 1:
+        t = types.pop()
+        conn = np.concatenate([c for _, c in mesh.blocks])
+        el = ET.Element("Topology", TopologyType=TOPOLOGY[t], NumberOfElements=str(len(conn)),
+                        NodesPerElement=str(NODES_PER_CELL[t]))
+        el.append(w.item("/mesh/topology", conn))
+        return el
+    flat = np.concatenate([np.column_stack([np.full(len(c), _MIXED_OUT[t], np.int64), c]).ravel()
+                           for t, c in mesh.blocks])
+    el = ET.Element("Topology", TopologyType="Mixed", NumberOfElements=str(mesh.n_cells))
+    el.append(w.item("/mesh/topology", flat))
+    return el
+
+
+def _grid(mesh: ShellMesh, w: _H5Writer, data: Mapping[str, np.ndarray], group: str,
+          grid_name: str) -> ET.Element:
+    grid = ET.Element("Grid", Name=grid_name, GridType="Uniform")
+    grid.append(_topology(mesh, w))
+    geo = ET.SubElement(grid, "Geometry", GeometryType="XYZ")
+    geo.append(w.item("/mesh/points", np.asarray(mesh.points)))
+    for i, (key, arr) in enumerate(data.items()):
+        a = np.asarray(arr)
+        if a.ndim == 2 and a.shape[1] == 1:
+            a = a[:, 0]
+        att = ET.SubElement(grid, "Attribute", Name=key, AttributeType=_attr_type(a), Center="Cell")
+        att.append(w.item(f"{group}/{i}", a))
+    return grid
+
+
+def _write_xml(path: Path, grids: Sequence[ET.Element], temporal: bool) -> None:
+    root = ET.Element("Xdmf", Version="3.0")
+    domain = ET.SubElement(root, "Domain")
+    if temporal:
+        coll = ET.SubElement(domain, "Grid", Name="steps", GridType="Collection", CollectionType="Temporal")
+        coll.extend(grids)
+    else:
+        domain.extend(grids)
+    ET.indent(root)
+    write_text(path, '<?xml version="1.0"?>\n' + ET.tostring(root, encoding="unicode") + "\n")
+
+
+def write_series(path: str | os.PathLike, mesh: ShellMesh,
+                 steps: Sequence[tuple[str, Mapping[str, np.ndarray]]]) -> None:
+    """Write a temporal collection, one grid per ``(step name, cell data)`` item.
+
+    Parameters
+    ----------
+    path : path-like
+        Target XML file; the data go to ``<stem>.h5`` beside it.
+    mesh : ShellMesh
+        The mesh, shared by every step.
+    steps : sequence of (str, dict of str to ndarray)
+        Step name (written as ``<Information Name="case">``; the time value
+        is the step's 0-based position) and its cell arrays over global cells.
+    """
+    _write(Path(path), mesh, [(s, dict(d)) for s, d in steps], temporal=True)
+
+
+def write(path: str | os.PathLike, mesh: ShellMesh, cell_data: Mapping[str, np.ndarray] | None = None) -> None:
+    """Write ``mesh`` and ``cell_data`` (over global cells) as one XDMF 3 grid; see the module notes."""
+    _write(Path(path), mesh, [("mesh", {**mesh.cell_data, **(cell_data or {})})], temporal=False)
+
+
+def _write(path: Path, mesh: ShellMesh, steps, temporal: bool) -> None:
+    import h5py
+
+    h5path = path.with_suffix(".h5")
+    if ":" in h5path.name:
+        raise MeshError("XDMF data file names must not contain ':'; rename the target", str(path))
+    steps = [(s, flatten_cell_data(d, mesh.n_cells, str(path))) for s, d in steps]
+    grids = []
+    with atomic_path(h5path) as tmp:
+        with h5py.File(tmp, "w") as h5:
+            w = _H5Writer(h5, h5path.name)
+            for k, (step_name, data) in enumerate(steps):
+                g = _grid(mesh, w, data, f"/step{k}" if temporal else "/cell_data", str(step_name))
+                if temporal:
+                    g.insert(0, ET.Element("Information", Name="case", Value=str(step_name)))
+                    g.insert(0, ET.Element("Time", Value=str(k)))
+                grids.append(g)
+    _write_xml(path, grids, temporal)
+
+
+# ----------------------------------------------------------------------------- reading
+
+class _Unsupported(Exception):
+    """A construct our reader does not handle (the mesh reader then falls back to meshio)."""
+
+
+class _Reader:
+    def __init__(self, path: str):
+        self.path = path
+        self.folder = Path(path).resolve().parent
+        try:
+            self.root = ET.parse(path).getroot()
+        except FileNotFoundError:
+            raise MeshError("file not found; check the path", path) from None
+        except ET.ParseError as exc:
+            raise MeshError(f"not well-formed XML ({exc}); the file may be truncated", path) from None
+        if self.root.tag != "Xdmf":
+            raise MeshError(f"root element is <{self.root.tag}>, not <Xdmf>", path)
+
+    def data(self, item: ET.Element | None) -> np.ndarray:
+        if item is None:
+            raise MeshError("an element has no DataItem", self.path)
+        if item.get("Reference"):
+            ref = (item.text or "").strip() if item.get("Reference") == "XML" else item.get("Reference")
+            target = self.root.find("." + ref[len("/Xdmf"):]) if ref.startswith("/Xdmf") else None
+            if target is None:
+                raise _Unsupported(f"reference {ref!r}")
+            return self.data(target)
+        if item.get("ItemType", "Uniform") != "Uniform":
+            raise _Unsupported(f"DataItem ItemType {item.get('ItemType')}")
+        dims = [int(d) for d in item.get("Dimensions", "").split()]
+        key = (item.get("DataType", item.get("NumberType", "Float")), item.get("Precision", "4"))
+        fmt = item.get("Format", "XML")
+        text = (item.text or "").strip()
+        if fmt == "XML":
+            dtype = _DTYPES.get(key, np.float64)
+            a = np.array(text.split(), dtype=dtype) if text else np.zeros(0, dtype)
+        elif fmt == "HDF":
+            a = self._hdf(text)
+        else:
+            raise _Unsupported(f"DataItem Format {fmt}")
+        if dims and int(np.prod(dims)) == a.size:
+            a = a.reshape(dims)
+        return a
+
+    def _hdf(self, text: str) -> np.ndarray:
+        import h5py
+
+        fname, _, h5path = text.rpartition(":")
+        full = self.folder / fname
+        try:
+            with h5py.File(full, "r", locking=False) as h5:
+                return h5[h5path][()]
+        except FileNotFoundError:
+            raise MeshError(f"data file {full} not found; keep the .h5 beside the .xdmf", self.path) from None
+        except KeyError:
+            raise MeshError(f"dataset {h5path!r} missing from {full}; the file may be incomplete",
+                            self.path) from None
+
+    def grids(self) -> list[ET.Element]:
+        """Uniform grids in document order (the members of collections, flattened)."""
+        domain = self.root.find("Domain")
+        out = []
+
+        def walk(g):
+            if g.get("GridType", "Uniform") == "Collection":
+                for child in g.findall("Grid"):
+                    walk(child)
+            else:
+                out.append(g)
+        for g in (domain.findall("Grid") if domain is not None else []):
+            walk(g)
+        if not out:
+            raise MeshError("no <Grid> in the <Domain>", self.path)
+        return out
+
+    def cells(self, grid: ET.Element) -> list[tuple[str, np.ndarray]]:
+        topo = grid.find("Topology")
+        if topo is None:
+            raise MeshError(f"grid {grid.get('Name', '')!r} has no <Topology>", self.path)
+        ttype = topo.get("TopologyType", topo.get("Type", ""))
+        data = self.data(topo.find("DataItem")).astype(np.int64)
+        if ttype == "Mixed":
+            return _split_mixed(data.ravel(), self.path)
+        if ttype not in _TOPOLOGY_IN:
+            raise _Unsupported(f"topology {ttype}")
+        npe = int(topo.get("NodesPerElement", data.shape[-1] if data.ndim == 2 else 1))
+        return [(_TOPOLOGY_IN[ttype], data.reshape(-1, npe))]
+
+    def points(self, grid: ET.Element) -> np.ndarray:
+        geo = grid.find("Geometry")
+        gtype = geo.get("GeometryType", geo.get("Type", "XYZ")) if geo is not None else ""
+        if gtype in ("XYZ", "XY"):
+            p = self.data(geo.find("DataItem")).astype(np.float64)
+            return p.reshape(-1, len(gtype))
+        if gtype in ("X_Y_Z", "X_Y"):
+            return np.column_stack([self.data(d).ravel() for d in geo.findall("DataItem")]).astype(np.float64)
+        raise _Unsupported(f"geometry {gtype!r}")
+
+    def cell_arrays(self, grid: ET.Element) -> dict[str, np.ndarray]:
+        return {a.get("Name", f"array{i}"): self.data(a.find("DataItem"))
+                for i, a in enumerate(grid.findall("Attribute")) if a.get("Center", "Node") == "Cell"}
+
+
+def _split_mixed(flat: np.ndarray, where: str) -> list[tuple[str, np.ndarray]]:
+    """Split a Mixed topology into runs of one type, vectorised over each run."""
+    blocks, r, n = [], 0, len(flat)
+    while r < n:
+        tid = int(flat[r])
+        if tid not in MIXED_ID:
+            raise MeshError(f"unknown cell type number {tid} in a Mixed topology", where)
+        ctype, nn = MIXED_ID[tid]
+        if nn == 0:  # polyvertex / polyline: the node count follows
+            k = int(flat[r + 1])
+            blocks.append((ctype, flat[r + 2:r + 2 + k][None, :]))
+            r += 2 + k
+            continue
+        stride, count, w = nn + 1, 0, 16
+        while r + (count + 1) * stride <= n:
+            m = min(w, (n - r) // stride - count)
+            heads = flat[r + count * stride:r + (count + m) * stride:stride]
+            bad = np.flatnonzero(heads != tid)
+            if bad.size:
+                count += int(bad[0])
+                break
+            count, w = count + m, w * 2
+        conn = flat[r:r + count * stride].reshape(count, stride)[:, 1:]
+        blocks.append((ctype, conn))
+        r += count * stride
+    return blocks
+
+
+def _per_block(arrays: Mapping[str, np.ndarray], blocks) -> dict[str, list[np.ndarray]]:
+    off = np.concatenate([[0], np.cumsum([len(c) for _, c in blocks])])
+    return {k: [a[off[i]:off[i + 1]] for i in range(len(blocks))]
+            for k, a in arrays.items() if a.ndim and a.shape[0] == off[-1]}
+
+
+def _mesh_of(reader: _Reader, grid: ET.Element) -> ShellMesh:
+    blocks = reader.cells(grid)
+    return shell_mesh_from_blocks(reader.points(grid), blocks,
+                                  _per_block(reader.cell_arrays(grid), blocks), source=reader.path)
+
+
+def read(path: str | os.PathLike) -> ShellMesh:
+    """Read the mesh (and cell arrays) of the first grid of an XDMF file.
+
+    Constructs our reader does not handle (hyperslabs, functions, XPath
+    references outside the file) are passed to meshio's reader.
+    """
+    path = str(path)
+    reader = _Reader(path)
+    try:
+        return _mesh_of(reader, reader.grids()[0])
+    except _Unsupported:
+        from bridge.mesh.shell import read_with_meshio
+        return read_with_meshio(path, "xdmf")
+
+
+def _step_name(grid: ET.Element, index: int) -> tuple[str, float | None]:
+    t = grid.find("Time")
+    time = float(t.get("Value")) if t is not None and t.get("Value") is not None else None
+    for info in grid.findall("Information"):
+        if info.get("Name", "").lower() in ("case", "load_case", "name") and info.get("Value"):
+            return info.get("Value"), time
+    if time is not None:
+        return f"{time:g}", time
+    return grid.get("Name") or f"step{index + 1}", time
+
+
+def read_series(path: str | os.PathLike) -> tuple[ShellMesh, list[Step]]:
+    """Read the mesh of the first grid and every grid's cell arrays as steps.
+
+    Returns
+    -------
+    mesh : ShellMesh
+        The mesh of the first grid.
+    steps : list of Step
+        One per uniform grid in document order. Names come from an
+        ``<Information Name="case" Value=...>`` element, else the ``<Time>``
+        value (formatted with ``%g``), else the grid name. Cell arrays are over
+        the global shell-cell index (rows of non-shell cells are dropped).
+    """
+    path = str(path)
+    reader = _Reader(path)
+    grids = reader.grids()
+    try:
+        mesh = _mesh_of(reader, grids[0])
+        steps = []
+        for i, g in enumerate(grids):
+            blocks = reader.cells(g) if g.find("Topology") is not None else reader.cells(grids[0])
+            keep = np.concatenate([np.full(len(c), t in NODES_PER_CELL or t in ("quad9", "triangle7"))
+                                   for t, c in blocks])
+            arrays = {k: a[keep] for k, a in reader.cell_arrays(g).items()
+                      if a.ndim and a.shape[0] == len(keep)}
+            steps.append(Step(*_step_name(g, i), arrays))
+    except _Unsupported as exc:
+        raise MeshError(f"XDMF construct not supported here: {exc}; write plain HDF DataItems", path) from None
+    return mesh, steps

@@ -1,0 +1,1 @@
+"""Recovery runs: resultant sources, cases, blocks of cells, serial or distributed, into the results store."""

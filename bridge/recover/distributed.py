@@ -1,0 +1,260 @@
+"""Where the blocks of a recovery run are computed: here, or on a dask.distributed cluster.
+
+A run is cut into blocks of whole store chunks (``bridge.results.store.CHUNK_CELLS``).
+Each block is described by a small picklable :class:`BlockSpec` (cell range,
+section ids, material angles, temperature changes and — when the resultants
+are not an HDF5 file that a task can open by path — the block's input steps).
+The run-wide :class:`BlockContext` (section tables as numpy arrays, criteria
+by name, case weights) is sent once to every worker. Tasks open input files by
+path inside the task (h5py objects do not pickle) and return the block's
+arrays; the driver alone writes the store (HDF5 is not safe for concurrent
+writers). Results are taken in block order through a bounded window, so the
+driver holds at most a few blocks at a time and the result does not depend on
+which worker finished first.
+
+Pickle is used only by dask for its own messages between the processes of a
+cluster the user started; no file is ever unpickled.
+"""
+
+from __future__ import annotations
+
+import collections
+import contextlib
+import uuid
+from dataclasses import dataclass
+from typing import Iterable, Iterator
+
+import numpy as np
+
+from shells.errors import InputError
+from shells.recovery_tables import SectionTables
+
+from bridge.definition.cases import combine_steps
+from bridge.recover.resultants import H5_DATASET, apply_settings, to_element_frame
+from bridge.definition.resultants import ResultantSettings
+
+#: Most worker processes ``--workers`` starts on this machine.
+MAX_LOCAL_WORKERS = 256
+
+#: Environment of local worker processes: one numba (and BLAS / OpenMP) thread per single-threaded worker.
+WORKER_ENV = {"NUMBA_NUM_THREADS": "1", "OMP_NUM_THREADS": "1", "OPENBLAS_NUM_THREADS": "1",
+              "MKL_NUM_THREADS": "1"}
+
+
+@dataclass(frozen=True)
+class BlockContext:
+    """What every block of a run shares (sent once per worker).
+
+    Attributes
+    ----------
+    criteria : tuple of str
+        Registered criterion names, in the run's order.
+    tables : SectionTables
+    weights : float64 (ncase, nstep)
+        Case ← input-step combination factors.
+    dM, pres, fos : float64 (ncase,)
+        Moisture change, lateral pressure and factor of safety of each case.
+    store_plies : bool
+    h5_path : str or None
+        HDF5 resultants file read by path in each task (None: blocks carry their steps).
+    settings : ResultantSettings
+        Unit scales, twist sign and frame of the HDF5 resultants.
+    """
+
+    criteria: tuple[str, ...]
+    tables: SectionTables
+    weights: np.ndarray
+    dM: np.ndarray
+    pres: np.ndarray
+    fos: np.ndarray
+    store_plies: bool = False
+    h5_path: str | None = None
+    settings: ResultantSettings = ResultantSettings()
+
+
+@dataclass(frozen=True)
+class BlockSpec:
+    """One block: cells ``start … stop − 1`` and their per-cell inputs.
+
+    Attributes
+    ----------
+    index, start, stop : int
+    section : int64 (ncell,)
+    phi : float64 (ncell,)
+        Material angle, degrees.
+    dT : float64 (ncase, ncell)
+        Temperature change of each case.
+    steps : float64 (nstep, ncell, 8) or None
+        Input steps in the element frame and definition units; None when the
+        task reads them from ``BlockContext.h5_path``.
+    """
+
+    index: int
+    start: int
+    stop: int
+    section: np.ndarray
+    phi: np.ndarray
+    dT: np.ndarray
+    steps: np.ndarray | None = None
+
+
+@dataclass(frozen=True)
+class BlockResult:
+    """The recovered arrays of one block (see :func:`postproc.recover.recover_cells`)."""
+
+    index: int
+    start: int
+    stop: int
+    envelope: dict
+    cells: dict
+    plies: dict | None
+
+
+def read_h5_block(path: str, cells: slice | np.ndarray, settings: ResultantSettings,
+                  phi: np.ndarray) -> np.ndarray:
+    """(nstep, ncell, 8) resultants of a cell slice (or increasing cell ids) of an HDF5 file.
+
+    Scaled to definition units and rotated into the element frame (``frame``
+    ``element`` or ``laminate``; ``phi`` are the cells' material angles).
+    """
+    import h5py
+
+    with h5py.File(path, "r", locking=False) as h5:
+        raw = h5[H5_DATASET][:, cells, :]
+    return to_element_frame(apply_settings(raw, settings), settings.frame, phi)
+
+
+def compute_block(ctx: BlockContext, spec: BlockSpec) -> BlockResult:
+    """Combine the block's steps into cases and recover every cell, ply and point.
+
+    The same function runs in the serial loop and in dask tasks, so both give
+    the same bits.
+    """
+    from postproc.recover import recover_cells
+    from shells.criteria import by_name
+
+    steps = spec.steps if spec.steps is not None else read_h5_block(
+        ctx.h5_path, slice(spec.start, spec.stop), ctx.settings, spec.phi)
+    R = combine_steps(ctx.weights, steps)
+    env, cells, plies = recover_cells(tuple(by_name(n) for n in ctx.criteria), ctx.tables, spec.section,
+                                      spec.phi, R, spec.dT, ctx.dM, ctx.pres, ctx.fos, ctx.store_plies)
+    return BlockResult(spec.index, spec.start, spec.stop, env, cells, plies)
+
+
+def _task(ctx: BlockContext, spec: BlockSpec) -> BlockResult:
+    """A dask task: cap numba at one thread in this worker thread, then compute the block."""
+    import numba
+
+    numba.set_num_threads(1)  # thread-local: the executor thread that runs the kernel
+    return compute_block(ctx, spec)
+
+
+class SerialRunner:
+    """Compute blocks one after the other in this process (numba uses every core)."""
+
+    label = "serial"
+
+    def map(self, ctx: BlockContext, specs: Iterable[BlockSpec]) -> Iterator[BlockResult]:
+        for spec in specs:
+            yield compute_block(ctx, spec)
+
+
+class DaskRunner:
+    """Compute blocks as tasks of a dask.distributed client, yielding results in block order.
+
+    Parameters
+    ----------
+    client : distributed.Client
+    window : int, optional
+        Most blocks submitted and not yet taken (default two per worker thread, at least 4).
+    """
+
+    def __init__(self, client, window: int | None = None):
+        self.client = client
+        threads = sum(client.nthreads().values()) or 1
+        self.window = window or max(4, 2 * threads)
+        self.label = f"dask ({len(client.nthreads())} workers, {threads} threads)"
+
+    def map(self, ctx: BlockContext, specs: Iterable[BlockSpec]) -> Iterator[BlockResult]:
+        shared = self.client.scatter(ctx, broadcast=True, hash=False)
+        run = uuid.uuid4().hex[:12]
+        pending: collections.deque = collections.deque()
+        try:
+            for spec in specs:
+                pending.append(self.client.submit(_task, shared, spec, key=f"plybridge-block-{run}-{spec.index}",
+                                                  pure=False))
+                if len(pending) >= self.window:
+                    yield _take(pending)
+            while pending:
+                yield _take(pending)
+        finally:
+            for fut in pending:
+                fut.cancel()
+            del shared
+
+
+def _take(pending: collections.deque) -> BlockResult:
+    fut = pending.popleft()
+    try:
+        return fut.result()
+    finally:
+        fut.release()
+
+
+def check_workers(workers: int | None, scheduler: str | None) -> None:
+    """Refuse contradictory or out-of-range distribution options."""
+    if workers is not None and scheduler is not None:
+        raise InputError("--workers and --scheduler exclude each other: --workers starts a cluster on this "
+                         "machine, --scheduler uses a running one; give one of them")
+    if workers is not None and not 1 <= workers <= MAX_LOCAL_WORKERS:
+        raise InputError(f"--workers {workers}: give a number of worker processes from 1 to {MAX_LOCAL_WORKERS}")
+    if scheduler is not None and (not scheduler.strip() or len(scheduler) > 500
+                                  or any(ord(c) < 32 for c in scheduler)):
+        raise InputError("--scheduler: give the scheduler address, e.g. tcp://10.0.0.5:8786")
+
+
+@contextlib.contextmanager
+def open_runner(workers: int | None = None, scheduler: str | None = None, client=None):
+    """The block runner of a run: serial, a local cluster of ``workers`` processes, or ``scheduler``'s.
+
+    Parameters
+    ----------
+    workers : int, optional
+        Start a LocalCluster of this many single-threaded worker processes on
+        the loopback interface, dashboard off; closed at the end.
+    scheduler : str, optional
+        Address of a running scheduler (``tcp://host:8786``).
+    client : distributed.Client, optional
+        Use this client (not closed here).
+    """
+    check_workers(workers, scheduler)
+    if client is not None:
+        yield DaskRunner(client)
+        return
+    if workers is None and scheduler is None:
+        yield SerialRunner()
+        return
+    try:
+        from distributed import Client, LocalCluster
+    except ImportError:
+        raise InputError("--workers / --scheduler need dask.distributed; install plybridge[dist]") from None
+    with contextlib.ExitStack() as stack:
+        if workers is not None:
+            cluster = stack.enter_context(LocalCluster(
+                n_workers=workers, threads_per_worker=1, processes=True, host="127.0.0.1",
+                dashboard_address=None, env=dict(WORKER_ENV), silence_logs=40))
+            address = cluster
+        else:
+            address = scheduler
+        try:
+            dask_client = stack.enter_context(Client(address))
+        except (OSError, TimeoutError) as err:
+            raise InputError(f"--scheduler {scheduler}: cannot reach the scheduler ({err}); start one with "
+                             "'dask scheduler' and workers with 'dask worker ADDRESS' (docs/scale.md)") from None
+        if not dask_client.nthreads():
+            try:
+                dask_client.wait_for_workers(1, timeout=60)
+            except TimeoutError:
+                raise InputError(f"--scheduler {scheduler}: no worker joined within 60 s; start workers with "
+                                 f"'dask worker {scheduler} --nthreads 1' (docs/scale.md)") from None
+        yield DaskRunner(dask_client)

@@ -1,0 +1,357 @@
+"""Orchestration of ``plybridge recover``: inputs → blocks of cells → the results store.
+
+Cells are processed in blocks (memory flat in model size): for each block the
+resultants of every input step are read (streamed from HDF5, sliced from memory
+for the other formats), combined into the run's cases, recovered, and the
+envelope rows written to the store before the next block is read.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import datetime
+import hashlib
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Callable, Iterator, Sequence
+
+import numpy as np
+
+from shells.criteria import CRITERIA, by_name, check_requirements
+from shells.errors import InputError, ResultantsError
+
+from bridge.definition.cases import Case, combine_steps
+from bridge.definition.loader import Definition, load_definition
+from bridge.mesh.formats import read_mesh
+from bridge.model.build import Model, build_model
+from bridge.definition.resultants import resultant_options
+from bridge.results.partial import companions
+from bridge.results.store import CHUNK_CELLS, LAYOUT_VERSION, StoreLayout, mesh_group
+from bridge.recover.distributed import BlockContext, BlockSpec, read_h5_block
+from bridge.recover.resultants import _HDF5_SIGNATURE, H5_DATASET, _h5_source, read_resultants
+
+#: Target size of the resultants of one block (bytes): bounds the memory of a run.
+BLOCK_BYTES = 32 * 2 ** 20
+
+
+def sha256_of(path: str | Path) -> str:
+    h = hashlib.sha256()
+    with open(path, "rb") as fh:
+        for chunk in iter(lambda: fh.read(2 ** 20), b""):
+            h.update(chunk)
+    return h.hexdigest()
+
+
+class ResultantSource:
+    """Input steps of the resultants, read by cell ranges, in the element frame and definition units.
+
+    An HDF5 ``/resultants`` file is streamed block by block (tasks open it by
+    path); the other formats are read whole, once, and sliced.
+    """
+
+    def __init__(self, paths: Sequence[str], model: Model):
+        self.paths = [str(p) for p in paths]
+        fields, self.settings = resultant_options(model.defn)
+        self.model = model
+        self.h5_path: str | None = None
+        self._data = None
+        first = self.paths[0]
+        head = b""
+        if Path(first).is_file():
+            with open(first, "rb") as fh:
+                head = fh.read(8)
+        if len(self.paths) == 1 and head.startswith(_HDF5_SIGNATURE) and self._is_plain_h5(first):
+            if self.settings.frame == "vectors":
+                raise ResultantsError("frame = 'vectors' is not available for HDF5 resultants; give the "
+                                      "resultants in the element frame or laminate axes ([resultants] frame)", first)
+            # Validates shape, cell count and case names.
+            names, _, _ = _h5_source(first, model.n_cells)
+            self.names = tuple(names)
+            self.h5_path = first
+        else:
+            src = self.paths[0] if len(self.paths) == 1 else self.paths
+            self.names, self._data = read_resultants(
+                src, model.n_cells, fields, self.settings, material_angle_deg=model.phi,
+                frames=(model.frame_x, model.frame_y, model.normal), allow_nonfinite=True)
+
+    @staticmethod
+    def _is_plain_h5(path: str) -> bool:
+        import h5py
+
+        try:
+            with h5py.File(path, "r", locking=False) as h5:
+                return H5_DATASET in h5
+        except OSError:
+            raise ResultantsError("an HDF5 file that cannot be opened (truncated or damaged); write it again",
+                                  path) from None
+
+    def read(self, start: int, stop: int) -> np.ndarray:
+        """(n_steps, stop − start, 8) resultants of cells start … stop − 1."""
+        return self.read_cells(slice(start, stop))
+
+    def read_cells(self, cells: slice | np.ndarray) -> np.ndarray:
+        """(n_steps, ncell, 8) resultants of a cell slice or of increasing cell ids."""
+        if self._data is not None:
+            return self._data[:, cells]
+        return read_h5_block(self.h5_path, cells, self.settings, self.model.phi[cells])
+
+    def block_steps(self, start: int, stop: int) -> np.ndarray | None:
+        """What a block task needs besides the file path: the steps when there is no HDF5 file to open."""
+        return None if self.h5_path is not None else self._data[:, start:stop]
+
+
+@dataclass(frozen=True)
+class CasePlan:
+    """How the run's cases are built from the input steps."""
+
+    cases: tuple[Case, ...]
+    weights: np.ndarray    # (ncase, nstep)
+    dM: np.ndarray
+    pres: np.ndarray
+    fos: np.ndarray
+
+    @property
+    def names(self) -> tuple[str, ...]:
+        return tuple(c.name for c in self.cases)
+
+    def delta_T(self, model: Model, start: int, stop: int) -> np.ndarray:
+        out = np.empty((len(self.cases), stop - start))
+        for j, c in enumerate(self.cases):
+            if c.temperature_field is None:
+                out[j] = c.delta_T
+            else:
+                out[j] = np.asarray(model.mesh.cell_data[c.temperature_field], dtype=float).reshape(
+                    model.n_cells, -1)[start:stop, 0]
+        return out
+
+
+def plan_cases(defn: Definition, model: Model, step_names: tuple[str, ...]) -> CasePlan:
+    try:
+        cases = defn.cases.resolve(step_names)
+    except InputError as err:
+        raise err.within(defn.source) from None
+    W = np.zeros((len(cases), len(step_names)))
+    for j, c in enumerate(cases):
+        for idx, f in c.factors:
+            W[j, idx] += f
+        if c.temperature_field is not None and c.temperature_field not in model.mesh.cell_data:
+            raise ResultantsError(f"cases.{c.name}.temperature_field: the mesh has no cell array "
+                                  f"'{c.temperature_field}'", defn.source)
+    return CasePlan(cases, W, np.array([c.delta_M for c in cases]), np.array([c.pressure for c in cases]),
+                    np.array([defn.analysis.fos(c.kind) for c in cases]))
+
+
+def criteria_of(defn: Definition, model: Model) -> tuple[type, ...]:
+    crit = tuple(by_name(n) for n in defn.analysis.criteria)
+    materials = {p.material.name: p.material.params() for s in model.sections for p in s.laminate.plies}
+    try:
+        check_requirements(crit, materials)
+    except InputError as err:
+        raise err.within(defn.source) from None
+    return crit
+
+
+#: Largest --block-cells.
+MAX_BLOCK_CELLS = 2 ** 22
+
+
+def block_size(n_steps: int, n_cases: int, max_plies: int, store_plies: bool) -> int:
+    """Cells per block: about BLOCK_BYTES of block arrays, a whole number of store chunks."""
+    per_cell = 8 * 8 * (n_steps + n_cases) + (max_plies * 3 * 8 * 8 * n_cases if store_plies else 0)
+    cells = int(max(256, min(65536, BLOCK_BYTES // max(per_cell, 1))))
+    return cells // CHUNK_CELLS * CHUNK_CELLS if cells >= CHUNK_CELLS else cells
+
+
+def check_block_cells(block_cells: int | None) -> None:
+    if block_cells is not None and not 1 <= block_cells <= MAX_BLOCK_CELLS:
+        raise InputError(f"--block-cells {block_cells}: give a number of cells from 1 to {MAX_BLOCK_CELLS}")
+
+
+def input_digests(paths: dict[str, str]) -> dict[str, dict]:
+    """role → {path, sha256} of every input, plus ``data_sha256`` of the heavy data beside an XDMF file."""
+    out = {}
+    for role, p in paths.items():
+        entry = {"path": p, "sha256": sha256_of(p)}
+        extra = [sha256_of(c) for c in companions(p)]
+        if extra:
+            entry["data_sha256"] = extra[0] if len(extra) == 1 else extra
+        out[role] = entry
+    return out
+
+
+def provenance(defn: Definition, paths: dict[str, str], digests: dict[str, dict] | None = None) -> dict:
+    from shells import __version__
+
+    return {
+        "tool": "plybridge", "tool_version": __version__,
+        "created": datetime.datetime.now(datetime.timezone.utc).isoformat(timespec="seconds"),
+        "inputs": digests if digests is not None else input_digests(paths),
+    }
+
+
+Progress = Callable[[int, int], None]
+Note = Callable[[str], None]
+
+
+def prepare(definition: str, mesh_path: str, resultants: Sequence[str]):
+    """Load every input of a run: (definition, model, source, case plan, criteria)."""
+    defn = load_definition(definition)
+    mesh = read_mesh(mesh_path)
+    model = build_model(defn, mesh)
+    source = ResultantSource(resultants, model)
+    plan = plan_cases(defn, model, source.names)
+    return defn, model, source, plan, criteria_of(defn, model)
+
+
+def criterion_table() -> dict[str, list[str]]:
+    return {c.name: list(c.modes) for c in CRITERIA}
+
+
+def block_context(defn: Definition, tables, source: ResultantSource, plan: CasePlan,
+                  store_plies: bool) -> BlockContext:
+    """What every block task shares: small arrays and names, no file handles."""
+    return BlockContext(tuple(defn.analysis.criteria), tables, plan.weights, plan.dM, plan.pres, plan.fos,
+                        store_plies, source.h5_path, source.settings)
+
+
+def block_specs(model: Model, source: ResultantSource, plan: CasePlan, step: int,
+                skip: set[int] = frozenset()) -> Iterator[BlockSpec]:
+    """The blocks not in ``skip``, in order, built lazily (one block's inputs at a time)."""
+    n = model.n_cells
+    for index, start in enumerate(range(0, n, step)):
+        if index in skip:
+            continue
+        stop = min(n, start + step)
+        yield BlockSpec(index, start, stop, model.section[start:stop], model.phi[start:stop],
+                        plan.delta_T(model, start, stop), source.block_steps(start, stop))
+
+
+def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], output: str,
+                store_plies: bool = False, progress: Progress | None = None, *, workers: int | None = None,
+                scheduler: str | None = None, client=None, block_cells: int | None = None,
+                resume: bool = False, note: Note | None = None) -> dict:
+    """Recover every cell and case and write the results store at ``output``.
+
+    Parameters
+    ----------
+    definition, mesh_path : str
+        Definition file and mesh file.
+    resultants : sequence of str
+        Resultants input (one HDF5 / XDMF file, or VTU files, docs/meshes.md).
+    output : str
+        The store; replaced only when complete (docs/results.md, docs/scale.md).
+    store_plies : bool
+        Also store every ply stress and strain.
+    progress : callable(done_cells, total_cells), optional
+    workers : int, optional
+        Compute blocks on a local cluster of this many single-threaded worker processes.
+    scheduler : str, optional
+        Compute blocks on the running dask cluster at this address.
+    client : distributed.Client, optional
+        Compute blocks with this client (tests, notebooks).
+    block_cells : int, optional
+        Cells per block (default: about 32 MiB of block arrays, a multiple of the store chunk).
+    resume : bool
+        Continue the unfinished run of ``output`` (same inputs and options) instead of starting again.
+    note : callable(str), optional
+        Receives one-line notes about resuming.
+
+    Returns
+    -------
+    dict
+        The run summary (see :func:`postproc.summary.SummaryAccumulator.result`).
+    """
+    from postproc.summary import SummaryAccumulator
+
+    from bridge.recover.distributed import check_workers, open_runner
+    from bridge.results.partial import PartialStore
+
+    check_workers(workers, scheduler)
+    check_block_cells(block_cells)
+    defn, model, source, plan, crit = prepare(definition, mesh_path, resultants)
+    tables = model.tables()
+    n = model.n_cells
+    step = block_cells or block_size(len(source.names), len(plan.cases), tables.max_plies, store_plies)
+    layout = StoreLayout(n, tables.max_plies, plan.names, store_plies, len(CRITERIA), chunk_cells=step)
+    paths = {"definition": definition, "mesh": mesh_path, **{f"resultants{k}": p for k, p in enumerate(resultants)}}
+    digests = input_digests(paths)
+    fingerprint = {"inputs": digests, "options": {"block_cells": step, "store_plies": store_plies,
+                                                  "n_cells": n, "layout_version": LAYOUT_VERSION}}
+    acc = SummaryAccumulator(model.zone, len(defn.zones), len(plan.cases), defn.analysis.hot_spots)
+    with contextlib.ExitStack() as stack:
+        runner = stack.enter_context(open_runner(workers, scheduler, client))
+        partial = stack.enter_context(PartialStore(output, fingerprint, layout, resume, note))
+        store, done = partial.writer, set(partial.done)
+        results = stack.enter_context(contextlib.closing(runner.map(
+            block_context(defn, tables, source, plan, store_plies), block_specs(model, source, plan, step, done))))
+        for index, start in enumerate(range(0, n, step)):
+            stop = min(n, start + step)
+            if index in done:
+                acc.add(start, stop, {}, store.read_cells(start, stop))
+            else:
+                res = next(results)
+                store.write_block(res.start, res.stop, res.envelope, res.cells, res.plies)
+                acc.add(res.start, res.stop, res.envelope, res.cells)
+                partial.record(res.index)
+            if progress:
+                progress(stop, n)
+        summary = acc.result(plan.names, zone_names=[z.name for z in defn.zones],
+                             laminate_of_zone=[z.laminate for z in defn.zones])
+        _finish(store, summary, crit, tables, model, source, plan, defn, paths, digests, store_plies)
+        partial.complete()
+    return summary
+
+
+def _finish(store, summary, crit, tables, model, source, plan, defn, paths, digests, store_plies) -> None:
+    """The datasets and attributes written once, after every block."""
+    from bridge.model.fields import section_table
+
+    store.write_static("hotspots", _hot_states(summary, crit, tables, model, source, plan))
+    store.write_static("mesh", mesh_group(model.mesh.points, model.mesh.blocks))
+    store.write_static("model", {"zone": model.zone.astype(np.int32), "section": model.section.astype(np.int32),
+                                 "material_angle": model.phi, "normal": model.normal, "frame_x": model.frame_x})
+    store.write_meta({
+        **provenance(defn, paths, digests),
+        "title": defn.title, "units": defn.units.name, "conventions": "docs/conventions.md",
+        "criteria": criterion_table(), "criteria_used": list(defn.analysis.criteria),
+        "zones": [z.name for z in defn.zones], "zone_laminates": [z.laminate for z in defn.zones],
+        "sections": section_table(model)["sections"],
+        "cases_detail": [{"name": c.name, "kind": c.kind, "delta_T": c.delta_T, "pressure": c.pressure,
+                          "factor_of_safety": float(f)} for c, f in zip(plan.cases, plan.fos)],
+        "materials": _materials_meta(defn), "analysis": _analysis_meta(defn),
+        "store": "plies" if store_plies else "envelope", "summary": summary,
+        "caution": CAUTION,
+    })
+
+
+def _hot_states(summary: dict, crit, tables, model: Model, source: ResultantSource, plan: CasePlan) -> dict:
+    """Through-thickness states of the hot-spot cells (docs/results.md, /hotspots)."""
+    from postproc.states import cell_states
+
+    ids = np.array(sorted({h["cell"] for h in summary["hot_spots"]}), dtype=np.int64)
+    if ids.size == 0:
+        return {"cell": ids}
+    R = combine_steps(plan.weights, source.read_cells(ids))
+    dT = np.stack([plan.delta_T(model, i, i + 1)[:, 0] for i in ids], axis=1)
+    states = cell_states(crit, tables, model.section[ids], model.phi[ids], np.nan_to_num(R), dT, plan.dM,
+                         plan.pres)
+    return {"cell": ids, "resultants": R, "delta_T": dT, **states,
+            "criteria": np.array([c.name for c in crit], dtype=object).astype("S")}
+
+
+CAUTION = ("Results support, and never replace, review by a qualified engineer under the applicable "
+           "regulations and local codes.")
+
+
+def _materials_meta(defn: Definition) -> dict:
+    from dataclasses import asdict
+
+    return {name: {"kind": m.kind, **{k: v for k, v in asdict(m).items() if v is not None and k != "name"}}
+            for name, m in defn.materials.items()}
+
+
+def _analysis_meta(defn: Definition) -> dict:
+    a = defn.analysis
+    return {"criteria": list(a.criteria), "factor_of_safety": dict(a.factor_of_safety),
+            "transverse_shear": a.transverse_shear, "shear_factor": a.shear_factor,
+            "wrinkling_coefficient": a.wrinkling_coefficient, "hot_spots": a.hot_spots}

@@ -1,0 +1,1 @@
+"""The results store, unfinished runs (partial stores, journals, resume) and viewer files."""

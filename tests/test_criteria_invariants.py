@@ -13,7 +13,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from shells import params as P
-from shells.criteria import CRITERIA, by_name, check_requirements, evaluate, evaluate_block, failure_index
+from shells.criteria import CRITERIA, by_name, check_requirements, code, evaluate, evaluate_block, failure_index
 from shells.errors import DefinitionError, MaterialError
 
 VALUES = {
@@ -126,7 +126,7 @@ def test_block_driver_agrees_with_pointwise(crit):
                         assert r == sr[c, j, k, q] and m == mode[c, j, k, q]
     out_sr, out_mode = np.empty(sr.shape), np.empty(sr.shape, np.int8)
     mask = np.array([q in crit.points for q in range(3)])
-    evaluate_block(crit.ratio, mask, sm, sf, pidx, params, out_sr, out_mode)
+    evaluate_block(code(crit.name), mask, sm, sf, pidx, params, out_sr, out_mode)
     assert np.array_equal(out_sr, sr, equal_nan=True) and np.array_equal(out_mode, mode)
 
 

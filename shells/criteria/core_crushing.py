@@ -10,7 +10,9 @@ from __future__ import annotations
 from numba import njit
 
 from .. import params as P
-from .base import INF, S3, Criterion, linear_ratio
+from .base import Criterion
+from .roots import linear_ratio
+from .state import INF, S3
 
 
 class CoreCrushing(Criterion):

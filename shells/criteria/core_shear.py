@@ -13,7 +13,9 @@ from __future__ import annotations
 from numba import njit
 
 from .. import params as P
-from .base import INF, T13, T23, Criterion, at, first_crossing
+from .base import Criterion
+from .roots import at, first_crossing
+from .state import INF, T13, T23
 
 
 @njit(cache=True)

@@ -12,7 +12,8 @@ from __future__ import annotations
 from numba import njit
 
 from .. import params as P
-from .base import INF, Criterion
+from .base import Criterion
+from .state import INF
 from .wrinkling import compressive_principal_ratio
 
 

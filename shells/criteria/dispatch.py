@@ -1,16 +1,17 @@
-"""Criterion evaluation by registry code, for the fused recovery kernel.
+"""Criterion evaluation by registry code: the cached block driver and the call the kernel inlines.
 
-The kernel calls :func:`ratio_by_code` with the integer code of each chosen
-criterion. The branches below call the registered ``ratio`` functions as
+The recovery kernel calls :func:`ratio_by_code` with the integer code of each
+chosen criterion. The branches below call the registered ``ratio`` functions as
 module globals, so numba inlines them and caches the kernel across processes
 (a kernel that takes criterion functions as arguments recompiles in every
-process). The functions are taken from :data:`shells.criteria.CRITERIA` in
-registry order; the unpacking fails loudly if a criterion is added to the
+process). The functions are taken from :data:`shells.criteria.registry.CRITERIA`
+in registry order; the unpacking fails loudly if a criterion is added to the
 registry without a branch here, and ``tests/test_recovery.py`` checks every
 code against the criterion's own ``ratio``.
 
-Numba's cache keys on this file only: after editing a criterion module, clear
-``NUMBA_CACHE_DIR`` (see DEVELOPERS.md).
+Numba's cache keys on this file only; :mod:`shells.numba_cache` keys the whole
+cache folder on the sources of the package, so an edited criterion is never
+served from a stale cache.
 """
 
 from __future__ import annotations
@@ -18,8 +19,10 @@ from __future__ import annotations
 import numpy as np
 from numba import njit, prange
 
-from . import CRITERIA, code
-from .base import evaluate as _evaluate
+from .. import params as P
+from ..errors import ResultantsError
+from .registry import CRITERIA, code
+from .state import NPOINT, NSTATE
 
 (_r0, _r1, _r2, _r3, _r4, _r5, _r6, _r7, _r8, _r9, _r10, _r11, _r12, _r13) = (c.ratio for c in CRITERIA)
 
@@ -59,8 +62,28 @@ def ratio_by_code(code, sm, sf, p):
 
 
 @njit(cache=True, parallel=True)
-def evaluate_block_by_code(crit_code, point_mask, sm, sf, pidx, params, out_sr, out_mode):
-    """:func:`shells.criteria.base.evaluate_block` for the criterion of registry code ``crit_code`` (cached)."""
+def evaluate_block(crit_code, point_mask, sm, sf, pidx, params, out_sr, out_mode):
+    """Strength ratios of one criterion over a block of cells × cases × plies × points.
+
+    Parameters
+    ----------
+    crit_code : int
+        Registry code of the criterion (:func:`shells.criteria.registry.code`).
+    point_mask : bool (3,)
+        Points (bottom, middle, top) the criterion applies at; others get
+        ``sr = inf``, ``mode = -1``.
+    sm, sf : float64 (ncell, ncase, nply, 3, 6)
+        Mechanical and fixed material-axis states, order (σ1, σ2, τ12, τ13, τ23, σ3).
+    pidx : int64 (ncell, nply)
+        Row of ``params`` for each cell's ply; -1 past a cell's ply count
+        (→ ``sr = NaN``, ``mode = -1``).
+    params : float64 (nrows, NPARAM)
+        Property vectors (:mod:`shells.params`).
+    out_sr : float64 (ncell, ncase, nply, 3)
+        Strength ratios, written in place.
+    out_mode : int8 (ncell, ncase, nply, 3)
+        Governing mode indices, written in place.
+    """
     ncell, ncase, nply = sm.shape[0], sm.shape[1], sm.shape[2]
     for c in prange(ncell):
         for k in range(nply):
@@ -80,10 +103,38 @@ def evaluate_block_by_code(crit_code, point_mask, sm, sf, pidx, params, out_sr, 
 
 
 def evaluate(criterion, sm, sf, pidx, params):
-    """Strength ratios and modes of ``criterion`` over ply states (see :func:`shells.criteria.base.evaluate`).
+    """Strength ratios and modes of ``criterion`` over ply states (runs :func:`evaluate_block`).
 
-    Runs the cached driver by registry code.
+    Parameters
+    ----------
+    criterion : Criterion subclass
+        Its ``points`` select the through-thickness points.
+    sm, sf, pidx, params : array_like
+        As in :func:`evaluate_block`; copied only when not already contiguous
+        of the right dtype (never modified).
+
+    Returns
+    -------
+    sr : float64 (ncell, ncase, nply, 3)
+    mode : int8 (ncell, ncase, nply, 3)
     """
-    k = code(criterion.name)
-    return _evaluate(criterion, sm, sf, pidx, params,
-                     block=lambda *args: evaluate_block_by_code(k, *args))
+    sm = np.ascontiguousarray(sm, dtype=np.float64)
+    sf = np.ascontiguousarray(sf, dtype=np.float64)
+    pidx = np.ascontiguousarray(pidx, dtype=np.int64)
+    params = np.ascontiguousarray(params, dtype=np.float64)
+    if sm.ndim != 5 or sm.shape[3:] != (NPOINT, NSTATE) or sf.shape != sm.shape:
+        raise ResultantsError(
+            f"ply states must both have shape (ncell, ncase, nply, 3, 6); got {sm.shape} and {sf.shape}; "
+            "fix the recovery output")
+    if pidx.shape != (sm.shape[0], sm.shape[2]) or params.ndim != 2 or params.shape[1] != P.NPARAM:
+        raise ResultantsError(
+            f"ply index {pidx.shape} / property table {params.shape} do not match states {sm.shape}; "
+            f"expected ({sm.shape[0]}, {sm.shape[2]}) and (nrows, {P.NPARAM})")
+    if pidx.size and pidx.max() >= params.shape[0]:
+        raise ResultantsError(f"ply index {pidx.max()} exceeds the {params.shape[0]} property rows")
+    mask = np.zeros(NPOINT, dtype=np.bool_)
+    mask[list(criterion.points)] = True
+    out_sr = np.empty(sm.shape[:4])
+    out_mode = np.empty(sm.shape[:4], dtype=np.int8)
+    evaluate_block(code(criterion.name), mask, sm, sf, pidx, params, out_sr, out_mode)
+    return out_sr, out_mode

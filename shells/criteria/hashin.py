@@ -24,8 +24,9 @@ import math
 from numba import njit
 
 from .. import params as P
-from .base import (INF, PLY_MODES, S1, S2, S3, T12, T13, T23, Criterion, break_point,
-                   first_crossing, product_coeffs, sign_between)
+from .base import Criterion
+from .roots import break_point, first_crossing, product_coeffs, sign_between
+from .state import INF, PLY_MODES, S1, S2, S3, T12, T13, T23
 
 
 @njit(cache=True, inline="always")

@@ -12,8 +12,9 @@ from __future__ import annotations
 from numba import njit
 
 from .. import params as P
-from .base import INF, PLY_MODES, Criterion
-from .tsai_wu import plane_strengths, polynomial_ratio
+from .base import Criterion
+from .plane import plane_strengths, polynomial_ratio
+from .state import INF, PLY_MODES
 
 
 class Hoffman(Criterion):

@@ -14,8 +14,9 @@ import math
 from numba import njit
 
 from .. import params as P
-from .base import INF, Criterion
+from .base import Criterion
 from .core_shear import shear_pair_ratio
+from .state import INF
 
 
 class Interlaminar(Criterion):

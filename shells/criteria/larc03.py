@@ -24,7 +24,7 @@ Exposures are written as degree-1 forms (square roots of the quadratic
 indices, failure at 1). With no fixed part and σ1 ≥ 0 along the load
 they are homogeneous, so R = 1/exposure exactly; otherwise (misalignment angle
 depends on G12, fixed part) R comes from the bracketed search
-:func:`shells.criteria.base.search_next`.
+:func:`shells.criteria.search.search_next`.
 """
 
 from __future__ import annotations
@@ -35,8 +35,10 @@ import numpy as np
 from numba import njit
 
 from .. import params as P
-from .base import (INF, PLY_MODES, S1, S2, T12, Criterion, at, has_fixed, search_done,
-                   search_next, search_point, search_result, search_start)
+from .base import Criterion
+from .roots import at, has_fixed
+from .search import search_done, search_next, search_point, search_result, search_start
+from .state import INF, PLY_MODES, S1, S2, T12
 
 _GOLD = 0.5 * (math.sqrt(5.0) - 1.0)
 

@@ -13,8 +13,9 @@ from __future__ import annotations
 from numba import njit
 
 from .. import params as P
-from .base import INF, PLY_MODES, S1, S2, T12, Criterion
+from .base import Criterion
 from .max_stress import limits_ratio
+from .state import INF, PLY_MODES, S1, S2, T12
 
 
 class MaxStrain(Criterion):

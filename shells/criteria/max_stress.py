@@ -13,7 +13,9 @@ from __future__ import annotations
 from numba import njit
 
 from .. import params as P
-from .base import FC, FT, INF, MC, MT, PLY_MODES, S1, S2, SH, T12, Criterion, linear_ratio
+from .base import Criterion
+from .roots import linear_ratio
+from .state import FC, FT, INF, MC, MT, PLY_MODES, S1, S2, SH, T12
 
 
 @njit(cache=True, inline="always")

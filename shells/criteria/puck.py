@@ -17,7 +17,7 @@ with S21 = S12, p⊥∥⁺ = p[P_TPL], p⊥∥⁻ = p[P_CPL]:
 
 Every exposure is homogeneous of degree 1 in stress, so with no fixed part
 R = 1/max(f_E) exactly; with a fixed part there is no closed form and R comes
-from the bracketed search :func:`shells.criteria.base.search_next`.
+from the bracketed search :func:`shells.criteria.search.search_next`.
 """
 
 from __future__ import annotations
@@ -27,8 +27,10 @@ import math
 from numba import njit
 
 from .. import params as P
-from .base import (INF, S1, S2, T12, Criterion, at, has_fixed, search_done, search_next,
-                   search_point, search_result, search_start)
+from .base import Criterion
+from .roots import at, has_fixed
+from .search import search_done, search_next, search_point, search_result, search_start
+from .state import INF, S1, S2, T12
 
 
 @njit(cache=True)

@@ -15,8 +15,10 @@ from __future__ import annotations
 from numba import njit
 
 from .. import params as P
-from .base import INF, PLY_MODES, S1, S2, Criterion, break_point, sign_between
-from .tsai_wu import polynomial_ratio
+from .base import Criterion
+from .plane import polynomial_ratio
+from .roots import break_point, sign_between
+from .state import INF, PLY_MODES, S1, S2
 
 
 @njit(cache=True)

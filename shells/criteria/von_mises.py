@@ -11,7 +11,9 @@ from __future__ import annotations
 from numba import njit
 
 from .. import params as P
-from .base import INF, S1, S2, S3, T12, T13, T23, Criterion, first_crossing, product_coeffs
+from .base import Criterion
+from .roots import first_crossing, product_coeffs
+from .state import INF, S1, S2, S3, T12, T13, T23
 
 
 @njit(cache=True)

@@ -15,7 +15,9 @@ from __future__ import annotations
 from numba import njit
 
 from .. import params as P
-from .base import INF, S1, S2, T12, Criterion, first_crossing
+from .base import Criterion
+from .roots import first_crossing
+from .state import INF, S1, S2, T12
 
 
 @njit(cache=True)

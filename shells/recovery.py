@@ -21,6 +21,9 @@ import numpy as np
 from numba import njit, prange
 
 from .criteria.dispatch import ratio_by_code
+from .numba_cache import configure
+
+configure()  # again before the kernel is defined (see shells.numba_cache)
 
 @njit(cache=True, parallel=True)
 def recover_block(codes, masks,

@@ -8,7 +8,12 @@ the ratio conventions are in :mod:`shells.criteria.state`; the cached block
 driver by registry code is :mod:`shells.criteria.dispatch`.
 """
 
+# ruff: noqa: E402
 from __future__ import annotations
+
+from ..numba_cache import configure
+
+configure()  # again before any cached kernel is defined (see shells.numba_cache)
 
 from .base import Criterion
 from .core_crushing import CoreCrushing

@@ -5,11 +5,13 @@ element frame into laminate axes, solve the section compliance for the
 mid-plane strains and curvatures (mechanical part, and the fixed part from the
 thermal and moisture resultants), and at the bottom, middle and top of every
 ply form the material-axis stresses (σ1, σ2, τ12) from classical lamination,
-(τ13, τ23) from the equilibrium distribution of Qx, Qy, and σ3 = −pressure;
-then evaluate the chosen failure criteria and keep, per cell and ply, the
-lowest margin of safety with its strength ratio, case, point, criterion and
-mode. Stresses are never stored unless asked (``store``).
+(τ13, τ23) from the equilibrium distribution of Qx, Qy (or a precomputed
+transverse shear field), and σ3 = −pressure; then evaluate the chosen failure
+criteria and keep, per cell and ply, the lowest margin of safety with its
+strength ratio, case, point, criterion and mode. Stresses are never stored
+unless asked.
 
+The arguments are the named tuples of :mod:`shells.recovery_args`.
 Conventions: docs/conventions.md. Resultants order Nx, Ny, Nxy, Mx, My, Mxy,
 Qx, Qy in the element frame; the material angle φ rotates the element frame
 onto the laminate axes (counter-clockwise about the normal).
@@ -25,50 +27,41 @@ from .numba_cache import configure
 
 configure()  # again before the kernel is defined (see shells.numba_cache)
 
+
 @njit(cache=True, parallel=True)
-def recover_block(codes, masks,
-                  R, dT, dM, pres, fos, skip,
-                  cell_sec, cell_cos, cell_sin,
-                  comp, fixed, first, nply, z, Q, cs, alpha, beta, F, params, kd,
-                  case0,
-                  env_ms, env_sr, env_case, env_point, env_crit, env_mode, case_ms, crit_ms,
-                  store, out_stress, out_strain, out_shear):
+def recover_block(sel, sec, blk, env, out):
     """Recover plies of a block of cells × cases and merge into the envelope (in place).
 
     Parameters
     ----------
-    codes : int64 (ncrit,)
-        Registry codes of the criteria to evaluate (``shells.criteria.code``).
-    masks : bool (ncrit, 3)
-        Whether each criterion applies at the bottom, middle and top points.
-    R : float64 (ncase, ncell, 8)
-        Resultants, element frame.
-    dT : float64 (ncase, ncell)
-        Temperature change per case and cell.
-    dM, pres, fos : float64 (ncase,)
-        Moisture change, lateral pressure and factor of safety of each case.
-    skip : bool (ncase, ncell)
-        Cell-cases not to recover (non-finite input).
-    cell_sec : int64 (ncell,)
-        Section id of each cell (row of the section tables).
-    cell_cos, cell_sin : float64 (ncell,)
-        cos φ, sin φ of the material angle.
-    comp, fixed, first, nply, z, Q, cs, alpha, beta, F, params, kd
-        Section tables (see :class:`shells.recovery_tables.SectionTables`).
-    case0 : int
-        Global index of the block's first case (stored in ``env_case``).
-    env_ms, env_sr : float64 (ncell, maxply)
-        Envelope margin and strength ratio, updated where a lower margin is found.
-    env_case : int32, env_point, env_crit, env_mode : int8 (ncell, maxply)
-        Governing case, point, criterion code and mode.
-    case_ms, crit_ms : float64 (ncell, ncase_total), (ncell, ncriteria_registered)
-        Lowest margin of each cell per case (global case index) and per criterion code.
-    store : bool
-        Write ``out_stress`` (σ1, σ2, τ12), ``out_strain`` (ε1, ε2, γ12) and
-        ``out_shear`` (τ13, τ23), each (ncase, ncell, maxply, 3, ·), material axes.
+    sel : Selection
+        Criterion codes and point masks.
+    sec : SectionArrays
+        Section and ply tables.
+    blk : BlockInputs
+        Resultants, temperature and moisture changes, pressure, factor of safety,
+        skipped cell-cases, section id and material angle per cell, the optional
+        transverse shear field (``blk.shear``, zero-size when unused) and the
+        global index of the block's first case.
+    env : Envelope
+        Rows of the block's cells; updated where a lower margin is found.
+    out : PlyStates
+        Filled when non-empty: (σ1, σ2, τ12), (ε1, ε2, γ12) and (τ13, τ23) in material axes.
     """
+    # Every array is taken out of its tuple before the parallel loop: inside a prange, numba drops
+    # writes made through a named tuple's field (numba issues 5872 and 7135).
+    R, dT, dM, pressure, fos, skip = blk.resultants, blk.delta_T, blk.delta_M, blk.pressure, blk.fos, blk.skip
+    cell_sec, cell_cos, cell_sin, field_shear, case0 = blk.section, blk.cos_phi, blk.sin_phi, blk.shear, blk.case0
+    codes, masks = sel.codes, sel.masks
+    comp, fixed, first, nply, z, Q, cs = sec.compliance, sec.fixed, sec.first, sec.nply, sec.z, sec.Q, sec.cs
+    alpha, beta, F, params, kd = sec.alpha, sec.beta, sec.F, sec.params, sec.knockdown
+    env_ms, env_sr, env_case, env_point = env.margin, env.strength_ratio, env.case, env.point
+    env_crit, env_mode, case_ms, crit_ms = env.criterion, env.mode, env.case_margin, env.criterion_margin
+    out_stress, out_strain, out_shear = out.stress, out.strain, out.shear
     ncase = R.shape[0]
     ncell = R.shape[1]
+    store = out_stress.size > 0
+    field = field_shear.size > 0
     for i in prange(ncell):
         sm = np.empty(6)
         sf = np.empty(6)
@@ -107,6 +100,8 @@ def recover_block(codes, masks,
                 em[a] = am
                 ef[a] = af
             scale_case = 1.0 / fos[j]
+            pres = pressure[j]
+            cj = case0 + j
             for k in range(n):
                 row = p0 + k
                 ct, st = cs[row, 0], cs[row, 1]
@@ -134,11 +129,15 @@ def recover_block(codes, masks,
                     sm[0] = q11 * e1m + q12 * e2m
                     sm[1] = q12 * e1m + q22 * e2m
                     sm[2] = q66 * g12m
-                    txz = F[row, q, 0, 0] * qx + F[row, q, 0, 1] * qy
-                    tyz = F[row, q, 1, 0] * qx + F[row, q, 1, 1] * qy
+                    if field:
+                        txz = field_shear[j, i, k, q, 0]
+                        tyz = field_shear[j, i, k, q, 1]
+                    else:
+                        txz = F[row, q, 0, 0] * qx + F[row, q, 0, 1] * qy
+                        tyz = F[row, q, 1, 0] * qx + F[row, q, 1, 1] * qy
                     sm[3] = ct * txz + st * tyz
                     sm[4] = -st * txz + ct * tyz
-                    sm[5] = -pres[j]
+                    sm[5] = -pres
                     sf[0] = q11 * (e1f - fx) + q12 * (e2f - fy)
                     sf[1] = q12 * (e1f - fx) + q22 * (e2f - fy)
                     sf[2] = q66 * g12f
@@ -153,7 +152,6 @@ def recover_block(codes, masks,
                         out_strain[j, i, k, q, 2] = g12m + g12f
                         out_shear[j, i, k, q, 0] = sm[3]
                         out_shear[j, i, k, q, 1] = sm[4]
-                    cj = case0 + j
                     # Criteria; the envelope update is written out here (a call taking the envelope
                     # arrays would reference-count eight arrays per point).
                     for m in range(codes.shape[0]):

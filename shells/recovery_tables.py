@@ -12,6 +12,7 @@ from typing import Sequence
 
 import numpy as np
 
+from .recovery_args import SectionArrays
 from .section import Section
 
 
@@ -60,6 +61,10 @@ class SectionTables:
     @property
     def max_plies(self) -> int:
         return int(self.nply.max())
+
+    def arrays(self) -> SectionArrays:
+        """The kernel's view (:class:`shells.recovery_args.SectionArrays`), sharing these arrays."""
+        return SectionArrays(*(getattr(self, name) for name in SectionArrays._fields))
 
 
 def build_tables(sections: Sequence[Section], names: Sequence[str] = ()) -> SectionTables:

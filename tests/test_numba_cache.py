@@ -56,3 +56,35 @@ def test_importing_shells_points_numba_at_the_keyed_folder(tmp_path):
     env["XDG_CACHE_HOME"] = str(tmp_path / "xdg")
     folder = _cache_dir_in_child(env)
     assert folder == str(tmp_path / "xdg" / "plybridge" / f"numba-{key}") and Path(folder).is_dir()
+
+
+_RECOVER_ONCE = """
+import numpy as np
+from postproc.recover import recover_cells
+from shells.criteria import CRITERIA
+from shells.laminate import Laminate, Ply
+from shells.materials import Orthotropic
+from shells.recovery import recover_block
+from shells.recovery_tables import build_tables
+from shells.section import build_section
+m = Orthotropic("m", E1=181e3, E2=10.3e3, G12=7.17e3, nu12=0.28, Xt=1500, Xc=1500, Yt=40, Yc=246, S12=68)
+tables = build_tables([build_section(Laminate("l", (Ply(m, 0, 0.2), Ply(m, 90, 0.2))))])
+R = np.ones((1, 2, 8))
+for store in (False, True):
+    recover_cells(CRITERIA[:1], tables, np.zeros(2, np.int64), np.zeros(2), R, np.zeros((1, 2)), np.zeros(1),
+                  np.zeros(1), np.ones(1), store_plies=store)
+print(sum(recover_block.stats.cache_hits.values()), sum(recover_block.stats.cache_misses.values()))
+"""
+
+
+def test_a_second_process_loads_the_kernel_from_the_cache():
+    # The kernel takes named tuples of arrays (shells.recovery_args); numba caches such signatures across
+    # processes. The first process may compile; the second must only load.
+    runs = []
+    for _ in range(2):
+        proc = subprocess.run([sys.executable, "-c", _RECOVER_ONCE], cwd=ROOT, capture_output=True, text=True,
+                              timeout=900, env=dict(os.environ))
+        assert proc.returncode == 0, proc.stderr[-2000:]
+        runs.append(tuple(int(v) for v in proc.stdout.split()[-2:]))
+    hits, misses = runs[1]
+    assert hits == 1 and misses == 0, runs   # one signature: with and without stored plies alike

@@ -169,10 +169,39 @@ def test_envelope_merges_across_case_blocks():
     # Recovering cases in two blocks (case0 offset) gives the same envelope as one block.
     tables, cell_sec, phi, R, dT, dM, pres, fos = _random_model(n=20)
     whole = recover_cells(CRITERIA[:4], tables, cell_sec, phi, R, dT, dM, pres, fos)[0]
-    env = Envelope.empty(20, tables.max_plies)
+    env = Envelope.empty(20, tables.max_plies, 3, len(CRITERIA))
     for lo, hi in ((0, 2), (2, 3)):
         recover_into(env, CRITERIA[:4], tables, cell_sec, phi, R[lo:hi], dT[lo:hi], dM[lo:hi], pres[lo:hi],
                      fos[lo:hi], case0=lo)
     done = env.finish(tables.nply[cell_sec])
     np.testing.assert_array_equal(done.margin, whole["margin"])
     np.testing.assert_array_equal(done.case, whole["case"])
+
+
+def test_precomputed_transverse_shear_replaces_the_q_distribution():
+    # The hook for a transverse shear field: given τ = F·(Qx, Qy) in laminate axes (computed here in numpy from
+    # the section tables), with Qx, Qy then removed from the resultants, the kernel reproduces the normal path.
+    tables, cell_sec, phi, R, dT, dM, pres, fos = _random_model(n=12)
+    crit = tuple(CRITERIA)
+    env0, cells0, plies0 = recover_cells(crit, tables, cell_sec, phi, R, dT, dM, pres, fos, store_plies=True)
+    p = np.radians(phi)
+    qx = np.cos(p) * R[..., 6] + np.sin(p) * R[..., 7]           # element frame → laminate axes
+    qy = -np.sin(p) * R[..., 6] + np.cos(p) * R[..., 7]
+    field = np.zeros(R.shape[:2] + (tables.max_plies, 3, 2))
+    for i, s in enumerate(cell_sec):
+        rows = tables.first[s] + np.arange(tables.nply[s])
+        Fk = tables.F[rows]                                       # (nply, 3, 2, 2)
+        field[:, i, :len(rows)] = (np.einsum("kqab,jb->jkqa", Fk, np.stack([qx[:, i], qy[:, i]], axis=-1)))
+    R_noq = R.copy()
+    R_noq[..., 6:] = 0.0
+    env1, cells1, plies1 = recover_cells(crit, tables, cell_sec, phi, R_noq, dT, dM, pres, fos, store_plies=True,
+                                         shear=field)
+    np.testing.assert_allclose(plies1["transverse_shear"], plies0["transverse_shear"], rtol=1e-12, atol=1e-12)
+    np.testing.assert_allclose(env1["margin"], env0["margin"], rtol=1e-9)
+    # A different field changes the transverse shear output accordingly (rotated into material axes).
+    env2, _, plies2 = recover_cells(crit, tables, cell_sec, phi, R_noq, dT, dM, pres, fos, store_plies=True,
+                                    shear=2.0 * field)
+    np.testing.assert_allclose(plies2["transverse_shear"], 2.0 * plies0["transverse_shear"], rtol=1e-12,
+                               atol=1e-12)
+    with pytest.raises(Exception, match="transverse shear field"):
+        recover_cells(crit, tables, cell_sec, phi, R, dT, dM, pres, fos, shear=field[:, :3])

@@ -93,7 +93,7 @@ def recover_into(env: Envelope, criteria: Sequence[type], tables: SectionTables,
     block = BlockInputs(f64(R), f64(dT), f64(dM), f64(pres), f64(fos), skip,
                         np.ascontiguousarray(cell_sec, dtype=np.int64), np.cos(phi), np.sin(phi),
                         _shear_field(shear, ncase, ncell, tables.max_plies), int(case0))
-    recover_block(selection(criteria), tables.arrays(), block, env, PlyStates.none() if store is None else store)
+    recover_block(selection(criteria), tables.arrays, block, env, PlyStates.none() if store is None else store)
 
 
 def recover_cells(criteria: Sequence[type], tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray,

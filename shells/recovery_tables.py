@@ -18,53 +18,24 @@ from .section import Section
 
 @dataclass(frozen=True)
 class SectionTables:
-    """Kernel view of a set of sections.
+    """Kernel view of a set of sections: the arrays and the section names.
 
-    Attributes
-    ----------
-    compliance : (nsec, 6, 6)
-        [[A, B], [B, D]]⁻¹ in laminate axes.
-    fixed : (nsec, 4, 3)
-        N_T, M_T (per unit temperature rise), N_H, M_H (per unit moisture change).
-    first, nply : (nsec,) int64
-        First ply row and ply count of each section.
-    z : (nrows, 3)
-        z of the bottom, middle and top of every ply (length, reference surface z = 0).
-    Q : (nrows, 4)
-        Q11, Q12, Q22, Q66 in material axes.
-    cs : (nrows, 2)
-        cos θ, sin θ of the ply angle.
-    alpha, beta : (nrows, 2)
-        Expansion along 1 and 2 per unit temperature / moisture.
-    F : (nrows, 3, 2, 2)
-        Transverse shear per unit (Qx, Qy) at the three points, laminate axes.
-    params : (nrows, NPARAM)
-        Criterion property vectors.
-    knockdown : (nrows,)
-        Fraction of strength retained, per ply.
+    The arrays (``compliance``, ``fixed``, ``first``, ``nply``, ``z``, ``Q``, ``cs``,
+    ``alpha``, ``beta``, ``F``, ``params``, ``knockdown``) are those of
+    :class:`shells.recovery_args.SectionArrays`, read here as attributes.
     """
 
-    compliance: np.ndarray
-    fixed: np.ndarray
-    first: np.ndarray
-    nply: np.ndarray
-    z: np.ndarray
-    Q: np.ndarray
-    cs: np.ndarray
-    alpha: np.ndarray
-    beta: np.ndarray
-    F: np.ndarray
-    params: np.ndarray
-    knockdown: np.ndarray
+    arrays: SectionArrays
     names: tuple[str, ...] = field(default=())
+
+    def __getattr__(self, name: str):
+        if name in SectionArrays._fields:
+            return getattr(self.arrays, name)
+        raise AttributeError(f"{type(self).__name__!r} object has no attribute {name!r}")
 
     @property
     def max_plies(self) -> int:
         return int(self.nply.max())
-
-    def arrays(self) -> SectionArrays:
-        """The kernel's view (:class:`shells.recovery_args.SectionArrays`), sharing these arrays."""
-        return SectionArrays(*(getattr(self, name) for name in SectionArrays._fields))
 
 
 def build_tables(sections: Sequence[Section], names: Sequence[str] = ()) -> SectionTables:
@@ -95,9 +66,9 @@ def build_tables(sections: Sequence[Section], names: Sequence[str] = ()) -> Sect
     def arr(x, dtype=np.float64):
         return np.ascontiguousarray(np.asarray(x, dtype=dtype))
 
-    return SectionTables(
+    return SectionTables(SectionArrays(
         compliance=arr(comp), fixed=arr(fixed), first=arr(first, np.int64), nply=arr(nply, np.int64),
         z=arr(np.concatenate(rows["z"])), Q=arr(rows["Q"]), cs=arr(rows["cs"]), alpha=arr(rows["alpha"]),
         beta=arr(rows["beta"]), F=arr(np.concatenate(rows["F"])), params=arr(np.concatenate(rows["params"])),
-        knockdown=arr(rows["knockdown"]), names=tuple(names),
-    )
+        knockdown=arr(rows["knockdown"]),
+    ), tuple(names))

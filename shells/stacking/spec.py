@@ -4,18 +4,6 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-MAX_PLIES = 2000
-"""Default cap on the expanded ply count."""
-
-MAX_TEXT = 10_000
-"""Longest stacking-sequence text accepted, in characters."""
-
-MAX_DEPTH = 8
-"""Deepest nesting of parenthesised groups."""
-
-MAX_ANGLE = 360.0
-"""Largest ply angle magnitude accepted, in degrees (catches run-together counts such as ``902``)."""
-
 
 @dataclass(frozen=True)
 class LayerSpec:
@@ -37,3 +25,16 @@ class LayerSpec:
     angle: float
     material: str | None = None
     thickness: float | None = None
+
+
+MAX_PLIES = 2000
+"""Default cap on the expanded ply count."""
+
+MAX_TEXT = 10_000
+"""Longest stacking-sequence text accepted, in characters."""
+
+MAX_DEPTH = 8
+"""Deepest nesting of parenthesised groups."""
+
+MAX_ANGLE = 360.0
+"""Largest ply angle magnitude accepted, in degrees (catches run-together counts such as ``902``)."""

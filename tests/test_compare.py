@@ -22,7 +22,8 @@ from bridge.mesh.formats import vtu
 from bridge.model.build import build_model
 from bridge.recover.run import plan_cases
 from bridge.recover.resultants import resultant_arrays
-from bridge.compare.solver_plies import parse_solver_plies, read_solver_plies, solver_arrays, solver_plies_of
+from bridge.compare.solver_plies import read_solver_plies, solver_arrays
+from bridge.definition.solver_plies import parse_solver_plies
 from postproc.compare import element_to_material, material_to_element, reference_values
 from postproc.compare_report import compare_section_html
 from postproc.diagnose import HYPOTHESES
@@ -97,7 +98,7 @@ def recovered(world, text, R=None, name="variant.toml"):
     defn = load_definition(path)
     model = build_model(defn, world["mesh"])
     dT = plan_cases(defn, model, CASES).delta_T(model, 0, model.n_cells)
-    spec = solver_plies_of(defn)
+    spec = defn.solver_plies
     vals = reference_values(model.tables(), model.section, model.phi, world["R"] if R is None else R, dT, None,
                             None, spec.quantity)
     return path, model, spec, vals

@@ -8,7 +8,6 @@ import numpy as np
 import pytest
 
 from bridge.definition.loader import parse_definition
-from bridge.definition.resultants import resultant_options
 from bridge.recover.resultants import apply_settings
 from shells.errors import DefinitionError, ResultantsError
 
@@ -27,7 +26,8 @@ material = "a"
 
 
 def _options(extra: str):
-    return resultant_options(parse_definition(tomllib.loads(BASE + extra), "def.toml"))
+    defn = parse_definition(tomllib.loads(BASE + extra), "def.toml")
+    return defn.fields, defn.resultants
 
 
 def test_defaults():

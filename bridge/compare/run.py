@@ -22,8 +22,11 @@ from bridge.atomic import atomic_path
 from bridge.definition.loader import Definition, load_definition
 from bridge.mesh.formats import read_mesh
 from bridge.model.build import Model, build_model
-from bridge.recover.run import CAUTION, CasePlan, ResultantSource, plan_cases, provenance
-from bridge.compare.solver_plies import SolverPlies, read_solver_plies, solver_plies_of
+from bridge.definition.cases import combine_steps
+from bridge.definition.solver_plies import SolverPlies
+from bridge.recover.resultants import ResultantSource
+from bridge.recover.run import CAUTION, CasePlan, plan_cases, provenance
+from bridge.compare.solver_plies import read_solver_plies
 
 FORMAT = "plybridge-compare"
 #: Default largest relative difference accepted (relative to the value scale of the ply and component).
@@ -50,16 +53,16 @@ def load_inputs(definition: str, mesh_path: str, resultants: Sequence[str],
     """Read every input and recover our side (errors are :class:`shells.errors.InputError`)."""
     defn = load_definition(definition)
     model = build_model(defn, read_mesh(mesh_path))
-    spec = solver_plies_of(defn)
-    source = ResultantSource(resultants, model)
+    spec = defn.solver_plies
+    source = ResultantSource.of_model(resultants, model)
     plan = plan_cases(defn, model, source.names)
     n = model.n_cells
-    R = np.einsum("js,sck->jck", plan.weights, source.read(0, n))
+    R = combine_steps(plan.weights, source.read(0, n))
     dT = plan.delta_T(model, 0, n)
     src = solver_plies[0] if len(solver_plies) == 1 else list(solver_plies)
     solver = read_solver_plies(src, spec, model, plan.names)
     ours = reference_values(model.tables(), model.section, model.phi, R, dT, plan.dM, plan.pres, spec.quantity)
-    return CompareInputs(defn, model, plan, spec, source.settings.twist_sign, R, dT, ours, solver)
+    return CompareInputs(defn, model, plan, spec, defn.resultants.twist_sign, R, dT, ours, solver)
 
 
 def zone_data(inp: CompareInputs, cmp: Comparison) -> list[ZoneData]:
@@ -143,7 +146,7 @@ def run_compare(definition: str, mesh_path: str, resultants: Sequence[str], solv
     paths = {"definition": definition, "mesh": mesh_path,
              **{f"resultants{k}": p for k, p in enumerate(resultants)},
              **{f"solver_plies{k}": p for k, p in enumerate(solver_plies)}}
-    write_compare(output, summary, cmp, inp.model, {**provenance(inp.defn, paths), "units": inp.defn.units.name})
+    write_compare(output, summary, cmp, inp.model, {**provenance(paths), "units": inp.defn.units.name})
     if view:
         write_mesh(view, inp.model.mesh, {"discrepancy": cmp.cell_discrepancy, "zone": inp.model.zone,
                                           "worst_ply": cmp.cell_worst[:, 1] + 1})

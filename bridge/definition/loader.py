@@ -20,9 +20,12 @@ from shells.materials import Material
 
 from bridge.definition.analysis import Analysis, parse_analysis
 from bridge.definition.cases import Cases, parse_cases
+from bridge.definition.frames import FrameSettings, parse_frames
 from bridge.definition.laminates import parse_laminates
 from bridge.definition.materials import parse_materials
+from bridge.definition.resultants import ResultantFields, ResultantSettings, parse_fields, parse_resultant_settings
 from bridge.definition.schema import check_keys
+from bridge.definition.solver_plies import SolverPlies, parse_solver_plies
 from bridge.definition.units import UnitSystem, system
 from bridge.definition.zones import Zone, parse_zones
 
@@ -35,7 +38,17 @@ TOP_LEVEL = ("units", "title", "description", "materials", "laminates", "analysi
 
 @dataclass(frozen=True)
 class Definition:
-    """Everything a definition file declares, converted to one unit system."""
+    """Everything a definition file declares, converted to one unit system and checked.
+
+    Attributes
+    ----------
+    frames : FrameSettings
+        ``[frames]``: the element-frame reference (docs/meshes.md).
+    fields, resultants : ResultantFields, ResultantSettings
+        ``[fields]`` and ``[resultants]``: names and conventions of the solver's resultant arrays.
+    solver_plies : SolverPlies
+        ``[solver_plies]``: names and conventions of the solver's ply values (docs/compare.md).
+    """
 
     source: str
     sha256: str
@@ -46,7 +59,10 @@ class Definition:
     analysis: Analysis
     zones: tuple[Zone, ...] = ()
     cases: Cases = field(default_factory=Cases)
-    raw: Mapping[str, Any] = field(default_factory=dict, repr=False)
+    frames: FrameSettings = field(default_factory=FrameSettings)
+    fields: ResultantFields = field(default_factory=ResultantFields)
+    resultants: ResultantSettings = field(default_factory=ResultantSettings)
+    solver_plies: SolverPlies = field(default_factory=SolverPlies)
 
 
 def read_toml(path: str | Path) -> tuple[dict[str, Any], str]:
@@ -83,7 +99,10 @@ def parse_definition(doc: Mapping[str, Any], source: str = "<definition>", sha25
             analysis=parse_analysis(doc.get("analysis", {}), units),
             zones=parse_zones(doc.get("zones", []), laminates, units),
             cases=parse_cases(doc.get("cases", {}), doc.get("combinations", {}), units),
-            raw=doc,
+            frames=parse_frames(doc.get("frames", {})),
+            fields=parse_fields(doc.get("fields", {})),
+            resultants=parse_resultant_settings(doc.get("resultants", {})),
+            solver_plies=parse_solver_plies(doc.get("solver_plies", {})),
         )
     except InputError as err:
         raise err.within(source) from None

@@ -1,4 +1,4 @@
-"""The ``[fields]`` and ``[resultants]`` tables → :mod:`bridge.recover.resultants` settings.
+"""The ``[fields]`` and ``[resultants]`` tables: names and conventions of the solver's resultant arrays.
 
 ```toml
 [fields]                 # names of the solver's cell arrays (defaults N, M, Q)
@@ -18,12 +18,12 @@ length_scale = 1.0       # solver length unit → definition length unit
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 
 from shells.errors import DefinitionError, InputError, ResultantsError
 
-from bridge.definition.loader import Definition
 from bridge.definition.schema import check_keys, expect_table
 
 COMPONENTS = ("Nx", "Ny", "Nxy", "Mx", "My", "Mxy", "Qx", "Qy")
@@ -101,26 +101,30 @@ class ResultantSettings:
 
 
 
-def resultant_options(defn: Definition) -> tuple[ResultantFields, ResultantSettings]:
-    fields = expect_table(defn.raw.get("fields", {}), "[fields]")
-    res = expect_table(defn.raw.get("resultants", {}), "[resultants]")
+def parse_fields(table: Any) -> ResultantFields:
+    """Check a ``[fields]`` table and fill its defaults (errors name the entry; the caller adds the file)."""
+    table = expect_table(table, "[fields]")
+    check_keys(table, ("N", "M", "Q", "scalars"), "fields")
+    for key, value in table.items():
+        ok = isinstance(value, str) if key != "scalars" else (
+            isinstance(value, list) and len(value) == 8 and all(isinstance(v, str) for v in value))
+        if not ok:
+            raise DefinitionError(f"fields.{key} must be " + ("a list of eight array names" if key == "scalars"
+                                                             else "an array name"))
+    q = table.get("Q", "Q")
+    return ResultantFields(table.get("N", "N"), table.get("M", "M"), q or None,
+                           tuple(table["scalars"]) if "scalars" in table else None)
+
+
+def parse_resultant_settings(table: Any) -> ResultantSettings:
+    """Check a ``[resultants]`` table and fill its defaults (errors name the entry; the caller adds the file)."""
+    table = expect_table(table, "[resultants]")
+    check_keys(table, ("frame", "vectors", "twist_sign", "force_scale", "length_scale"), "resultants")
+    for key in ("force_scale", "length_scale"):
+        if isinstance(table.get(key, 1.0), bool) or not isinstance(table.get(key, 1.0), (int, float)):
+            raise DefinitionError(f"resultants.{key} must be a number")
     try:
-        check_keys(fields, ("N", "M", "Q", "scalars"), "fields")
-        check_keys(res, ("frame", "vectors", "twist_sign", "force_scale", "length_scale"), "resultants")
-        for key, value in fields.items():
-            ok = isinstance(value, str) if key != "scalars" else (
-                isinstance(value, list) and len(value) == 8 and all(isinstance(v, str) for v in value))
-            if not ok:
-                raise DefinitionError(f"fields.{key} must be " + ("a list of eight array names" if key == "scalars"
-                                                                 else "an array name"))
-        q = fields.get("Q", "Q")
-        f = ResultantFields(fields.get("N", "N"), fields.get("M", "M"), q or None,
-                            tuple(fields["scalars"]) if "scalars" in fields else None)
-        for key in ("force_scale", "length_scale"):
-            if isinstance(res.get(key, 1.0), bool) or not isinstance(res.get(key, 1.0), (int, float)):
-                raise DefinitionError(f"resultants.{key} must be a number")
-        s = ResultantSettings(res.get("frame", "element"), res.get("vectors"), res.get("twist_sign", 1),
-                              float(res.get("force_scale", 1.0)), float(res.get("length_scale", 1.0)))
+        return ResultantSettings(table.get("frame", "element"), table.get("vectors"), table.get("twist_sign", 1),
+                                 float(table.get("force_scale", 1.0)), float(table.get("length_scale", 1.0)))
     except InputError as err:
-        raise DefinitionError(err.detail, defn.source) from None
-    return f, s
+        raise DefinitionError(err.detail) from None

@@ -2,19 +2,19 @@
 
 Sections are built once per distinct (laminate, offset) pair of the zones, in
 zone order; a cell's section id is the position in :attr:`Model.sections`.
-The ``[frames]`` table of the definition sets the element-frame reference
-vector (default global X) or names a per-cell vector array of the mesh that
+The definition's ``[frames]`` settings give the element-frame reference
+vector (default global X) or name a per-cell vector array of the mesh that
 then rules.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import Any, Mapping
 
 import numpy as np
 
-from shells.errors import DefinitionError, InputError, MeshError
+from shells.errors import InputError, MeshError
 from shells.recovery_tables import SectionTables, build_tables
 from shells.section import Section
 
@@ -22,9 +22,7 @@ from bridge.definition.loader import Definition
 from bridge.model.frames import element_frames
 from bridge.mesh.shell import ShellMesh
 from bridge.model.orientation import material_angle
-from bridge.definition.schema import check_keys, expect_table
 from bridge.model.sections import section_of
-from bridge.definition.zones import vector3
 from bridge.model.zones import assign_zones
 
 
@@ -57,7 +55,6 @@ class Model:
     normal: np.ndarray
     sections: tuple[Section, ...]
     section_names: tuple[str, ...]
-    section_zone_laminate: tuple[str, ...] = field(default=())
 
     @property
     def n_cells(self) -> int:
@@ -70,24 +67,9 @@ class Model:
         return np.array([s.n_plies for s in self.sections], dtype=np.int64)[self.section]
 
 
-def frame_settings(defn: Definition) -> tuple[tuple[float, float, float], str | None]:
-    table = expect_table(defn.raw.get("frames", {}), "[frames]")
-    try:
-        check_keys(table, ("reference", "vectors"), "frames")
-        ref = vector3(table.get("reference", [1, 0, 0]), "frames.reference")
-        vectors = table.get("vectors")
-        if vectors is not None and not isinstance(vectors, str):
-            raise DefinitionError("frames.vectors must name a per-cell 3-component array of the mesh")
-    except InputError as err:
-        raise err.within(defn.source) from None
-    if np.linalg.norm(ref) == 0:
-        raise DefinitionError("frames.reference is zero; give a direction", defn.source)
-    return ref, vectors
-
-
 def build_model(defn: Definition, mesh: ShellMesh) -> Model:
     """Zones, frames, material angles and sections of every shell cell."""
-    ref, vec_name = frame_settings(defn)
+    ref, vec_name = defn.frames.reference, defn.frames.vectors
     per_cell = None
     if vec_name is not None:
         if vec_name not in mesh.cell_data:
@@ -113,7 +95,7 @@ def build_model(defn: Definition, mesh: ShellMesh) -> Model:
     sections = tuple(section_of(defn, lam, off) for lam, off in keys)
     names = tuple(lam if off == 0 else f"{lam}@{off:g}" for lam, off in keys)
     return Model(defn, mesh, zone, np.asarray(section_of_zone, dtype=np.int64)[zone], phi, x, y, n,
-                 sections, names, tuple(lam for lam, _ in keys))
+                 sections, names)
 
 
 def describe(model: Model) -> Mapping[str, Any]:

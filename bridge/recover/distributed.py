@@ -30,8 +30,7 @@ from shells.errors import InputError
 from shells.recovery_tables import SectionTables
 
 from bridge.definition.cases import combine_steps
-from bridge.recover.resultants import H5_DATASET, apply_settings, to_element_frame
-from bridge.definition.resultants import ResultantSettings
+from bridge.recover.resultants import CellAxes, H5Steps
 
 #: Most worker processes ``--workers`` starts on this machine.
 MAX_LOCAL_WORKERS = 256
@@ -55,10 +54,8 @@ class BlockContext:
     dM, pres, fos : float64 (ncase,)
         Moisture change, lateral pressure and factor of safety of each case.
     store_plies : bool
-    h5_path : str or None
-        HDF5 resultants file read by path in each task (None: blocks carry their steps).
-    settings : ResultantSettings
-        Unit scales, twist sign and frame of the HDF5 resultants.
+    reader : H5Steps or None
+        The resultants file each task reads its cells from by path (None: blocks carry their steps).
     """
 
     criteria: tuple[str, ...]
@@ -68,8 +65,7 @@ class BlockContext:
     pres: np.ndarray
     fos: np.ndarray
     store_plies: bool = False
-    h5_path: str | None = None
-    settings: ResultantSettings = ResultantSettings()
+    reader: H5Steps | None = None
 
 
 @dataclass(frozen=True)
@@ -86,7 +82,7 @@ class BlockSpec:
         Temperature change of each case.
     steps : float64 (nstep, ncell, 8) or None
         Input steps in the element frame and definition units; None when the
-        task reads them from ``BlockContext.h5_path``.
+        task reads them through ``BlockContext.reader``.
     """
 
     index: int
@@ -110,20 +106,6 @@ class BlockResult:
     plies: dict | None
 
 
-def read_h5_block(path: str, cells: slice | np.ndarray, settings: ResultantSettings,
-                  phi: np.ndarray) -> np.ndarray:
-    """(nstep, ncell, 8) resultants of a cell slice (or increasing cell ids) of an HDF5 file.
-
-    Scaled to definition units and rotated into the element frame (``frame``
-    ``element`` or ``laminate``; ``phi`` are the cells' material angles).
-    """
-    import h5py
-
-    with h5py.File(path, "r", locking=False) as h5:
-        raw = h5[H5_DATASET][:, cells, :]
-    return to_element_frame(apply_settings(raw, settings), settings.frame, phi)
-
-
 def compute_block(ctx: BlockContext, spec: BlockSpec) -> BlockResult:
     """Combine the block's steps into cases and recover every cell, ply and point.
 
@@ -133,8 +115,8 @@ def compute_block(ctx: BlockContext, spec: BlockSpec) -> BlockResult:
     from postproc.recover import recover_cells
     from shells.criteria import by_name
 
-    steps = spec.steps if spec.steps is not None else read_h5_block(
-        ctx.h5_path, slice(spec.start, spec.stop), ctx.settings, spec.phi)
+    steps = spec.steps if spec.steps is not None else ctx.reader.read(slice(spec.start, spec.stop),
+                                                                      CellAxes(spec.phi))
     R = combine_steps(ctx.weights, steps)
     env, cells, plies = recover_cells(tuple(by_name(n) for n in ctx.criteria), ctx.tables, spec.section,
                                       spec.phi, R, spec.dT, ctx.dM, ctx.pres, ctx.fos, ctx.store_plies)

@@ -1,19 +1,14 @@
-"""Solver shell resultants per load case, read into one array (n_cases, n_cells, 8).
+"""Solver shell resultants per load case: one source that every command reads them through.
 
 Component order (last axis): Nx, Ny, Nxy, Mx, My, Mxy, Qx, Qy — N and Q in
 force/length, M in moment/length (= force), signs of docs/conventions.md, in
-the element frame once :func:`read_resultants` returns.
+the element frame and the definition's units once read.
 
-Inputs
-------
-(a) An XDMF time series: one grid per load case (names from an
-    ``<Information Name="case">`` element, else the ``<Time>`` value).
-(b) VTU (or any mesh format plybridge reads): a list of files, one case each,
-    named by the file stem; or one file whose cell arrays carry a case suffix
-    after :data:`CASE_SEPARATOR` (``N@case1``, ``M@case1``, ...). A single file
-    without suffixes is one case named by its stem.
-(c) HDF5 with dataset ``/resultants`` (n_cases, n_cells, 8) and attribute
-    ``case_names`` (see :func:`write_resultants_h5`).
+:class:`ResultantSource` finds the input kind once (:func:`bridge.recover.files.open_step_files`)
+and converts raw values in one place (:func:`convert`: unit scales and twist
+sign in the solver's axes, then the rotation into the element frame). It
+serves ``recover`` (blocks of cells), the distributed block tasks (through
+its picklable :attr:`ResultantSource.reader`) and ``compare``.
 
 Cell arrays default to ``N`` (3 components: x, y, xy), ``M`` (3) and ``Q``
 (2: xz, yz); :class:`ResultantFields` renames them or names eight scalars.
@@ -21,23 +16,17 @@ Cell arrays default to ``N`` (3 components: x, y, xy), ``M`` (3) and ``Q``
 
 from __future__ import annotations
 
-import os
-from pathlib import Path
+from dataclasses import dataclass
 from typing import Mapping, Sequence
 
 import numpy as np
 
-from bridge.atomic import atomic_path
-from bridge.definition.resultants import COMPONENTS, ResultantFields, ResultantSettings
-from bridge.model.frames import in_plane
-from bridge.mesh.shell import ShellMesh
 from shells.errors import InputError, ResultantsError
 
-#: Separator between a field name and a load-case name in one-file inputs: ``N@case1``.
-CASE_SEPARATOR = "@"
-H5_DATASET = "resultants"
-H5_CHUNK_CELLS = 65536
-_HDF5_SIGNATURE = b"\x89HDF\r\n\x1a\n"
+from bridge.definition.resultants import ResultantFields, ResultantSettings
+from bridge.model.frames import in_plane
+from bridge.recover.files import StepFiles, open_step_files, read_h5_cells
+from bridge.recover.writers import resultant_arrays, write_resultants_h5, write_resultants_xdmf  # noqa: F401
 
 
 def _few(ids: np.ndarray, k: int = 6) -> str:
@@ -150,102 +139,132 @@ def to_element_frame(R: np.ndarray, frame: str, material_angle_deg: np.ndarray |
     return out
 
 
-def resultant_arrays(R_case: np.ndarray, fields: ResultantFields = ResultantFields()) -> dict[str, np.ndarray]:
-    """Split one case (n_cells, 8) into the named cell arrays of ``fields`` (the inverse of :func:`assemble`)."""
-    R_case = np.asarray(R_case, dtype=np.float64)
-    return {name: (R_case[:, sl][:, 0] if sl.stop - sl.start == 1 else R_case[:, sl].copy())
-            for name, sl in fields.layout()}
+@dataclass(frozen=True)
+class CellAxes:
+    """What the rotation into the element frame needs about some cells (any entry may be None).
+
+    Attributes
+    ----------
+    phi : float64 (ncell,)
+        Material angle, degrees (for resultants in laminate axes).
+    frames : (x, y, n), each float64 (ncell, 3)
+        Element frames (for per-cell vectors).
+    """
+
+    phi: np.ndarray | None = None
+    frames: tuple | None = None
+
+    def take(self, cells: slice | np.ndarray) -> "CellAxes":
+        return CellAxes(None if self.phi is None else self.phi[cells],
+                        None if self.frames is None else tuple(f[cells] for f in self.frames))
 
 
-# ----------------------------------------------------------------------------- sources
+def convert(raw: np.ndarray, settings: ResultantSettings, axes: CellAxes = CellAxes(),
+            vectors: np.ndarray | None = None) -> np.ndarray:
+    """Raw solver resultants (..., ncell, 8) → definition units and the element frame (a new array).
 
-def _h5_source(path: str, n_cells: int):
-    import h5py
-
-    with h5py.File(path, "r", locking=False) as h5:
-        if H5_DATASET not in h5:
-            raise ResultantsError(f"no dataset /{H5_DATASET}; found {', '.join(h5) or 'nothing'}", path)
-        ds = h5[H5_DATASET]
-        if ds.ndim != 3 or ds.shape[2] != 8:
-            raise ResultantsError(f"/{H5_DATASET} has shape {ds.shape}; expected (cases, cells, 8)", path)
-        if ds.shape[1] != n_cells:
-            raise ResultantsError(f"/{H5_DATASET} has {ds.shape[1]} cells but the mesh has {n_cells}", path)
-        raw = np.atleast_1d(ds.attrs.get("case_names", []))
-        names = [n.decode() if isinstance(n, bytes) else str(n) for n in raw]
-        if len(names) != ds.shape[0]:
-            raise ResultantsError(f"attribute case_names has {len(names)} names for {ds.shape[0]} cases", path)
-    return names, (lambda i: _h5_case(path, i)), {}
+    The one place unit scales, the twist sign (both in the solver's axes) and the frame rotation are applied.
+    """
+    return to_element_frame(apply_settings(raw, settings), settings.frame, axes.phi, axes.frames, vectors)
 
 
-def _h5_case(path: str, i: int) -> np.ndarray:
-    import h5py
+@dataclass(frozen=True)
+class H5Steps:
+    """A picklable reader of an HDF5 ``/resultants`` file by cell ranges (what a block task opens by path)."""
 
-    with h5py.File(path, "r", locking=False) as h5:
-        return h5[H5_DATASET][i]
+    path: str
+    settings: ResultantSettings
 
-
-def _mesh_cases(mesh: ShellMesh, stem: str) -> tuple[list[str], dict[str, dict]]:
-    plain = {k: v for k, v in mesh.cell_data.items() if CASE_SEPARATOR not in k}
-    cases: dict[str, dict] = {}
-    for key, arr in mesh.cell_data.items():
-        if CASE_SEPARATOR in key:
-            field_name, _, case = key.partition(CASE_SEPARATOR)
-            cases.setdefault(case, {})[field_name] = arr
-    if not cases:
-        return [stem], {stem: plain}
-    return list(cases), {c: {**plain, **a} for c, a in cases.items()}
+    def read(self, cells: slice | np.ndarray, axes: CellAxes) -> np.ndarray:
+        """(n_steps, ncell, 8) of a cell slice or increasing cell ids, converted (:func:`convert`)."""
+        return convert(read_h5_cells(self.path, cells), self.settings, axes)
 
 
-def _sources(path_or_paths, n_cells: int):
-    """(case names, loader(i) -> arrays or (n_cells, 8), extra cell arrays, source label)."""
-    from bridge.mesh.formats import read_mesh, xdmf
+class ResultantSource:
+    """The input steps' resultants, read by cells, in the element frame and definition units.
 
-    def check(mesh: ShellMesh, src: str):
-        if mesh.n_cells != n_cells:
-            raise ResultantsError(f"the file has {mesh.n_cells} shell cells but the mesh has {n_cells}; "
-                                  "use the result file of this mesh", src)
+    An HDF5 ``/resultants`` file is streamed by cell ranges (block tasks open it by path through
+    :attr:`reader`); the other kinds are read whole, once, converted, and sliced.
 
-    if isinstance(path_or_paths, (list, tuple)):
-        paths = [str(p) for p in path_or_paths]
-        names = [Path(p).stem for p in paths]
-        if len(set(names)) != len(names):
-            raise ResultantsError(f"case files must have distinct names (the stem is the case name): {names}")
-        meshes = []
-        for p in paths:
-            meshes.append(read_mesh(p))
-            check(meshes[-1], p)
-        return names, (lambda i: meshes[i].cell_data), dict(meshes[0].cell_data), ", ".join(paths)
-    path = str(path_or_paths)
-    try:
-        with open(path, "rb") as fh:
-            head = fh.read(4096)
-    except FileNotFoundError:
-        raise ResultantsError("file not found; check the path", path) from None
-    if head.startswith(_HDF5_SIGNATURE):
-        names, load, extra = _h5_source(path, n_cells)
-        return names, load, extra, path
-    if xdmf.sniff(head):
-        mesh, steps = xdmf.read_series(path)
-        check(mesh, path)
-        return [s.name for s in steps], (lambda i: steps[i].cell_data), dict(mesh.cell_data), path
-    mesh = read_mesh(path)
-    check(mesh, path)
-    names, per_case = _mesh_cases(mesh, Path(path).stem)
-    return names, (lambda i: per_case[names[i]]), dict(mesh.cell_data), path
+    Parameters
+    ----------
+    path_or_paths : path or sequence of paths
+        One file of any kind, or mesh files one step each (:func:`bridge.recover.files.open_step_files`).
+    n_cells : int
+    fields, settings : ResultantFields, ResultantSettings
+    axes : CellAxes
+        Material angles and element frames of every cell (for laminate axes and per-cell vectors).
+    """
+
+    def __init__(self, path_or_paths, n_cells: int, fields: ResultantFields = ResultantFields(),
+                 settings: ResultantSettings = ResultantSettings(), axes: CellAxes = CellAxes()):
+        self.files: StepFiles = open_step_files(path_or_paths, n_cells)
+        self.names = self.files.names
+        self.settings = settings
+        self.axes = axes
+        self.reader: H5Steps | None = None
+        self._data: np.ndarray | None = None
+        try:
+            if len(set(self.names)) != len(self.names):
+                raise ResultantsError(f"duplicate case names {list(self.names)}; name each load case once")
+            if self.files.h5_path is not None:
+                if settings.frame == "vectors":
+                    raise ResultantsError("frame = 'vectors' is not available for HDF5 resultants; give the "
+                                          "resultants in the element frame or laminate axes ([resultants] frame)")
+                self.reader = H5Steps(self.files.h5_path, settings)
+            else:
+                self._data = self._read_all(n_cells, fields)
+        except InputError as exc:
+            raise exc.within(self.files.label) from None
+
+    @classmethod
+    def of_model(cls, path_or_paths, model) -> "ResultantSource":
+        """The resultants of a model, with the definition's ``[fields]`` and ``[resultants]`` settings."""
+        return cls(path_or_paths, model.n_cells, model.defn.fields, model.defn.resultants,
+                   CellAxes(model.phi, (model.frame_x, model.frame_y, model.normal)))
+
+    def _read_all(self, n_cells: int, fields: ResultantFields) -> np.ndarray:
+        names, files, settings = self.names, self.files, self.settings
+        R = np.empty((len(names), n_cells, 8))
+        for i in range(len(names)):
+            R[i] = assemble(files.arrays(i), n_cells, fields, f" in case {names[i]!r}")
+        vectors = None
+        if settings.frame == "vectors":
+            if settings.vectors is None or settings.vectors not in files.extra:
+                raise ResultantsError(f"frame 'vectors' needs the cell array {settings.vectors!r}; found "
+                                      f"{', '.join(map(repr, sorted(files.extra))) or 'no cell arrays'}")
+            vectors = files.extra[settings.vectors]
+        return convert(R, settings, self.axes, vectors)
+
+    def read_cells(self, cells: slice | np.ndarray) -> np.ndarray:
+        """(n_steps, ncell, 8) resultants of a cell slice or of increasing cell ids."""
+        if self._data is not None:
+            return self._data[:, cells]
+        try:
+            return self.reader.read(cells, self.axes.take(cells))
+        except InputError as exc:
+            raise exc.within(self.files.label) from None
+
+    def read(self, start: int, stop: int) -> np.ndarray:
+        """(n_steps, stop − start, 8) resultants of cells start … stop − 1."""
+        return self.read_cells(slice(start, stop))
+
+    def block_steps(self, start: int, stop: int) -> np.ndarray | None:
+        """What a block task needs besides :attr:`reader`: the steps, when there is no file to open by path."""
+        return None if self.reader is not None else self._data[:, start:stop]
 
 
 def read_resultants(path_or_paths, n_cells: int, fields: ResultantFields = ResultantFields(),
                     settings: ResultantSettings = ResultantSettings(), *, cases: Sequence[str] | None = None,
                     material_angle_deg: np.ndarray | None = None, frames: Sequence[np.ndarray] | None = None,
-                    vectors: np.ndarray | None = None,
                     allow_nonfinite: bool = False) -> tuple[tuple[str, ...], np.ndarray]:
-    """Read the load cases' resultants, in definition units and the element frame.
+    """Read every cell of the load cases' resultants, in definition units and the element frame.
 
     Parameters
     ----------
     path_or_paths : path or list of paths
         One file (XDMF series, HDF5, or a mesh file with suffixed or plain
-        arrays) or a list of mesh files, one case each; see the module notes.
+        arrays) or a list of mesh files, one case each; see :mod:`bridge.recover.files`.
     n_cells : int
         Shell cells of the mesh (the global cell index).
     fields, settings : ResultantFields, ResultantSettings
@@ -257,8 +276,6 @@ def read_resultants(path_or_paths, n_cells: int, fields: ResultantFields = Resul
         φ per cell, for ``settings.frame == "laminate"``.
     frames : (x, y, n), optional
         Element frames, for ``settings.frame == "vectors"``.
-    vectors : ndarray (n_cells, 3), optional
-        Per-cell x vectors; default the cell array ``settings.vectors`` of the file.
     allow_nonfinite : bool
         Keep NaN/inf values (flag them with :func:`nonfinite_mask`) instead of raising.
 
@@ -274,21 +291,17 @@ def read_resultants(path_or_paths, n_cells: int, fields: ResultantFields = Resul
         Missing or mis-shaped arrays, cell-count mismatch, non-finite values,
         unknown case names, duplicate case names.
     """
-    names, load, extra, src = _sources(path_or_paths, n_cells)
+    source = ResultantSource(path_or_paths, n_cells, fields, settings,
+                             CellAxes(material_angle_deg, None if frames is None else tuple(frames)))
+    names = source.names
     try:
-        if len(set(names)) != len(names):
-            raise ResultantsError(f"duplicate case names {names}; name each load case once")
         pick = list(range(len(names)))
         if cases is not None:
             unknown = [c for c in cases if c not in names]
             if unknown:
-                raise ResultantsError(f"unknown load case(s) {unknown}; the file has {names}")
+                raise ResultantsError(f"unknown load case(s) {unknown}; the file has {list(names)}")
             pick = [names.index(c) for c in cases]
-        R = np.empty((len(pick), n_cells, 8))
-        for k, i in enumerate(pick):
-            got = load(i)
-            R[k] = got if isinstance(got, np.ndarray) else assemble(got, n_cells, fields,
-                                                                     f" in case {names[i]!r}")
+        R = source.read_cells(slice(None))[pick]
         if not allow_nonfinite:
             bad = nonfinite_mask(R)
             if bad.any():
@@ -296,48 +309,6 @@ def read_resultants(path_or_paths, n_cells: int, fields: ResultantFields = Resul
                         for k in np.flatnonzero(bad.any(axis=1))]
                 raise ResultantsError(f"NaN or infinite resultants in case(s) {'; '.join(rows)}; fix the "
                                       "solver output or allow non-finite values to skip those cells")
-        if settings.frame == "vectors" and vectors is None:
-            if settings.vectors is None or settings.vectors not in extra:
-                raise ResultantsError(f"frame 'vectors' needs the cell array {settings.vectors!r}; found "
-                                      f"{', '.join(map(repr, sorted(extra))) or 'no cell arrays'}")
-            vectors = extra[settings.vectors]
-        R = to_element_frame(apply_settings(R, settings), settings.frame, material_angle_deg, frames, vectors)
     except InputError as exc:
-        raise exc.within(src) from None
+        raise exc.within(source.files.label) from None
     return tuple(names[i] for i in pick), R
-
-
-# ----------------------------------------------------------------------------- writers
-
-def _check_cases(case_names: Sequence[str], R: np.ndarray) -> np.ndarray:
-    R = np.asarray(R, dtype=np.float64)
-    if R.ndim != 3 or R.shape[2] != 8 or R.shape[0] != len(case_names):
-        raise ResultantsError(f"resultants must have shape ({len(case_names)}, cells, 8), got {R.shape}")
-    if len(set(case_names)) != len(case_names):
-        raise ResultantsError(f"duplicate case names {list(case_names)}")
-    return R
-
-
-def write_resultants_h5(path: str | os.PathLike, case_names: Sequence[str], R: np.ndarray) -> None:
-    """Write resultants (n_cases, n_cells, 8) to HDF5 ``/resultants`` atomically.
-
-    Chunks are 1 case × up to 65536 cells × 8, shuffle + gzip; attributes
-    ``case_names`` and ``components`` (:data:`COMPONENTS`).
-    """
-    import h5py
-
-    R = _check_cases(case_names, R)
-    with atomic_path(path) as tmp, h5py.File(tmp, "w") as h5:
-        ds = h5.create_dataset(H5_DATASET, data=R, chunks=(1, max(1, min(R.shape[1], H5_CHUNK_CELLS)), 8),
-                               compression="gzip", compression_opts=4, shuffle=True)
-        ds.attrs["case_names"] = np.array([str(c) for c in case_names], dtype=h5py.string_dtype())
-        ds.attrs["components"] = np.array(COMPONENTS, dtype=h5py.string_dtype())
-
-
-def write_resultants_xdmf(path: str | os.PathLike, mesh: ShellMesh, case_names: Sequence[str], R: np.ndarray,
-                          fields: ResultantFields = ResultantFields()) -> None:
-    """Write resultants as an XDMF time series, one grid per case, arrays named by ``fields``."""
-    from bridge.mesh.formats import xdmf
-
-    R = _check_cases(case_names, R)
-    xdmf.write_series(path, mesh, [(c, resultant_arrays(R[k], fields)) for k, c in enumerate(case_names)])

@@ -24,11 +24,10 @@ from bridge.definition.cases import Case, combine_steps
 from bridge.definition.loader import Definition, load_definition
 from bridge.mesh.formats import read_mesh
 from bridge.model.build import Model, build_model
-from bridge.definition.resultants import resultant_options
 from bridge.results.partial import companions
 from bridge.results.store import CHUNK_CELLS, LAYOUT_VERSION, StoreLayout, mesh_group
-from bridge.recover.distributed import BlockContext, BlockSpec, read_h5_block
-from bridge.recover.resultants import _HDF5_SIGNATURE, H5_DATASET, _h5_source, read_resultants
+from bridge.recover.distributed import BlockContext, BlockSpec
+from bridge.recover.resultants import ResultantSource
 
 #: Target size of the resultants of one block (bytes): bounds the memory of a run.
 BLOCK_BYTES = 32 * 2 ** 20
@@ -40,64 +39,6 @@ def sha256_of(path: str | Path) -> str:
         for chunk in iter(lambda: fh.read(2 ** 20), b""):
             h.update(chunk)
     return h.hexdigest()
-
-
-class ResultantSource:
-    """Input steps of the resultants, read by cell ranges, in the element frame and definition units.
-
-    An HDF5 ``/resultants`` file is streamed block by block (tasks open it by
-    path); the other formats are read whole, once, and sliced.
-    """
-
-    def __init__(self, paths: Sequence[str], model: Model):
-        self.paths = [str(p) for p in paths]
-        fields, self.settings = resultant_options(model.defn)
-        self.model = model
-        self.h5_path: str | None = None
-        self._data = None
-        first = self.paths[0]
-        head = b""
-        if Path(first).is_file():
-            with open(first, "rb") as fh:
-                head = fh.read(8)
-        if len(self.paths) == 1 and head.startswith(_HDF5_SIGNATURE) and self._is_plain_h5(first):
-            if self.settings.frame == "vectors":
-                raise ResultantsError("frame = 'vectors' is not available for HDF5 resultants; give the "
-                                      "resultants in the element frame or laminate axes ([resultants] frame)", first)
-            # Validates shape, cell count and case names.
-            names, _, _ = _h5_source(first, model.n_cells)
-            self.names = tuple(names)
-            self.h5_path = first
-        else:
-            src = self.paths[0] if len(self.paths) == 1 else self.paths
-            self.names, self._data = read_resultants(
-                src, model.n_cells, fields, self.settings, material_angle_deg=model.phi,
-                frames=(model.frame_x, model.frame_y, model.normal), allow_nonfinite=True)
-
-    @staticmethod
-    def _is_plain_h5(path: str) -> bool:
-        import h5py
-
-        try:
-            with h5py.File(path, "r", locking=False) as h5:
-                return H5_DATASET in h5
-        except OSError:
-            raise ResultantsError("an HDF5 file that cannot be opened (truncated or damaged); write it again",
-                                  path) from None
-
-    def read(self, start: int, stop: int) -> np.ndarray:
-        """(n_steps, stop − start, 8) resultants of cells start … stop − 1."""
-        return self.read_cells(slice(start, stop))
-
-    def read_cells(self, cells: slice | np.ndarray) -> np.ndarray:
-        """(n_steps, ncell, 8) resultants of a cell slice or of increasing cell ids."""
-        if self._data is not None:
-            return self._data[:, cells]
-        return read_h5_block(self.h5_path, cells, self.settings, self.model.phi[cells])
-
-    def block_steps(self, start: int, stop: int) -> np.ndarray | None:
-        """What a block task needs besides the file path: the steps when there is no HDF5 file to open."""
-        return None if self.h5_path is not None else self._data[:, start:stop]
 
 
 @dataclass(frozen=True)
@@ -179,7 +120,7 @@ def input_digests(paths: dict[str, str]) -> dict[str, dict]:
     return out
 
 
-def provenance(defn: Definition, paths: dict[str, str], digests: dict[str, dict] | None = None) -> dict:
+def provenance(paths: dict[str, str], digests: dict[str, dict] | None = None) -> dict:
     from shells import __version__
 
     return {
@@ -198,7 +139,7 @@ def prepare(definition: str, mesh_path: str, resultants: Sequence[str]):
     defn = load_definition(definition)
     mesh = read_mesh(mesh_path)
     model = build_model(defn, mesh)
-    source = ResultantSource(resultants, model)
+    source = ResultantSource.of_model(resultants, model)
     plan = plan_cases(defn, model, source.names)
     return defn, model, source, plan, criteria_of(defn, model)
 
@@ -211,7 +152,7 @@ def block_context(defn: Definition, tables, source: ResultantSource, plan: CaseP
                   store_plies: bool) -> BlockContext:
     """What every block task shares: small arrays and names, no file handles."""
     return BlockContext(tuple(defn.analysis.criteria), tables, plan.weights, plan.dM, plan.pres, plan.fos,
-                        store_plies, source.h5_path, source.settings)
+                        store_plies, source.reader)
 
 
 def block_specs(model: Model, source: ResultantSource, plan: CasePlan, step: int,
@@ -311,7 +252,7 @@ def _finish(store, summary, crit, tables, model, source, plan, defn, paths, dige
     store.write_static("model", {"zone": model.zone.astype(np.int32), "section": model.section.astype(np.int32),
                                  "material_angle": model.phi, "normal": model.normal, "frame_x": model.frame_x})
     store.write_meta({
-        **provenance(defn, paths, digests),
+        **provenance(paths, digests),
         "title": defn.title, "units": defn.units.name, "conventions": "docs/conventions.md",
         "criteria": criterion_table(), "criteria_used": list(defn.analysis.criteria),
         "zones": [z.name for z in defn.zones], "zone_laminates": [z.laminate for z in defn.zones],

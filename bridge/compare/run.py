@@ -16,13 +16,14 @@ import numpy as np
 
 from postproc.compare import Comparison, compare_values, comparison_summary, reference_values
 from postproc.diagnose import ZoneData, diagnose
+from shells.defaults import CAUTION
 from shells.errors import InputError
 
 from bridge.atomic import atomic_path
 from bridge.definition.loader import Definition, load_definition
 from bridge.mesh.formats import read_mesh
 from bridge.model.build import Model, build_model
-from bridge.recover.run import CAUTION, CasePlan, ResultantSource, plan_cases, provenance
+from bridge.recover.run import CasePlan, ResultantSource, plan_cases, provenance
 from bridge.compare.solver_plies import SolverPlies, read_solver_plies, solver_plies_of
 
 FORMAT = "plybridge-compare"
@@ -143,7 +144,7 @@ def run_compare(definition: str, mesh_path: str, resultants: Sequence[str], solv
     paths = {"definition": definition, "mesh": mesh_path,
              **{f"resultants{k}": p for k, p in enumerate(resultants)},
              **{f"solver_plies{k}": p for k, p in enumerate(solver_plies)}}
-    write_compare(output, summary, cmp, inp.model, {**provenance(inp.defn, paths), "units": inp.defn.units.name})
+    write_compare(output, summary, cmp, inp.model, {**provenance(paths), "units": inp.defn.units.name})
     if view:
         write_mesh(view, inp.model.mesh, {"discrepancy": cmp.cell_discrepancy, "zone": inp.model.zone,
                                           "worst_ply": cmp.cell_worst[:, 1] + 1})

@@ -9,7 +9,7 @@ then rules.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import Any, Mapping
 
 import numpy as np
@@ -57,7 +57,6 @@ class Model:
     normal: np.ndarray
     sections: tuple[Section, ...]
     section_names: tuple[str, ...]
-    section_zone_laminate: tuple[str, ...] = field(default=())
 
     @property
     def n_cells(self) -> int:
@@ -113,7 +112,7 @@ def build_model(defn: Definition, mesh: ShellMesh) -> Model:
     sections = tuple(section_of(defn, lam, off) for lam, off in keys)
     names = tuple(lam if off == 0 else f"{lam}@{off:g}" for lam, off in keys)
     return Model(defn, mesh, zone, np.asarray(section_of_zone, dtype=np.int64)[zone], phi, x, y, n,
-                 sections, names, tuple(lam for lam, _ in keys))
+                 sections, names)
 
 
 def describe(model: Model) -> Mapping[str, Any]:

@@ -78,6 +78,17 @@ class MaterialInfo:
 
 @dataclass(frozen=True)
 class PlyInfo:
+    """One ply of a stored section (ply 1 at the bottom).
+
+    Attributes
+    ----------
+    material : str
+    angle : float
+        Degrees from the laminate's x axis, counter-clockwise about the normal.
+    thickness : float
+        Length unit of the run.
+    """
+
     material: str
     angle: float
     thickness: float

@@ -11,10 +11,8 @@ import sys
 
 import click
 
+from shells.defaults import CAUTION
 from shells.errors import InputError
-
-CAUTION = ("Results support, and never replace, review by a qualified engineer under the applicable "
-           "regulations and local codes.")
 
 
 class _Group(click.Group):

@@ -14,12 +14,13 @@ import html
 import json
 import re
 from dataclasses import dataclass, field
-from typing import Any, Mapping, Sequence
+from typing import Any, Sequence
+
+from shells.defaults import CAUTION
 
 from .report_html import PAGE, STYLE
+from .run_meta import RunMeta
 
-CAUTION = ("Results support, and never replace, review by a qualified engineer under the applicable "
-           "regulations and local codes.")
 
 
 @dataclass(frozen=True)
@@ -28,31 +29,18 @@ class ReportInputs:
 
     Attributes
     ----------
-    title, units : str
-        Run title and force-length system.
-    summary : dict
-        The store's ``summary`` attribute (worst, zones, laminates, cases, criteria, hot_spots, flagged_cells).
-    materials, sections, cases, analysis, inputs : dict or list
-        The store's metadata of the same names (``cases`` is ``cases_detail``).
-    zones : list of (zone, laminate)
-    provenance : dict
-        tool, tool_version, created, settings…
+    meta : RunMeta
+        The store's run metadata.
+    store : str
+        Path of the store (shown in the provenance).
     figures : list of (caption, PNG bytes)
         Maps and plots, in order.
     compare_fragment : str or None
         Trusted HTML from the compare command.
     """
 
-    title: str
-    units: str
-    summary: Mapping[str, Any]
-    materials: Mapping[str, Any]
-    sections: Sequence[Mapping[str, Any]]
-    cases: Sequence[Mapping[str, Any]]
-    analysis: Mapping[str, Any]
-    inputs: Mapping[str, Any]
-    zones: Sequence[tuple[str, str]]
-    provenance: Mapping[str, Any]
+    meta: RunMeta
+    store: str = ""
     figures: Sequence[tuple[str, bytes]] = field(default_factory=tuple)
     compare_fragment: str | None = None
 
@@ -100,39 +88,38 @@ def table(headers: Sequence[str], rows: Sequence[Sequence[Any]], numeric: Sequen
     return f'<table class="{esc(cls)}"><thead><tr>{head}</tr></thead><tbody>{"".join(body)}</tbody></table>'
 
 
-def _minima(title: str, key: str, entries: Mapping[str, Mapping[str, Any]], extra: str | None = None) -> str:
-    headers = [key] + ([extra] if extra else []) + ["min margin", "cell"]
-    rows = [[name] + ([e.get(extra, "")] if extra else []) + [e.get("min_margin"), e.get("cell")]
-            for name, e in entries.items()]
+def _minima(title: str, key: str, entries, extra: bool = False) -> str:
+    headers = [key] + (["laminate"] if extra else []) + ["min margin", "cell"]
+    rows = [[e.name] + ([e.laminate] if extra else []) + [e.min_margin, e.cell] for e in entries]
     return f"<h3>{esc(title)}</h3>" + table(headers, rows, numeric=(len(headers) - 2,))
 
 
 def _summary(r: ReportInputs) -> str:
-    s = r.summary
-    w = s.get("worst") or {}
+    s = r.meta.summary
+    w = s.worst
     head = ('<p class="headline">Minimum margin of safety: <strong>'
-            + (f"{float(w['min_margin']):.4g}" if w else "none") + "</strong>"
-            + (f" at cell {esc(w.get('cell'))}, ply {esc(w.get('ply'))}, case {esc(w.get('case'))}, "
-               f"{esc(w.get('criterion'))} ({esc(w.get('mode'))}), {esc(w.get('point'))} of the ply"
+            + (f"{float(w.min_margin):.4g}" if w else "none") + "</strong>"
+            + (f" at cell {esc(w.cell)}, ply {esc(w.ply)}, case {esc(w.case)}, "
+               f"{esc(w.criterion)} ({esc(w.mode)}), {esc(w.point)} of the ply"
                if w else "") + "</p>")
     parts = ['<section id="summary"><h2>Summary</h2>', head,
-             table(["quantity", "value"], [["minimum margin", w.get("min_margin", "")],
-                                           ["strength ratio", w.get("strength_ratio", "")],
-                                           ["flagged cells", s.get("flagged_cells", 0)]],
+             table(["quantity", "value"], [["minimum margin", w.min_margin if w else ""],
+                                           ["strength ratio", w.strength_ratio if w else ""],
+                                           ["flagged cells", s.flagged_cells]],
                    numeric=(1,), cls="summary"),
-             _minima("By zone", "zone", s.get("zones", {}), "laminate"),
-             _minima("By laminate", "laminate", s.get("laminates", {})),
-             _minima("By case", "case", s.get("cases", {})),
-             _minima("By criterion", "criterion", s.get("criteria", {}))]
-    if s.get("flagged_cells"):
-        parts.append(f"<p>{esc(s['flagged_cells'])} cells had NaN or infinite resultants in some case; those "
-                     f"cases were skipped there (e.g. cells {esc(s.get('flagged_examples', [])[:10])}).</p>")
+             _minima("By zone", "zone", s.zones, True),
+             _minima("By laminate", "laminate", s.laminates),
+             _minima("By case", "case", s.cases),
+             _minima("By criterion", "criterion", s.criteria)]
+    if s.flagged_cells:
+        parts.append(f"<p>{esc(s.flagged_cells)} cells had NaN or infinite resultants in some case; those "
+                     f"cases were skipped there (e.g. cells {esc(list(s.flagged_examples[:10]))}).</p>")
     return "".join(parts) + "</section>"
 
 
 def _hot_spots(r: ReportInputs) -> str:
     keys = ("cell", "min_margin", "ply", "strength_ratio", "case", "point", "criterion", "mode")
-    rows = [[i + 1] + [h.get(k, "") for k in keys] for i, h in enumerate(r.summary.get("hot_spots", []))]
+    rows = [[i + 1] + [getattr(h, k) for k in keys] for i, h in enumerate(r.meta.summary.hot_spots)]
     return ('<section id="hotspots"><h2>Hot spots</h2>'
             + table(["rank", *keys], rows, numeric=(2, 4), cls="hotspots") + "</section>")
 
@@ -149,35 +136,44 @@ def _json_cell(value: Any) -> str:
 
 
 def _inputs(r: ReportInputs) -> str:
-    mats = [[name, m.get("kind", ""), ", ".join(f"{k} = {_json_cell(v)}" for k, v in m.items() if k != "kind")]
-            for name, m in r.materials.items()]
+    m = r.meta
+    mats = [[x.name, x.kind, ", ".join([f"{p.key} = {_json_cell(p.value)}" for p in x.properties]
+                                       + [f"knockdown = {_json_cell(x.knockdown)}"])]
+            for x in m.materials]
     secs = []
-    for s in r.sections:
-        plies = "; ".join(f"{i + 1}: {p['material']} {p['angle']:g}° × {p['thickness']:g}"
-                          for i, p in enumerate(s.get("plies", [])))
-        secs.append([s.get("id"), s.get("laminate"), s.get("thickness"), s.get("offset"), plies])
-    cases = [[c.get("name"), c.get("kind"), c.get("delta_T"), c.get("pressure"), c.get("factor_of_safety")]
-             for c in r.cases]
-    u = esc(r.units)
+    for s in m.sections:
+        plies = "; ".join(f"{i + 1}: {p.material} {p.angle:g}° × {p.thickness:g}" for i, p in enumerate(s.plies))
+        secs.append([s.id, s.laminate, s.thickness, s.offset, plies])
+    cases = [[c.name, c.kind, c.delta_T, c.pressure, c.factor_of_safety] for c in m.cases]
+    a = m.analysis
+    settings = [["criteria", _json_cell(list(a.criteria))],
+                ["factor_of_safety", _json_cell({f.name: f.value for f in a.factor_of_safety})],
+                ["transverse_shear", a.transverse_shear], ["shear_factor", _json_cell(a.shear_factor)],
+                ["wrinkling_coefficient", _json_cell(a.wrinkling_coefficient)], ["hot_spots", _json_cell(a.hot_spots)]]
+    u = esc(m.units)
     return ('<section id="inputs" class="page"><h2>Inputs</h2>'
             f"<p>Units: <strong>{u}</strong> (stresses and properties in force/length² of that system, "
             "lengths in its length unit, temperatures in its degree).</p>"
             "<h3>Materials</h3>" + table(["material", "kind", "properties"], mats)
             + "<h3>Laminates and sections</h3>"
-            + table(["section", "laminate", f"thickness [{r.units}: length]", "offset",
+            + table(["section", "laminate", f"thickness [{m.units}: length]", "offset",
                      "plies, bottom (1) to top: material angle × thickness"], secs, numeric=(2, 3))
             + "<h3>Zones</h3>" + table(["zone id", "zone", "laminate"],
-                                      [[i, z, lam] for i, (z, lam) in enumerate(r.zones)])
+                                      [[i, z.name, z.laminate] for i, z in enumerate(m.zones)])
             + "<h3>Cases</h3>" + table(["case", "kind", "ΔT", "pressure", "factor of safety"], cases,
                                        numeric=(2, 3, 4))
             + "<h3>Criteria and factors</h3>"
-            + table(["setting", "value"], [[k, _json_cell(v)] for k, v in r.analysis.items()])
+            + table(["setting", "value"], settings)
             + "</section>")
 
 
 def _provenance(r: ReportInputs) -> str:
-    rows = [[k, _json_cell(v)] for k, v in r.provenance.items()]
-    files = [[role, e.get("path", ""), e.get("sha256", "")] for role, e in r.inputs.items()]
+    m = r.meta
+    p = m.provenance
+    rows = [["tool", p.tool], ["tool_version", p.tool_version], ["created", p.created], ["store", r.store],
+            ["store layout", m.store_kind], ["conventions", m.conventions],
+            ["criteria evaluated", _json_cell(list(m.criteria_used))]]
+    files = [[f.role, f.path, f.sha256] for f in p.inputs]
     return ('<section id="provenance"><h2>Provenance</h2>' + table(["item", "value"], rows)
             + "<h3>Input files</h3>" + table(["role", "path", "SHA-256"], files, cls="mono") + "</section>")
 
@@ -185,14 +181,15 @@ def _provenance(r: ReportInputs) -> str:
 def build_report(r: ReportInputs) -> str:
     """The complete HTML document of the report (see the module docstring)."""
     caution = f'<div class="caution" role="note">Caution: {esc(CAUTION)}</div>'
-    header = (f'<header class="top"><h1>{esc(r.title)}: ply margins</h1><p>plybridge '
-              f"{esc(r.provenance.get('tool_version', ''))}, {esc(r.provenance.get('created', ''))}, units "
-              f"{esc(r.units)}</p></header>")
+    m = r.meta
+    header = (f'<header class="top"><h1>{esc(m.title)}: ply margins</h1><p>plybridge '
+              f"{esc(m.provenance.tool_version)}, {esc(m.provenance.created)}, units "
+              f"{esc(m.units)}</p></header>")
     compare = ""
     if r.compare_fragment:
         compare = (f'<section id="compare" class="page"><h2>Comparison with the solver</h2>'
                    f"{check_fragment(r.compare_fragment)}</section>")
     body = "\n".join([header, caution, _summary(r), _hot_spots(r), _figures(r), compare, _inputs(r),
                       _provenance(r), caution])
-    return PAGE.format(version=esc(r.provenance.get("tool_version", "")), title=esc(f"{r.title}: plybridge report"),
+    return PAGE.format(version=esc(m.provenance.tool_version), title=esc(f"{m.title}: plybridge report"),
                        style=STYLE, body=body)

@@ -7,6 +7,7 @@ from __future__ import annotations
 import numpy as np
 
 from shells.criteria import CRITERIA
+from shells.defaults import HOT_SPOTS
 
 POINTS = ("bottom", "middle", "top")
 
@@ -31,7 +32,7 @@ class SummaryAccumulator:
         Number of worst cells kept.
     """
 
-    def __init__(self, zone_of_cell: np.ndarray, n_zones: int, n_cases: int, hot_spots: int = 20):
+    def __init__(self, zone_of_cell: np.ndarray, n_zones: int, n_cases: int, hot_spots: int = HOT_SPOTS):
         self.zone = np.asarray(zone_of_cell)
         self.n_hot = hot_spots
         self.zone_min = np.full(n_zones, np.inf)

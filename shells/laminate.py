@@ -37,11 +37,14 @@ class Laminate:
         Bottom to top.
     offset : float
         Distance from the reference surface (z = 0) to the mid-plane, along the normal.
+    notation : str or None
+        The stacking sequence as the user wrote it (for reports), None for an explicit ply list.
     """
 
     name: str
     plies: tuple[Ply, ...]
     offset: float = 0.0
+    notation: str | None = None
 
     def __post_init__(self):
         if not self.plies:
@@ -55,7 +58,7 @@ class Laminate:
         return float(sum(p.thickness for p in self.plies))
 
     def with_offset(self, offset: float) -> "Laminate":
-        return Laminate(self.name, self.plies, offset)
+        return Laminate(self.name, self.plies, offset, self.notation)
 
 
 @dataclass(frozen=True)

@@ -44,6 +44,11 @@ class _Layer:
     density: float = 0.0
     thickness: float | None = None
     knockdown: float = 1.0
+    #: The factors whose product is ``knockdown``, as (name, factor) pairs (empty when given as one number).
+    knockdown_factors: tuple[tuple[str, float], ...] = ()
+    #: Where the values come from (a data sheet, a test report), shown in the report; not used in any calculation.
+    source: str | None = None
+    description: str | None = None
 
     def alpha(self) -> np.ndarray:
         return np.zeros(3)

@@ -9,6 +9,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from . import params as P
+from .defaults import SHEAR_FACTOR, TRANSVERSE_SHEAR, WRINKLING_COEFFICIENT
 from .errors import LayupError
 from .engineering import flags, flexural_constants, membrane_constants
 from .laminate import Laminate, Ply, SectionProperties, section_properties
@@ -101,8 +102,8 @@ def _face_allowables(lam: Laminate, params: np.ndarray, k_wrinkle: float) -> Non
             params[run, P.DIMPLING] = dimpling_stress(ef, mc["nuxy"], face.thickness, core.cell_size)
 
 
-def build_section(lam: Laminate, shear_method: str = "equilibrium", shear_factor: float = 5.0 / 6.0,
-                  wrinkling_coefficient: float = 0.5) -> Section:
+def build_section(lam: Laminate, shear_method: str = TRANSVERSE_SHEAR, shear_factor: float = SHEAR_FACTOR,
+                  wrinkling_coefficient: float = WRINKLING_COEFFICIENT) -> Section:
     """Compute a :class:`Section` from a laminate.
 
     Parameters

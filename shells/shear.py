@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from .defaults import SHEAR_FACTOR
 from .laminate import SectionProperties
 
 #: Through-thickness points of a ply as fractions of its thickness: bottom, middle, top.
@@ -93,8 +94,8 @@ def equilibrium_shear_stiffness(sp: SectionProperties) -> np.ndarray:
     return np.linalg.inv(flex)
 
 
-def factor_shear_stiffness(sp: SectionProperties, factor: float = 5.0 / 6.0) -> np.ndarray:
-    """H = k · Σ Ḡ t, the shear-correction-factor estimate (k = 5/6 by default: common practice)."""
+def factor_shear_stiffness(sp: SectionProperties, factor: float = SHEAR_FACTOR) -> np.ndarray:
+    """H = k · Σ Ḡ t, the shear-correction-factor estimate (k = :data:`shells.defaults.SHEAR_FACTOR` by default)."""
     return factor * np.einsum("k,kij->ij", np.diff(sp.z), sp.Gbar)
 
 

@@ -208,17 +208,18 @@ def test_worst_margin_where_navier_puts_it(demo_run):
     assert runner_up < 0.85 * proxy[j, cell]
     assert (names[j], panels()[owner[cell]].name, cell) == ("crash-forward", "floor", _centre_cell(mesh, 0))
     with StoreReader(out / "results.h5") as st:
-        summary = st.meta("summary")
+        summary = st.run.summary
         gov_case = st.array("cells/case")
-    worst = summary["worst"]
-    assert worst["case"] == names[j]
-    assert zone_of_cell[worst["cell"]] == zone_of_cell[cell]
+    worst = summary.worst
+    assert worst.case == names[j]
+    assert zone_of_cell[worst.cell] == zone_of_cell[cell]
     spacing = np.hypot(DEMO.size[0] / DEMO.cells[0], DEMO.size[1] / DEMO.cells[1])
     c = mesh.centroids()
-    assert np.linalg.norm(c[worst["cell"]] - c[cell]) <= 1.01 * spacing
+    assert np.linalg.norm(c[worst.cell] - c[cell]) <= 1.01 * spacing
     # Each zone's own worst cell: in the case and near the place of its largest factored strain.
-    for zone, row in summary["zones"].items():
+    for row in summary.zones:
+        zone = row.name
         sel = zone_of_cell == zone
         jz, cz = np.unravel_index(np.argmax(np.where(sel, proxy, -1.0)), proxy.shape)
-        assert gov_case[row["cell"]] == jz, zone
-        assert proxy[jz, row["cell"]] >= 0.95 * proxy[jz, cz], zone
+        assert gov_case[row.cell] == jz, zone
+        assert proxy[jz, row.cell] >= 0.95 * proxy[jz, cz], zone

@@ -170,13 +170,13 @@ def test_margin_map_marks_the_worst_cell_and_writes_cell_data(store, tmp_path):
     from bridge.results.store import StoreReader
 
     with StoreReader(store) as st:
-        worst = st.meta("summary")["worst"]
+        worst = st.run.summary.worst
     drawn = render_store(store, tmp_path / "m.png", size=(320, 240), cell_data=tmp_path / "m.vtu")
-    assert drawn["cell"] == worst["cell"] and drawn["value"] == pytest.approx(worst["min_margin"])
+    assert drawn["cell"] == worst.cell and drawn["value"] == pytest.approx(worst.min_margin)
     import pyvista as pv
 
     grid = pv.read(tmp_path / "m.vtu")
-    assert grid.cell_data["margin"][worst["cell"]] == pytest.approx(worst["min_margin"])
+    assert grid.cell_data["margin"][worst.cell] == pytest.approx(worst.min_margin)
 
 
 def test_ply_stress_at_a_case_and_ply(store, tmp_path):

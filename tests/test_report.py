@@ -37,9 +37,9 @@ def test_report_is_self_contained_and_escaped(report):
     from bridge.results.store import StoreReader
 
     with StoreReader(store) as st:
-        worst = st.meta("summary")["worst"]
-        sha = st.meta("inputs")["definition"]["sha256"]
-    assert f"{worst['min_margin']:.4g}" in text and sha in text
+        worst = st.run.summary.worst
+        sha = st.run.provenance.input("definition").sha256
+    assert f"{worst.min_margin:.4g}" in text and sha in text
 
 
 def html_escaped(s: str) -> str:

@@ -6,13 +6,14 @@ import json
 
 import click
 
+from shells.defaults import CAUTION
+
 
 @click.command(help="Recover MESH from RESULTANTS independently and compare every ply, point, component, cell "
                     "and case with the solver's ply values SOLVER_PLIES (mapped by the [solver_plies] table of "
                     "DEFINITION; docs/compare.md). On a failure, tests the usual convention errors zone by zone "
                     "and names those that explain it. Exit code 0: within tolerance; 1: the comparison failed; "
-                    "2: bad input.\n\nResults support, and never replace, review by a qualified engineer under the "
-                    "applicable regulations and local codes.")
+                    "2: bad input.\n\n" + CAUTION)
 @click.argument("definition", type=click.Path(dir_okay=False))
 @click.argument("mesh", type=click.Path(dir_okay=False))
 @click.argument("resultants", type=click.Path(dir_okay=False))

@@ -8,6 +8,8 @@ from pathlib import Path
 
 import click
 
+from shells.defaults import CAUTION
+
 #: Files written into the output folder besides the inputs of bridge.demo.write_inputs.
 ASSIGNED_NAME = "bay-assigned.vtu"
 STORE_NAME = "results.h5"
@@ -23,8 +25,7 @@ def _note(start: float, text: str) -> None:
 @click.command(help="Run the bundled demo: a battery bay of a small electric aircraft (sandwich floor and lid, "
                     "monolithic walls, four load cases; invented data, docs/demo.md). Writes the definition, mesh "
                     "and resultants into OUT, then runs assign, recover, render and report there. Prints the "
-                    "report's path on stdout; progress on stderr. Results support, and never replace, review by "
-                    "a qualified engineer under the applicable regulations and local codes.")
+                    "report's path on stdout; progress on stderr. " + CAUTION)
 @click.option("--out", "out_dir", default="demo-out", show_default=True, type=click.Path(file_okay=False),
               help="Output folder (created if missing; existing demo files are replaced).")
 def demo(out_dir: str) -> None:

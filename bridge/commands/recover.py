@@ -87,7 +87,7 @@ def recover(definition, mesh, resultants, output, store_kind, view, hot_path, as
     from bridge.results.store import StoreReader
 
     with StoreReader(output) as st:
-        units = st.meta("units")
+        units = st.run.units
     if as_json:
         click.echo(json.dumps(summary, indent=1))
     else:

@@ -7,7 +7,7 @@ from pathlib import Path
 
 import click
 
-from postproc.report import CAUTION
+from shells.defaults import CAUTION
 
 
 @click.command(help="Write the HTML report of the results store RESULTS to OUTPUT: minimum margins by zone, "

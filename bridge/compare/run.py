@@ -16,6 +16,7 @@ import numpy as np
 
 from postproc.compare import Comparison, compare_values, comparison_summary, reference_values
 from postproc.diagnose import ZoneData, diagnose
+from shells.defaults import CAUTION
 from shells.errors import InputError
 
 from bridge.atomic import atomic_path
@@ -25,7 +26,7 @@ from bridge.model.build import Model, build_model
 from bridge.definition.cases import combine_steps
 from bridge.definition.solver_plies import SolverPlies
 from bridge.recover.resultants import ResultantSource
-from bridge.recover.run import CAUTION, CasePlan, plan_cases, provenance
+from bridge.recover.run import CasePlan, plan_cases, provenance
 from bridge.compare.solver_plies import read_solver_plies
 
 FORMAT = "plybridge-compare"

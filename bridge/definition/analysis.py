@@ -5,6 +5,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Any
 
+from shells.defaults import HOT_SPOTS, SHEAR_FACTOR, TRANSVERSE_SHEAR, WRINKLING_COEFFICIENT
 from shells.errors import DefinitionError
 
 from bridge.definition.schema import expect_table, take
@@ -39,10 +40,10 @@ class Analysis:
 
     criteria: tuple[str, ...] = ("max-stress", "max-strain", "tsai-wu", "hashin")
     factor_of_safety: tuple[tuple[str, float], ...] = tuple(DEFAULT_FOS.items())
-    transverse_shear: str = "equilibrium"
-    shear_factor: float = 5.0 / 6.0
-    wrinkling_coefficient: float = 0.5
-    hot_spots: int = 20
+    transverse_shear: str = TRANSVERSE_SHEAR
+    shear_factor: float = SHEAR_FACTOR
+    wrinkling_coefficient: float = WRINKLING_COEFFICIENT
+    hot_spots: int = HOT_SPOTS
 
     def fos(self, kind: str) -> float:
         return dict(self.factor_of_safety)[kind]
@@ -68,14 +69,14 @@ def parse_analysis(table: Any, units: UnitSystem) -> Analysis:
         if isinstance(value, bool) or not isinstance(value, (int, float)) or not value >= 1.0:
             raise DefinitionError(f"analysis.factor_of_safety.{kind} = {value!r} must be a number >= 1")
         fos[kind] = float(value)
-    method = values.get("transverse_shear", "equilibrium")
+    method = values.get("transverse_shear", TRANSVERSE_SHEAR)
     if method not in SHEAR_METHODS:
         raise DefinitionError(f"analysis.transverse_shear = {method!r}; use one of {', '.join(SHEAR_METHODS)}")
-    k = values.get("shear_factor", 5.0 / 6.0)
+    k = values.get("shear_factor", SHEAR_FACTOR)
     if not 0 < k <= 1.0:
         raise DefinitionError(f"analysis.shear_factor = {k} must lie in (0, 1]")
-    hot = values.get("hot_spots", 20)
+    hot = values.get("hot_spots", HOT_SPOTS)
     if not 1 <= hot <= 100000:
         raise DefinitionError(f"analysis.hot_spots = {hot} must lie between 1 and 100000")
     return Analysis(tuple(dict.fromkeys(criteria)), tuple(fos.items()), method, k,
-                    values.get("wrinkling_coefficient", 0.5), hot)
+                    values.get("wrinkling_coefficient", WRINKLING_COEFFICIENT), hot)

@@ -71,7 +71,7 @@ def parse_laminate(name: str, table: Mapping[str, Any], materials: Mapping[str, 
             ply = take(expect_table(entry, at), PLY_SPEC, at, units, required=("angle",))
             mat = _material(ply.get("material", default_material), materials, at)
             plies.append(Ply(mat, ply["angle"], _thickness(ply.get("thickness"), default_t, mat, at)))
-    return Laminate(name, tuple(plies), values.get("offset", 0.0))
+    return Laminate(name, tuple(plies), values.get("offset", 0.0), values.get("layup"))
 
 
 def parse_laminates(tables: Any, materials: Mapping[str, Material], units: UnitSystem) -> dict[str, Laminate]:

@@ -12,7 +12,8 @@ from bridge.definition.units import UnitSystem
 
 S, L, D = "stress", "length", "dimensionless"
 
-_COMMON = {"kind": "str", "description": "str", "density": "density", "thickness": L, "knockdown": "any"}
+_COMMON = {"kind": "str", "description": "str", "source": "str", "density": "density", "thickness": L,
+           "knockdown": "any"}
 
 SPECS: dict[str, dict[str, str]] = {
     "ply": {
@@ -38,12 +39,12 @@ _CLASSES = {"ply": Orthotropic, "isotropic": Isotropic, "core": Core}
 KNOCKDOWN_KEYS = ("environment", "damage", "other")
 
 
-def _knockdown(value: Any, where: str) -> float:
-    """A number, or a table of factors (environment, damage, other) multiplied together."""
+def _knockdown(value: Any, where: str) -> tuple[float, tuple[tuple[str, float], ...]]:
+    """(product, factors): a number, or a table of factors (environment, damage, other) multiplied together."""
     if isinstance(value, bool):
         raise DefinitionError(f"{where} must be a number or a table of factors")
     if isinstance(value, (int, float)):
-        return float(value)
+        return float(value), ()
     table = expect_table(value, where)
     product = 1.0
     for key, factor in table.items():
@@ -53,7 +54,7 @@ def _knockdown(value: Any, where: str) -> float:
         if isinstance(factor, bool) or not isinstance(factor, (int, float)):
             raise DefinitionError(f"{where}.{key} must be a number in (0, 1]")
         product *= float(factor)
-    return product
+    return product, tuple((key, float(factor)) for key, factor in table.items())
 
 
 def parse_material(name: str, table: Mapping[str, Any], units: UnitSystem) -> Material:
@@ -65,9 +66,8 @@ def parse_material(name: str, table: Mapping[str, Any], units: UnitSystem) -> Ma
                               f"use one of {', '.join(SPECS)}")
     values = take(table, SPECS[kind], where, units, REQUIRED[kind])
     values.pop("kind", None)
-    values.pop("description", None)
     if "knockdown" in values:
-        values["knockdown"] = _knockdown(values["knockdown"], f"{where}.knockdown")
+        values["knockdown"], values["knockdown_factors"] = _knockdown(values["knockdown"], f"{where}.knockdown")
     for old, new in _RENAME.get(kind, {}).items():
         if old in values:
             values[new] = values.pop(old)

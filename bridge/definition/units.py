@@ -50,18 +50,31 @@ class UnitSystem:
 
     def label(self, kind: str) -> str:
         """Short human label of a unit, for tables and colour-bar titles."""
-        f, l = self.force_symbol, self.length_symbol
+        return self.labels().get(kind, kind)
+
+    def labels(self) -> dict[str, str]:
+        """Every quantity kind → its short label in this system (``stress`` → ``MPa``)."""
+        f, l, t = self.force_symbol, self.length_symbol, self.temperature_symbol
+        stress = {"N-mm": "MPa", "N-m": "Pa", "lbf-in": "psi"}.get(self.name, f"{f}/{l}²")
         return {
-            "stress": "MPa" if self.name == "N-mm" else ("psi" if self.name == "lbf-in" else f"{f}/{l}²"),
+            "stress": stress,
+            "pressure": stress,
             "length": l,
+            "force": f,
             "force_per_length": f"{f}/{l}",
             "moment_per_length": f"{f}·{l}/{l}",
             "stiffness_A": f"{f}/{l}",
             "stiffness_B": f,
             "stiffness_D": f"{f}·{l}",
+            "stiffness_H": f"{f}/{l}",
+            "density": {"N-mm": "t/mm³", "N-m": "kg/m³"}.get(self.name, f"{f}·s²/{l}⁴"),
             "areal_mass": {"N-mm": "t/mm²", "N-m": "kg/m²"}.get(self.name, f"{f}·s²/{l}³"),
-            "temperature": self.temperature_symbol,
-        }.get(kind, kind)
+            "expansion": f"1/{t}",
+            "temperature": t,
+            "angle": "°",
+            "dimensionless": "-",
+            "strain": "-",
+        }
 
 
 SYSTEMS = {

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
@@ -9,33 +10,26 @@ import numpy as np
 from shells.errors import InputError
 
 from bridge.atomic import atomic_path
-from bridge.pictures.render import FieldError, STRESS_UNITS, _case_index
+from bridge.pictures.render import FieldError, _case_index
 from bridge.results.store import StoreReader
 
-# --------------------------------------------------------------------------- plots
 
-def _section_meta(st: StoreReader, cell: int) -> dict:
-    return st.meta("sections")[int(st.h5["model/section"][cell])]
+def _section_of_cell(st: StoreReader, cell: int):
+    """The :class:`postproc.run_meta.SectionInfo` of a cell."""
+    return st.run.sections[int(st.h5["model/section"][cell])]
 
 
-def rebuild_section(st: StoreReader, sec: dict):
-    """The :class:`shells.section.Section` of a store's section entry (materials rebuilt from the metadata)."""
-    from shells.laminate import Laminate, Ply
-    from shells.section import build_section
-
-    from bridge.results.store import materials_from_meta
-
-    mats = materials_from_meta(st.meta("materials"))
-    lam = Laminate(sec["laminate"], tuple(Ply(mats[p["material"]], float(p["angle"]), float(p["thickness"]))
-                                          for p in sec["plies"]), float(sec.get("offset", 0.0)))
-    a = st.meta("analysis") or {}
-    return build_section(lam, a.get("transverse_shear", "equilibrium"), a.get("shear_factor", 5.0 / 6.0),
-                         a.get("wrinkling_coefficient", 0.5))
+def _ply_params(st: StoreReader, section: int) -> np.ndarray:
+    """The kernel property vectors (nply, NPARAM) the run used for a section's plies (from /sections)."""
+    g = st.h5["sections"]
+    first, n = int(g["first"][section]), int(g["nply"][section])
+    return g["params"][first:first + n]
 
 
 def _cell_case(st: StoreReader, cell: int | None, case: str | None) -> tuple[int, int]:
     n = st.h5["cells/min_margin"].shape[0]
-    cell = int((st.meta("summary") or {}).get("worst", {}).get("cell", 0)) if cell is None else int(cell)
+    worst = st.run.summary.worst
+    cell = (worst.cell if worst else 0) if cell is None else int(cell)
     if not 0 <= cell < n:
         raise FieldError(f"--cell {cell}: the store has cells 0 … {n - 1}", st.path)
     if case is None:
@@ -55,9 +49,9 @@ def profile_of(st: StoreReader, cell: int | None = None, case: str | None = None
     from shells.criteria import by_name, failure_index
 
     cell, k = _cell_case(st, cell, case)
-    sec = _section_meta(st, cell)
-    nply = len(sec["plies"])
-    labels = [f"ply {i + 1}: {p['angle']:g}° {p['material']}" for i, p in enumerate(sec["plies"])]
+    sec = _section_of_cell(st, cell)
+    nply = len(sec.plies)
+    labels = [f"ply {i + 1}: {p.angle:g}° {p.material}" for i, p in enumerate(sec.plies)]
     hot = list(st.array("hotspots/cell")) if st.has("hotspots/cell") else []
     if cell in hot:
         h = hot.index(cell)
@@ -65,50 +59,61 @@ def profile_of(st: StoreReader, cell: int | None = None, case: str | None = None
         names = [c.decode() if isinstance(c, bytes) else str(c) for c in st.array("hotspots/criteria")]
         fi = {n: failure_index(st.h5["hotspots/ratio"][j, k, h, :nply]) for j, n in enumerate(names)}
         z = st.h5["hotspots/z"][h, :nply]
-        return Profile(z, total[..., :5], fi, np.asarray(sec["z"]), labels), cell, st.case_names[k]
+        return Profile(z, total[..., :5], fi, np.asarray(sec.interfaces), labels), cell, st.case_names[k]
     if not st.has("plies"):
         raise FieldError(f"cell {cell} is not a hot spot and the store has no /plies; run plybridge recover "
                          "with --store plies (or plot a hot-spot cell)", st.path)
     state = np.zeros((nply, 3, 6))
     state[..., :3] = st.h5["plies/stress"][k, cell, :nply]
     state[..., 3:5] = st.h5["plies/transverse_shear"][k, cell, :nply]
-    params = rebuild_section(st, sec).ply_params
+    params = _ply_params(st, sec.id)
     fi = {}
-    for name in st.meta("criteria_used"):
+    for name in st.run.criteria_used:
         ratio = by_name(name).ratio
         fi[name] = failure_index(np.array([[ratio(state[i, j], np.zeros(6), params[i])[0] for j in range(3)]
                                            for i in range(nply)]))
-    zi = np.asarray(sec["z"])
+    zi = np.asarray(sec.interfaces)
     z = np.column_stack([zi[:-1], 0.5 * (zi[:-1] + zi[1:]), zi[1:]])
     return Profile(z, state[..., :5], fi, zi, labels), cell, st.case_names[k]
 
 
 def _stress_unit(st: StoreReader) -> str:
-    return STRESS_UNITS.get(str(st.meta("units")), "force/length²")
+    return st.run.label("stress")
 
 
 def profile_figure_of(st: StoreReader, cell: int | None = None, case: str | None = None):
     from postproc.plots import profile_figure
 
     prof, cell, name = profile_of(st, cell, case)
-    zone = st.meta("zones")[int(st.h5["model/zone"][cell])]
+    zone = st.run.zones[int(st.h5["model/zone"][cell])].name
     return profile_figure(prof, title=f"Through-thickness: cell {cell} ({zone}, laminate "
-                          f"{_section_meta(st, cell)['laminate']}), case {name}", stress_unit=_stress_unit(st))
+                          f"{_section_of_cell(st, cell).laminate}), case {name}", stress_unit=_stress_unit(st))
+
+
+@dataclass(frozen=True)
+class StoredStiffness:
+    """A section's stiffness as stored: what :func:`shells.engineering.polar_moduli` reads."""
+
+    A: np.ndarray
+    D: np.ndarray
+    thickness: float
 
 
 def _polar(st: StoreReader, laminate: str | None):
     from postproc.plots import polar_figure
     from shells.engineering import polar_moduli
 
-    sections = st.meta("sections")
-    names = [s["laminate"] for s in sections]
+    sections = st.run.sections
+    names = [s.laminate for s in sections]
     laminate = names[0] if laminate is None else laminate
     if laminate not in names:
         raise FieldError(f"--laminate {laminate!r} is not in the store; use one of: {', '.join(dict.fromkeys(names))}",
                          st.path)
-    sec = rebuild_section(st, sections[names.index(laminate)])
+    sec = sections[names.index(laminate)]
+    # polar_moduli reads A, D and the thickness only: the stored stiffness, nothing rebuilt.
+    stiffness = StoredStiffness(st.section_matrix("A", sec.id), st.section_matrix("D", sec.id), sec.thickness)
     angles = np.linspace(0.0, 360.0, 361)
-    e = polar_moduli(sec.props, angles)
+    e = polar_moduli(stiffness, angles)
     return polar_figure(angles, e["membrane"], e["flexural"], title=f"Laminate {laminate}", unit=_stress_unit(st))
 
 
@@ -116,19 +121,17 @@ def _envelope(st: StoreReader, material: str | None, criteria: str | None, cell:
     from postproc.plots import ENVELOPE_PLANES, envelope_figure, trace_envelope
     from shells.criteria import by_name
 
-    from bridge.results.store import materials_from_meta
-
-    mats = materials_from_meta(st.meta("materials"))
-    material = next(iter(mats)) if material is None else material
+    mats = [m.name for m in st.run.materials]
+    material = mats[0] if material is None else material
     if material not in mats:
         raise FieldError(f"--material {material!r} is not in the store; use one of: {', '.join(mats)}", st.path)
-    names = list(st.meta("criteria_used")) if not criteria else [c.strip() for c in criteria.split(",")]
-    p = mats[material].params()
+    names = list(st.run.criteria_used) if not criteria else [c.strip() for c in criteria.split(",")]
+    p = st.material_params(material)
     curves = {n: [trace_envelope(by_name(n).ratio, p, plane) for plane, _, _ in ENVELOPE_PLANES] for n in names}
     states, label = None, ""
     if cell is not None:
         prof, cell, case = profile_of(st, cell, None)
-        plies = [i for i, q in enumerate(_section_meta(st, cell)["plies"]) if q["material"] == material]
+        plies = [i for i, q in enumerate(_section_of_cell(st, cell).plies) if q.material == material]
         states = np.concatenate([np.pad(prof.stress[i], ((0, 0), (0, 1))) for i in plies]) if plies else None
         label = f"cell {cell}, case {case}: plies of {material}"
     return envelope_figure(curves, states, title=f"Failure envelopes of {material}", unit=_stress_unit(st),

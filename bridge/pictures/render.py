@@ -26,8 +26,6 @@ COMPONENTS = {"stress:s1": ("stress", 0, "sigma1"), "stress:s2": ("stress", 1, "
               "stress:s13": ("transverse_shear", 0, "tau13"), "stress:s23": ("transverse_shear", 1, "tau23"),
               "strain:e1": ("strain", 0, "eps1"), "strain:e2": ("strain", 1, "eps2"), "strain:e12": ("strain", 2, "gamma12")}
 FIELDS = SCALAR_FIELDS + tuple(COMPONENTS)
-#: Stress unit of each force-length system.
-STRESS_UNITS = {"N-mm": "MPa", "N-m": "Pa", "lbf-in": "psi"}
 
 
 @dataclass(frozen=True)
@@ -78,10 +76,10 @@ def _case_index(st: StoreReader, case: str) -> int | None:
 
 def mode_labels(st: StoreReader) -> tuple[list[str], dict[tuple[int, int], int]]:
     """Labels ``"criterion: mode"`` of every mode of the criteria used, and (criterion code, mode) → label index."""
-    table = st.meta("criteria")
+    table = {c.name: c.modes for c in st.run.criteria}
     codes = {name: i for i, name in enumerate(table)}
     labels, index = [], {}
-    for name in st.meta("criteria_used"):
+    for name in st.run.criteria_used:
         for m, mode in enumerate(table[name]):
             index[(codes[name], m)] = len(labels)
             labels.append(f"{name}: {mode}")
@@ -93,7 +91,7 @@ def _categories(st: StoreReader, field: str, codes: np.ndarray, modes: np.ndarra
         n = st.h5["envelope/margin"].shape[1]
         return np.where(codes > 0, codes - 1, -1), [f"ply {k}" for k in range(1, n + 1)]
     if field == "criterion":
-        return codes, list(st.meta("criteria"))
+        return codes, [c.name for c in st.run.criteria]
     if field == "case":
         return codes, list(st.case_names)
     labels, index = mode_labels(st)
@@ -141,7 +139,7 @@ def select_field(st: StoreReader, field: str = "margin", ply: str | int = "envel
     flagged = st.array("cells/flagged")
     if field in COMPONENTS:
         values = _component(st, field, k, c)
-        unit = "-" if field.startswith("strain") else STRESS_UNITS.get(str(st.meta("units")), "force/length²")
+        unit = "-" if field.startswith("strain") else st.run.label("stress")
         symbol = COMPONENTS[field][2]
         worst = int(np.nanargmax(np.abs(np.where(np.isnan(values), 0.0, values)))) if np.isfinite(values).any() \
             else None
@@ -236,7 +234,7 @@ def draw_store_field(st: StoreReader, field: str = "margin", ply: str | int = "e
     f = select_field(st, field, ply, case)
     points, blocks = st.mesh()
     views = [worst_view(st, points, blocks, f.mark) if v == WORST_VIEW else v for v in views]
-    title = f"{st.meta('title') or Path(st.path).stem}\n{f.title}"
+    title = f"{st.run.title or Path(st.path).stem}\n{f.title}"
     pic = draw_field(points, blocks, f.values, kind=f.kind, labels=f.labels, title=title, bar_title=f.bar_title,
                      views=tuple(views), size=tuple(size), mark=f.mark, mark_label=f.mark_label, cap=f.cap)
     return f, pic

@@ -33,9 +33,9 @@ def _figures(st: StoreReader) -> list[tuple[str, bytes]]:
     fig = profile_figure_of(st)
     buf = io.BytesIO()
     save_figure(fig, buf, "png")
-    worst = (st.meta("summary") or {}).get("worst") or {}
-    out.append((f"Through-thickness stresses and failure indices of the worst cell ({worst.get('cell', '')}), "
-                f"case {worst.get('case', '')}", buf.getvalue()))
+    worst = st.run.summary.worst
+    out.append((f"Through-thickness stresses and failure indices of the worst cell ({worst.cell if worst else ''}), "
+                f"case {worst.case if worst else ''}", buf.getvalue()))
     return out
 
 
@@ -43,15 +43,7 @@ def report_inputs(st: StoreReader, compare_fragment: str | None = None):
     """The :class:`postproc.report.ReportInputs` of an open store."""
     from postproc.report import ReportInputs
 
-    zones = list(zip(st.meta("zones") or [], st.meta("zone_laminates") or []))
-    provenance = {"tool": st.meta("tool"), "tool_version": st.meta("tool_version"), "created": st.meta("created"),
-                  "store": st.path, "store layout": st.meta("store"), "conventions": st.meta("conventions"),
-                  "criteria evaluated": st.meta("criteria_used"), "settings": st.meta("analysis")}
-    return ReportInputs(title=str(st.meta("title") or Path(st.path).stem), units=str(st.meta("units")),
-                        summary=st.meta("summary") or {}, materials=st.meta("materials") or {},
-                        sections=st.meta("sections") or [], cases=st.meta("cases_detail") or [],
-                        analysis=st.meta("analysis") or {}, inputs=st.meta("inputs") or {}, zones=zones,
-                        provenance=provenance, figures=_figures(st), compare_fragment=compare_fragment)
+    return ReportInputs(meta=st.run, store=st.path, figures=_figures(st), compare_fragment=compare_fragment)
 
 
 def write_report(store_path: str | Path, output: str | Path, compare_fragment: str | None = None) -> None:

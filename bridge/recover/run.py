@@ -121,12 +121,14 @@ def input_digests(paths: dict[str, str]) -> dict[str, dict]:
 
 
 def provenance(paths: dict[str, str], digests: dict[str, dict] | None = None) -> dict:
+    """Tool, version, time (UTC) and the inputs' digests (role → path, resolved path, sha256, …)."""
     from shells import __version__
 
+    digests = digests if digests is not None else input_digests(paths)
     return {
         "tool": "plybridge", "tool_version": __version__,
         "created": datetime.datetime.now(datetime.timezone.utc).isoformat(timespec="seconds"),
-        "inputs": digests if digests is not None else input_digests(paths),
+        "inputs": {role: {**e, "resolved": str(Path(e["path"]).resolve())} for role, e in digests.items()},
     }
 
 
@@ -142,10 +144,6 @@ def prepare(definition: str, mesh_path: str, resultants: Sequence[str]):
     source = ResultantSource.of_model(resultants, model)
     plan = plan_cases(defn, model, source.names)
     return defn, model, source, plan, criteria_of(defn, model)
-
-
-def criterion_table() -> dict[str, list[str]]:
-    return {c.name: list(c.modes) for c in CRITERIA}
 
 
 def block_context(defn: Definition, tables, source: ResultantSource, plan: CasePlan,
@@ -238,38 +236,31 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
                 progress(stop, n)
         summary = acc.result(plan.names, zone_names=[z.name for z in defn.zones],
                              laminate_of_zone=[z.laminate for z in defn.zones])
-        _finish(store, summary, crit, tables, model, source, plan, defn, paths, digests, store_plies)
+        _finish(store, summary, crit, tables, model, source, plan, defn, provenance(paths, digests), store_plies)
         partial.complete()
     return summary
 
 
-def _finish(store, summary, crit, tables, model, source, plan, defn, paths, digests, store_plies) -> None:
-    """The datasets and attributes written once, after every block."""
-    from bridge.model.fields import section_table
+def _finish(store, summary, crit, tables, model, source, plan, defn, prov, store_plies) -> None:
+    """The datasets and the run metadata written once, after every block."""
+    from bridge.results.meta import run_meta
+    from bridge.results.store import material_tables, section_tables
 
-    store.write_static("hotspots", _hot_states(summary, crit, tables, model, source, plan))
+    hot = sorted({h["cell"] for h in summary["hot_spots"]} | {z["cell"] for z in summary["zones"].values()
+                                                                if z["cell"] >= 0})
+    store.write_static("hotspots", states_of_cells(np.array(hot, dtype=np.int64), crit, tables, model, source, plan))
     store.write_static("mesh", mesh_group(model.mesh.points, model.mesh.blocks))
     store.write_static("model", {"zone": model.zone.astype(np.int32), "section": model.section.astype(np.int32),
                                  "material_angle": model.phi, "normal": model.normal, "frame_x": model.frame_x})
-    store.write_meta({
-        **provenance(paths, digests),
-        "title": defn.title, "units": defn.units.name, "conventions": "docs/conventions.md",
-        "criteria": criterion_table(), "criteria_used": list(defn.analysis.criteria),
-        "zones": [z.name for z in defn.zones], "zone_laminates": [z.laminate for z in defn.zones],
-        "sections": section_table(model)["sections"],
-        "cases_detail": [{"name": c.name, "kind": c.kind, "delta_T": c.delta_T, "pressure": c.pressure,
-                          "factor_of_safety": float(f)} for c, f in zip(plan.cases, plan.fos)],
-        "materials": _materials_meta(defn), "analysis": _analysis_meta(defn),
-        "store": "plies" if store_plies else "envelope", "summary": summary,
-        "caution": CAUTION,
-    })
+    store.write_static("sections", section_tables(tables, model.sections))
+    store.write_static("materials", material_tables(defn.materials))
+    store.write_meta(run_meta(defn, model, plan, source.names, summary, store_plies, prov))
 
 
-def _hot_states(summary: dict, crit, tables, model: Model, source: ResultantSource, plan: CasePlan) -> dict:
-    """Through-thickness states of the hot-spot cells (docs/results.md, /hotspots)."""
+def states_of_cells(ids: np.ndarray, crit, tables, model: Model, source: ResultantSource, plan: CasePlan) -> dict:
+    """Through-thickness states of a few cells, every case (docs/results.md, /hotspots)."""
     from postproc.states import cell_states
 
-    ids = np.array(sorted({h["cell"] for h in summary["hot_spots"]}), dtype=np.int64)
     if ids.size == 0:
         return {"cell": ids}
     R = combine_steps(plan.weights, source.read_cells(ids))
@@ -280,19 +271,3 @@ def _hot_states(summary: dict, crit, tables, model: Model, source: ResultantSour
             "criteria": np.array([c.name for c in crit], dtype=object).astype("S")}
 
 
-CAUTION = ("Results support, and never replace, review by a qualified engineer under the applicable "
-           "regulations and local codes.")
-
-
-def _materials_meta(defn: Definition) -> dict:
-    from dataclasses import asdict
-
-    return {name: {"kind": m.kind, **{k: v for k, v in asdict(m).items() if v is not None and k != "name"}}
-            for name, m in defn.materials.items()}
-
-
-def _analysis_meta(defn: Definition) -> dict:
-    a = defn.analysis
-    return {"criteria": list(a.criteria), "factor_of_safety": dict(a.factor_of_safety),
-            "transverse_shear": a.transverse_shear, "shear_factor": a.shear_factor,
-            "wrinkling_coefficient": a.wrinkling_coefficient, "hot_spots": a.hot_spots}

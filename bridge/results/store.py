@@ -7,20 +7,21 @@ are chunked along cells (and cases) and compressed (shuffle + gzip).
 
 from __future__ import annotations
 
-import contextlib
 import json
 from dataclasses import dataclass
+from functools import cached_property
 from pathlib import Path
-from typing import Any, Iterator, Mapping, Sequence
+from typing import Mapping, Sequence
 
 import numpy as np
 
+from postproc.run_meta import RunMeta, meta_from_json, meta_to_json
 from shells.errors import StoreError
 
-from bridge.atomic import atomic_path
-
 FORMAT = "plybridge-results"
-LAYOUT_VERSION = 1
+#: Version of the store layout. 2: typed run metadata in /meta/run, section and material tables in /sections and
+#: /materials (layout 1 kept untyped JSON attributes). Readers refuse any other version.
+LAYOUT_VERSION = 2
 CHUNK_CELLS = 16384
 
 
@@ -148,32 +149,37 @@ class StoreWriter:
         else:
             self.h5.create_dataset(name, data=np.asarray(data), compression="gzip", shuffle=True)
 
-    def write_meta(self, meta: Mapping[str, Any]) -> None:
-        """Root attributes: scalars and strings as they are, anything else as JSON text."""
+    def write_meta(self, meta: RunMeta) -> None:
+        """The run's metadata (``/meta/run``, JSON text) and a few root attributes for generic HDF5 tools."""
         self.h5.attrs["format"] = FORMAT
         self.h5.attrs["layout_version"] = LAYOUT_VERSION
-        for key, value in meta.items():
-            if isinstance(value, (str, int, float, bool, np.integer, np.floating)):
-                self.h5.attrs[key] = value
-            else:
-                self.h5.attrs[key] = json.dumps(value, default=_json_default)
+        for key, value in (("title", meta.title), ("units", meta.units), ("created", meta.provenance.created),
+                           ("caution", meta.caution)):
+            self.h5.attrs[key] = value
+        group = self.h5.require_group("meta")
+        group.create_dataset("run", data=meta_to_json(meta), dtype=_h5().string_dtype())
+        group.create_dataset("criteria", data=_strings([c.name for c in meta.criteria]))
 
 
-def _json_default(obj):
-    if isinstance(obj, np.ndarray):
-        return obj.tolist()
-    if isinstance(obj, (np.integer, np.floating, np.bool_)):
-        return obj.item()
-    raise TypeError(f"not JSON-serialisable: {type(obj).__name__}")
+def section_tables(tables, sections) -> dict[str, np.ndarray]:
+    """The ``/sections`` datasets: the kernels' ply table and z-table, and each section's stiffness.
+
+    Parameters
+    ----------
+    tables : shells.recovery_tables.SectionTables
+    sections : sequence of shells.section.Section
+        In section-id order.
+    """
+    out = {name: np.asarray(value) for name, value in tables.arrays._asdict().items()}
+    for name in ("A", "B", "D"):
+        out[name] = np.array([getattr(s.props, name) for s in sections])
+    out["H"] = np.array([s.H for s in sections])
+    return out
 
 
-@contextlib.contextmanager
-def create_store(path: str | Path, layout: StoreLayout) -> Iterator[StoreWriter]:
-    """Open a new store at a temporary path; renamed onto ``path`` only when the block exits cleanly."""
-    h5py = _h5()
-    with atomic_path(path, suffix=".h5") as tmp:
-        with h5py.File(tmp, "w") as h5:
-            yield StoreWriter(h5, layout)
+def material_tables(materials: Mapping) -> dict[str, np.ndarray]:
+    """The ``/materials`` datasets: names and kernel property vectors (shells.params order) of every material."""
+    return {"names": _strings(list(materials)), "params": np.array([m.params() for m in materials.values()])}
 
 
 def mesh_group(points: np.ndarray, blocks: Sequence[tuple[str, np.ndarray]]) -> dict[str, np.ndarray]:
@@ -185,7 +191,12 @@ def mesh_group(points: np.ndarray, blocks: Sequence[tuple[str, np.ndarray]]) -> 
 
 
 class StoreReader:
-    """Read access to a results store (opened read-only; use as a context manager)."""
+    """Read access to a results store (opened read-only; use as a context manager).
+
+    This is the one place where a store is opened for reading: ``render``, ``plot``, ``report``, ``recover
+    --view`` and the Python API all come through here, so checks of a finished store belong in
+    :meth:`_check`.
+    """
 
     def __init__(self, path: str | Path):
         h5py = _h5()
@@ -197,9 +208,24 @@ class StoreReader:
         except OSError:
             raise StoreError("not an HDF5 file (or a damaged one); give a store written by plybridge recover",
                              self.path) from None
-        if self.h5.attrs.get("format") != FORMAT:
+        try:
+            self._check()
+        except BaseException:
             self.h5.close()
+            raise
+
+    def _check(self) -> None:
+        """Refuse what is not a complete store of this layout (one line naming the fix)."""
+        if self.h5.attrs.get("format") != FORMAT:
             raise StoreError(f"not a plybridge results store (attribute format != {FORMAT!r})", self.path)
+        version = self.h5.attrs.get("layout_version")
+        if version != LAYOUT_VERSION:
+            older = isinstance(version, (int, np.integer)) and version < LAYOUT_VERSION
+            raise StoreError(f"results store layout {version} {'is older than' if older else 'differs from'} the "
+                             f"layout this plybridge reads ({LAYOUT_VERSION}); run plybridge recover again to "
+                             "rewrite it", self.path)
+        if "meta/run" not in self.h5:
+            raise StoreError("the store has no run metadata (/meta/run); run plybridge recover again", self.path)
 
     def __enter__(self) -> "StoreReader":
         return self
@@ -207,15 +233,38 @@ class StoreReader:
     def __exit__(self, *exc) -> None:
         self.h5.close()
 
-    def meta(self, key: str, default: Any = None) -> Any:
-        value = self.h5.attrs.get(key, default)
-        if isinstance(value, str) and value[:1] in "[{":
-            return json.loads(value)
-        return value
+    @cached_property
+    def run(self) -> RunMeta:
+        """The run's metadata (read once)."""
+        raw = self.h5["meta/run"][()]
+        try:
+            return meta_from_json(raw.decode("utf-8") if isinstance(raw, bytes) else str(raw))
+        except ValueError as err:
+            raise StoreError(f"the run metadata (/meta/run) is damaged ({err}); run plybridge recover again",
+                             self.path) from None
 
     @property
     def case_names(self) -> tuple[str, ...]:
         return tuple(s.decode() if isinstance(s, bytes) else str(s) for s in self.h5["cases"][()])
+
+    def tables(self):
+        """The :class:`shells.recovery_tables.SectionTables` the run recovered with (from ``/sections``)."""
+        from shells.recovery_args import SectionArrays
+        from shells.recovery_tables import SectionTables
+
+        g = self.h5["sections"]
+        names = tuple(s.name for s in self.run.sections)
+        return SectionTables(SectionArrays(*(np.ascontiguousarray(g[name][()]) for name in SectionArrays._fields)),
+                             names=names)
+
+    def section_matrix(self, name: str, section: int) -> np.ndarray:
+        """A, B, D (3, 3) or H (2, 2) of a section, laminate axes."""
+        return self.h5[f"sections/{name}"][section]
+
+    def material_params(self, name: str) -> np.ndarray:
+        """The kernel property vector (shells.params order) of a material."""
+        names = [s.decode() if isinstance(s, bytes) else str(s) for s in self.h5["materials/names"][()]]
+        return self.h5["materials/params"][names.index(name)]
 
     def array(self, name: str) -> np.ndarray:
         if name not in self.h5:
@@ -231,14 +280,3 @@ class StoreReader:
         blocks = [(key.split("_", 1)[1], group[key][()]) for key in sorted(group) if key.startswith("block")]
         return group["points"][()], blocks
 
-
-def materials_from_meta(meta: Mapping[str, Mapping[str, Any]]):
-    """Rebuild material dataclasses from the store's ``materials`` attribute (name → kind and fields)."""
-    from shells.materials import Core, Isotropic, Orthotropic
-
-    classes = {"ply": Orthotropic, "isotropic": Isotropic, "core": Core}
-    out = {}
-    for name, entry in meta.items():
-        fields = {k: v for k, v in entry.items() if k != "kind"}
-        out[name] = classes[entry["kind"]](name=name, **fields)
-    return out

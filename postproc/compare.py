@@ -11,6 +11,10 @@ of our value of that component over every cell, case and point of that ply in
 its zone, floored at 1 % of the RMS of its component group (in-plane or
 transverse shear) in that ply and at 1e-9 of the group's RMS over the model, so
 that near-zero values never make a difference look large.
+
+Both passes stream: :class:`ScaleAccumulator` gathers the sums of squares block
+by block, :class:`MetricAccumulator` the differences against the finished scales
+(the per-cell discrepancy, per-ply rows and the coverage of plies and points).
 """
 
 from __future__ import annotations
@@ -32,9 +36,14 @@ GROUPS = ((0, 1, 2), (3, 4))
 PLY_FLOOR, MODEL_FLOOR = 0.01, 1e-9
 
 
+#: Component names in material axes, by quantity (the names ``[solver_plies] components`` uses).
+LABELS = {"stress": ("sigma1", "sigma2", "tau12", "tau13", "tau23"),
+          "strain": ("eps1", "eps2", "gamma12", "gamma13", "gamma23")}
+
+
 def component_label(quantity: str, c: int) -> str:
-    """``s12`` / ``e12`` style name of component ``c`` of a quantity."""
-    return ("s" if quantity == "stress" else "e") + COMPONENTS[c]
+    """Name of component ``c`` (0 … 4) of a quantity in material axes: ``sigma1`` … ``tau23``, ``eps1`` …"""
+    return LABELS[quantity][c]
 
 
 # ----------------------------------------------------------------------------- frames
@@ -103,28 +112,52 @@ def reference_values(tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.nd
 
 # ----------------------------------------------------------------------------- metrics
 
-def _rms(a: np.ndarray, axis) -> np.ndarray:
-    with np.errstate(invalid="ignore"):
-        sq = np.where(np.isfinite(a), a * a, 0.0)
-        n = np.isfinite(a).sum(axis=axis)
-        return np.sqrt(sq.sum(axis=axis) / np.maximum(n, 1))
+def _sq(a: np.ndarray, axis) -> tuple[np.ndarray, np.ndarray]:
+    ok = np.isfinite(a)
+    return np.where(ok, a * a, 0.0).sum(axis=axis), ok.sum(axis=axis)
+
+
+class ScaleAccumulator:
+    """Sums of squares of our values per zone, ply and component, block by block (module notes)."""
+
+    def __init__(self, n_zones: int, max_plies: int):
+        self.comp = np.zeros((2, n_zones, max_plies, 5))       # sum, count
+        self.group = np.zeros((2, n_zones, max_plies, len(GROUPS)))
+        self.model = np.zeros((2, len(GROUPS)))
+
+    def add(self, ours: np.ndarray, zone: np.ndarray) -> None:
+        """``ours`` (ncase, ncell, maxply, 3, 5) of a block, ``zone`` (ncell,)."""
+        for z in np.unique(zone):
+            part = ours[:, zone == z]
+            self.comp[:, z] += _sq(part, (0, 1, 3))
+            for g, idx in enumerate(GROUPS):
+                self.group[:, z, :, g] += _sq(part[..., list(idx)], (0, 1, 3, 4))
+        for g, idx in enumerate(GROUPS):
+            self.model[:, g] += _sq(ours[..., list(idx)], None)
+
+    def merge(self, other: "ScaleAccumulator") -> None:
+        """Add the sums of another block's accumulator."""
+        self.comp += other.comp
+        self.group += other.group
+        self.model += other.model
+
+    def result(self) -> np.ndarray:
+        """Scales (n_zones, maxply, 5)."""
+        def rms(acc):
+            return np.sqrt(acc[0] / np.maximum(acc[1], 1))
+        comp, group, model = rms(self.comp), rms(self.group), rms(self.model)
+        out = np.zeros(comp.shape)
+        for g, idx in enumerate(GROUPS):
+            out[..., list(idx)] = np.maximum(np.maximum(comp[..., list(idx)], PLY_FLOOR * group[..., g:g + 1]),
+                                             MODEL_FLOOR * model[g])
+        return np.where(out > 0, out, np.finfo(float).tiny)
 
 
 def value_scales(ours: np.ndarray, zone: np.ndarray, n_zones: int) -> np.ndarray:
     """Scale of every (zone, ply, component): (n_zones, maxply, 5), see the module notes."""
-    mp = ours.shape[2]
-    out = np.zeros((n_zones, mp, 5))
-    model = np.zeros(5)
-    for g in GROUPS:
-        model[list(g)] = _rms(ours[..., list(g)], axis=None)
-    for z in range(n_zones):
-        part = ours[:, zone == z]
-        comp = _rms(part, axis=(0, 1, 3))                           # (mp, 5)
-        for g in GROUPS:
-            grp = _rms(part[..., list(g)], axis=(0, 1, 3, 4))       # (mp,)
-            out[z][:, list(g)] = np.maximum(np.maximum(comp[:, list(g)], PLY_FLOOR * grp[:, None]),
-                                            MODEL_FLOOR * model[list(g)])
-    return np.where(out > 0, out, np.finfo(float).tiny)
+    acc = ScaleAccumulator(n_zones, ours.shape[2])
+    acc.add(ours, np.asarray(zone))
+    return acc.result()
 
 
 def relative_difference(ours: np.ndarray, solver: np.ndarray, scale: np.ndarray) -> np.ndarray:
@@ -141,7 +174,7 @@ def max_discrepancy(ours: np.ndarray, solver: np.ndarray, scale: np.ndarray) -> 
 
 @dataclass(frozen=True)
 class Comparison:
-    """Metrics of one comparison (see :func:`compare_values`).
+    """Metrics of one comparison (see :class:`MetricAccumulator`).
 
     Attributes
     ----------
@@ -159,6 +192,8 @@ class Comparison:
     rows : tuple of dict
         Per zone, ply and component with values: ``zone``, ``ply`` (1-based), ``component``, ``count``,
         ``scale``, ``max_abs``, ``max_rel``, ``within`` (fraction of its values within tolerance).
+    covered : bool (nzone, maxply, 3)
+        Ply points with at least one value compared.
     """
 
     tolerance: float
@@ -168,6 +203,7 @@ class Comparison:
     cell_worst: np.ndarray
     scale: np.ndarray
     rows: tuple
+    covered: np.ndarray | None = None
 
     @property
     def fraction_within(self) -> float:
@@ -186,9 +222,89 @@ class Comparison:
         return [int(c) for c in order if np.isfinite(self.cell_discrepancy[c])]
 
 
+class MetricAccumulator:
+    """Differences of every ply, point, component, cell and case, block by block, against finished scales.
+
+    Parameters
+    ----------
+    scale : (n_zones, maxply, 5)
+        From :class:`ScaleAccumulator`.
+    n_cells : int
+    tolerance : float
+        Largest relative difference accepted (relative to the value scale).
+    quantity : {"stress", "strain"}
+        Only names the components in the rows.
+    zone_names : sequence of str
+    """
+
+    def __init__(self, scale: np.ndarray, n_cells: int, tolerance: float, quantity: str, zone_names):
+        self.scale, self.tolerance, self.quantity = scale, float(tolerance), quantity
+        self.names = list(zone_names)
+        nz, mp = scale.shape[:2]
+        self.disc = np.full(n_cells, np.nan)
+        self.worst = np.full((n_cells, 4), -1, dtype=np.int64)
+        self.count = np.zeros((nz, mp, 5), dtype=np.int64)
+        self.within = np.zeros((nz, mp, 5), dtype=np.int64)
+        self.max_abs = np.zeros((nz, mp, 5))
+        self.max_rel = np.zeros((nz, mp, 5))
+        self.covered = np.zeros((nz, mp, 3), dtype=bool)
+
+    def add(self, start: int, ours: np.ndarray, solver: np.ndarray, zone: np.ndarray,
+            case_index: np.ndarray | None = None) -> None:
+        """A block of cells ``start …``: ``ours``, ``solver`` (ncase, ncell, maxply, 3, 5), ``zone`` (ncell,).
+
+        ``case_index`` maps the block's case axis to the run's case numbers (default: the same).
+        """
+        rel = relative_difference(ours, solver, self.scale[zone])
+        ok = np.isfinite(rel)
+        ncase, ncell = rel.shape[:2]
+        flat = np.where(ok, rel, -1.0).transpose(1, 0, 2, 3, 4).reshape(ncell, -1)
+        arg = flat.argmax(axis=1)
+        has = ok.any(axis=(0, 2, 3, 4))
+        rows = slice(start, start + ncell)
+        self.disc[rows] = np.where(has, flat[np.arange(ncell), arg], np.nan)
+        worst = np.stack(np.unravel_index(arg, (ncase,) + rel.shape[2:]), axis=1).astype(np.int64)
+        if case_index is not None:
+            worst[:, 0] = np.asarray(case_index)[worst[:, 0]]
+        worst[~has] = -1
+        self.worst[rows] = worst
+        absd = np.abs(solver - ours)
+        for z in np.unique(zone):
+            cz = zone == z
+            r, m = rel[:, cz], ok[:, cz]
+            self.count[z] += m.sum(axis=(0, 1, 3))
+            self.within[z] += (m & (np.where(m, r, np.inf) <= self.tolerance)).sum(axis=(0, 1, 3))
+            if m.any():
+                self.max_rel[z] = np.maximum(self.max_rel[z], np.where(m, r, 0.0).max(axis=(0, 1, 3)))
+                self.max_abs[z] = np.maximum(self.max_abs[z], np.where(m, absd[:, cz], 0.0).max(axis=(0, 1, 3)))
+                self.covered[z] |= m.any(axis=(0, 1, 4))
+
+    def merge(self, other: "MetricAccumulator", start: int) -> None:
+        """Take in another accumulator that covered the cells ``start …`` of this one."""
+        rows = slice(start, start + len(other.disc))
+        self.disc[rows], self.worst[rows] = other.disc, other.worst
+        self.count += other.count
+        self.within += other.within
+        np.maximum(self.max_abs, other.max_abs, out=self.max_abs)
+        np.maximum(self.max_rel, other.max_rel, out=self.max_rel)
+        self.covered |= other.covered
+
+    def result(self) -> Comparison:
+        rows = []
+        for z, k, c in zip(*np.nonzero(self.count)):
+            rows.append({"zone": self.names[z], "ply": int(k) + 1, "component": component_label(self.quantity, c),
+                         "count": int(self.count[z, k, c]), "scale": float(self.scale[z, k, c]),
+                         "max_abs": float(self.max_abs[z, k, c]), "max_rel": float(self.max_rel[z, k, c]),
+                         "within": float(self.within[z, k, c] / self.count[z, k, c])})
+        compared = int(self.count.sum())
+        passed = bool(compared > 0 and np.nanmax(self.disc) <= self.tolerance)
+        return Comparison(self.tolerance, passed, compared, self.disc, self.worst, self.scale, tuple(rows),
+                          self.covered)
+
+
 def compare_values(ours: np.ndarray, solver: np.ndarray, zone: np.ndarray, n_zones: int,
                    tolerance: float, quantity: str = "stress", zone_names=None) -> Comparison:
-    """Compare every ply, point, component, cell and case.
+    """Compare every ply, point, component, cell and case of arrays held whole (one block).
 
     Parameters
     ----------
@@ -205,51 +321,6 @@ def compare_values(ours: np.ndarray, solver: np.ndarray, zone: np.ndarray, n_zon
     """
     zone = np.asarray(zone)
     names = list(zone_names) if zone_names is not None else [f"zone-{z + 1}" for z in range(n_zones)]
-    scale = value_scales(ours, zone, n_zones)
-    rel = relative_difference(ours, solver, scale[zone])
-    absd = np.abs(solver - ours)
-    ok = np.isfinite(rel)
-    ncase, ncell = rel.shape[:2]
-    flat = np.where(ok, rel, -1.0).transpose(1, 0, 2, 3, 4).reshape(ncell, -1)
-    arg = flat.argmax(axis=1)
-    has = ok.any(axis=(0, 2, 3, 4))
-    disc = np.where(has, flat[np.arange(ncell), arg], np.nan)
-    worst = np.stack(np.unravel_index(arg, (ncase,) + rel.shape[2:]), axis=1).astype(np.int64)
-    worst[~has] = -1
-    rows = []
-    for z in range(n_zones):
-        cz = zone == z
-        for k in range(rel.shape[2]):
-            for c in range(5):
-                r = rel[:, cz, k, :, c]
-                m = np.isfinite(r)
-                if not m.any():
-                    continue
-                rows.append({"zone": names[z], "ply": k + 1, "component": component_label(quantity, c),
-                             "count": int(m.sum()), "scale": float(scale[z, k, c]),
-                             "max_abs": float(np.max(absd[:, cz, k, :, c][m])), "max_rel": float(r[m].max()),
-                             "within": float(np.mean(r[m] <= tolerance))})
-    compared = int(ok.sum())
-    passed = bool(compared > 0 and np.nanmax(disc) <= tolerance)
-    return Comparison(float(tolerance), passed, compared, disc, worst, scale, tuple(rows))
-
-
-def comparison_summary(cmp: Comparison, case_names, zone_of_cell: np.ndarray, zone_names,
-                       quantity: str, n_worst: int = 10) -> dict:
-    """Plain-data summary of a comparison (verdict, metrics rows, worst cells, per-zone maxima)."""
-    worst = []
-    for c in cmp.worst_cells(n_worst):
-        case, ply, point, comp = (int(v) for v in cmp.cell_worst[c])
-        worst.append({"cell": c, "zone": zone_names[zone_of_cell[c]], "discrepancy": float(cmp.cell_discrepancy[c]),
-                      "case": case_names[case], "ply": ply + 1, "point": POINTS[point],
-                      "component": component_label(quantity, comp)})
-    zones = {}
-    for z, name in enumerate(zone_names):
-        d = cmp.cell_discrepancy[zone_of_cell == z]
-        d = d[np.isfinite(d)]
-        zones[name] = {"cells": int(d.size), "max_discrepancy": float(d.max()) if d.size else None,
-                       "within": float(np.mean(d <= cmp.tolerance)) if d.size else None}
-    return {"verdict": "pass" if cmp.passed else "fail", "tolerance": cmp.tolerance, "quantity": quantity,
-            "compared_values": cmp.compared, "max_discrepancy": cmp.max_discrepancy,
-            "fraction_cells_within": cmp.fraction_within, "zones": zones, "plies": list(cmp.rows),
-            "worst_cells": worst}
+    acc = MetricAccumulator(value_scales(ours, zone, n_zones), len(zone), tolerance, quantity, names)
+    acc.add(0, ours, solver, zone)
+    return acc.result()

@@ -35,7 +35,8 @@ CASES = ("pull", "hot")
 
 def definition_text(left_angles=(0, 30, -45, 90, 60), left_vector=(1, 1, 0), right_offset=0.3, hot_dT=-80.0,
                     quantity="stress", extra=""):
-    comps = '["s1", "s2", "s12", "s13", "s23"]' if quantity == "stress" else '["e1", "e2", "e12"]'
+    comps = ('["sigma1", "sigma2", "tau12", "tau13", "tau23"]' if quantity == "stress"
+             else '["eps1", "eps2", "gamma12"]')
     plies = ", ".join(f"{{angle = {a}, thickness = {t}}}" for a, t in zip(left_angles, (0.2, 0.15, 0.25, 0.2, 0.3)))
     return f"""
 units = "N-mm"
@@ -115,8 +116,8 @@ def write_solver(world, values, spec, model, name="solver.vtu"):
 def run(world, defn_path, solver_path, *extra):
     out = CliRunner().invoke(main, ["compare", str(defn_path), str(world["dir"] / "mesh.vtu"),
                                     str(world["dir"] / "res.vtu"), str(solver_path), "-o",
-                                    str(world["dir"] / "cmp.h5"), "--json", *extra])
-    return out.exit_code, (json.loads(out.output) if out.exit_code in (0, 1) else out.output)
+                                    str(world["dir"] / "cmp.h5"), "--json", "--quiet", *extra])
+    return out.exit_code, (json.loads(out.stdout) if out.exit_code in (0, 1) else out.output)
 
 
 def base(world, quantity="stress"):
@@ -147,13 +148,19 @@ def test_noise_at_1e6_passes(world):
 
 
 LAYOUTS = [
-    'pattern = "ply{ply}_{point}"\naxes = "element"\ncomponents = ["sxy", "sx", "sy", "_", "sxz", "syz"]',
+    'pattern = "ply{ply}_{point}"\naxes = "element"\ncomponents = ["tau_xy", "sigma_x", "sigma_y", "_", "tau_xz", '
+    '"tau_yz"]',
+    'pattern = "ply{ply}_{point}"\naxes = "laminate"\ncomponents = ["sigma_x", "sigma_y", "tau_xy"]',
     'pattern = "ply{ply}_{point}"\nply_order = "top-down"\nply_base = 0',
-    'pattern = "ply{ply}_{point}"\npoints = { middle = "mid", top = "t" }\ncomponents = ["s12", "s1", "s2"]',
+    'pattern = "ply{ply}_{point}"\npoints = { middle = "mid", top = "t" }\ncomponents = ["tau12", "sigma1", '
+    '"sigma2"]',
     'pattern = "ply{ply}_{point}"\nscale = 0.001',
-    'pattern = "p{ply}_{component}"\npoints = { top = "" }\ncomponents = ["s1", "s2", "s12", "s23", "s13"]',
-    'pattern = "p{ply}_{point}"\nquantity = "strain"\nshear = "tensor"\ncomponents = ["e1", "e2", "e12"]',
-    'pattern = "p{ply}_{point}"\nquantity = "strain"\naxes = "element"\ncomponents = ["ex", "ey", "exy"]',
+    'pattern = "ply{ply}_{point}"\nscale = "1 kPa"',
+    'pattern = "p{ply}_{component}"\npoints = { top = "" }\ncomponents = ["sigma1", "sigma2", "tau12", "tau23", '
+    '"tau13"]',
+    'pattern = "p{ply}_{point}"\nquantity = "strain"\nshear = "tensor"\ncomponents = ["eps1", "eps2", "gamma12"]',
+    'pattern = "p{ply}_{point}"\nquantity = "strain"\naxes = "element"\ncomponents = ["eps_x", "eps_y", '
+    '"gamma_xy"]',
 ]
 
 
@@ -162,11 +169,11 @@ def test_every_layout_reads_back(world, table):
     text = definition_text().split("[solver_plies]")[0] + "[solver_plies]\n" + table + "\n"
     path, model, spec, ours = recovered(world, text, name="layout.toml")
     solver = write_solver(world, ours, spec, model, "layout.vtu")
-    got = read_solver_plies(str(solver), spec, model, CASES)
-    given = np.ix_(range(2), range(model.n_cells), range(ours.shape[2]), [q for q, _ in spec.points],
-                   sorted(s for s in spec.slots if s >= 0))
+    got = read_solver_plies(str(solver), model, CASES)
+    given = np.ix_(range(2), range(model.n_cells), range(ours.shape[2]),
+                   [int(round(loc.value * 2)) for loc in spec.locations], sorted(s for s in spec.slots if s >= 0))
     np.testing.assert_allclose(got[given], ours[given], rtol=1e-10, atol=1e-9 * np.nanmax(np.abs(ours)))
-    assert np.isnan(got).sum() > np.isnan(ours).sum() or len(spec.points) == 3
+    assert np.isnan(got).sum() > np.isnan(ours).sum() or len(spec.locations) == 3
 
 
 def test_frame_rotations_are_inverse_and_match_conventions():
@@ -180,9 +187,16 @@ def test_frame_rotations_are_inverse_and_match_conventions():
 
 
 @pytest.mark.parametrize("table, needle", [
-    ({"pattern": "ply_{point}"}, "{ply}"), ({"axes": "laminate"}, "axes"), ({"components": ["s1", "e2"]}, "e2"),
+    ({"pattern": "ply_{point}"}, "{ply}"), ({"axes": "sideways"}, "axes"),
+    ({"components": ["sigma1", "eps2"]}, "eps2"), ({"components": ["s1", "s2"]}, "old name"),
+    ({"components": ["e12"]}, "gamma12"), ({"axes": "element", "components": ["sx", "sy", "sxy"]}, "sigma_x"),
     ({"points": {"centre": "c"}}, "points"), ({"scale": -1}, "scale"), ({"patern": "x{ply}"}, "pattern"),
-    ({"axes": "element", "components": ["sx", "sy"]}, "xy"), ({"pattern": "p{ply}_{pt}"}, "placeholder"),
+    ({"axes": "element", "components": ["sigma_x", "sigma_y"]}, "tau_xy"),
+    ({"pattern": "p{ply}_{pt}"}, "placeholder"), ({"axes": "vectors"}, "vectors"),
+    ({"axes": "global", "components": ["sigma1"]}, "tensor"),
+    ({"locations": [{"array": "a", "surface": "middle"}]}, "surface"),
+    ({"locations": [{"array": "a", "point": "top"}]}, "which ply"),
+    ({"pattern": "p{ply}", "locations": [{"array": "a", "z": 0.1}]}, "not both"),
 ])
 def test_bad_tables_are_refused(table, needle):
     with pytest.raises(DefinitionError, match="solver_plies") as err:
@@ -195,7 +209,7 @@ def test_missing_array_is_a_one_line_error(world):
     bad = world["dir"] / "bad.vtu"
     vtu.write(bad, world["mesh"], {f"ply1_bottom@{c}": np.zeros((8, 5)) for c in CASES})
     code, out = run(world, path, bad)
-    assert code == 2 and "ply1_middle" in out and "bad.vtu" in out and len(out.strip().splitlines()) == 1
+    assert code == 2 and "ply2_bottom" in out and "bad.vtu" in out and len(out.strip().splitlines()) == 1
 
 
 # ----------------------------------------------------------------------------- every hypothesis planted
@@ -219,9 +233,12 @@ def planted(world, name):
         bad = recovered(world, definition_text(), R=R)[3]
     elif name == "stacking-order":
         bad = ours[:, :, ::-1].copy()                       # the left zone has the most plies: all of them
-    elif name == "material-vs-element-axes":
+    elif name == "ply-value-axes":
         from bridge.compare.solver_plies import ply_angles
         bad = material_to_element(ours, ply_angles(model)[None, :, :, None], "stress")
+    elif name == "resultant-frame":
+        from postproc.hypotheses import _rotate_resultants
+        bad = recovered(world, definition_text(), R=_rotate_resultants(world["R"], -model.phi))[3]
     elif name == "shear-strain-convention":
         bad = ours.copy()
         bad[..., 2:] /= 2.0
@@ -265,9 +282,10 @@ def test_outputs_view_fragment_and_verdict_lines(world, tmp_path):
                                     str(solver), "-o", str(tmp_path / "c.h5"), "--view", str(tmp_path / "v.vtu"),
                                     "--fragment", str(tmp_path / "f.html")])
     assert out.exit_code == 1
-    assert out.output.splitlines()[0] == "verdict\tfail"
+    assert out.stdout.splitlines()[0] == "verdict\tfail"
+    assert "coverage\t" in out.stdout and "compare (scales)" in out.stderr
     assert any(line.startswith("cause\tleft\ttwisting-moment-sign\tset [resultants] twist_sign = -1")
-               for line in out.output.splitlines())
+               for line in out.stdout.splitlines())
     view = vtu.read(tmp_path / "v.vtu")
     d = np.asarray(view.cell_data["discrepancy"]).ravel()
     assert (d[world["left"]] > 1e-3).all() and (d[world["right"]] < 1e-9).all()

@@ -48,13 +48,26 @@ def test_renames_scalars_and_flags():
                                + [4.4482216152605 / 25.4] * 2)
 
 
+def test_unit_strings_for_scales():
+    # 1 lbf = 4.4482216152605 N, 1 in = 25.4 mm, exact (NIST SP 811, appendix B).
+    _, s = _options('[resultants]\nforce_scale = "1 lbf"\nlength_scale = "1 in"\n')
+    assert s.force_scale == pytest.approx(4.4482216152605, rel=1e-12) and s.length_scale == pytest.approx(25.4)
+
+
 def test_no_transverse_shear():
     assert _options('[fields]\nQ = ""\n')[0].q is None
 
 
 @pytest.mark.parametrize("extra, needle", [
     ('[fields]\nNN = "x"\n', "did you mean 'N'"),
-    ('[resultants]\nframe = "global"\n', "frame"),
+    ('[resultants]\nframe = "sideways"\n', "frame"),
+    ('[resultants]\nframe = "vectors"\n', "vectors"),
+    ('[resultants]\nforce_scale = "2 m"\n', "force_scale"),
+    ('[fields]\nN = { array = "F", components = ["xx", "yy"] }\n', "3 components"),
+    ('[fields]\nQ = { array = "F", components = ["xz", "qq"] }\n', "tensor names"),
+    ('[result_files]\npoints_per_cell = 0\n', "points_per_cell"),
+    ('[result_files]\npoints_per_cell = 4\npoint_cell_id = "id"\n', "not both"),
+    ('[result_files]\ntensor_order = "columns"\n', "tensor_order"),
     ('[resultants]\ntwist_sign = 2\n', "twist_sign"),
     ('[resultants]\nforce_scale = "big"\n', "force_scale"),
     ('[fields]\nscalars = ["a", "b"]\n', "eight"),

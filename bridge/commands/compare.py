@@ -11,7 +11,8 @@ from shells.defaults import CAUTION
 
 @click.command(help="Recover MESH from RESULTANTS independently and compare every ply, point, component, cell "
                     "and case with the solver's ply values SOLVER_PLIES (mapped by the [solver_plies] table of "
-                    "DEFINITION; docs/compare.md). On a failure, tests the usual convention errors zone by zone "
+                    "DEFINITION; docs/compare.md), block by block. States the coverage (ply points checked of the "
+                    "total, per zone). On a failure, tests the usual convention errors zone by zone "
                     "and names those that explain it. Exit code 0: within tolerance; 1: the comparison failed; "
                     "2: bad input.\n\n" + CAUTION)
 @click.argument("definition", type=click.Path(dir_okay=False))
@@ -26,10 +27,26 @@ from shells.defaults import CAUTION
 @click.option("--fragment", type=click.Path(dir_okay=False),
               help="Also write the HTML section for plybridge report --compare.")
 @click.option("--json", "as_json", is_flag=True, help="Print the full summary as JSON instead.")
-def compare(definition, mesh, resultants, solver_plies, output, tolerance, view, map_png, fragment, as_json):
+@click.option("--resultants", "more", multiple=True, type=click.Path(dir_okay=False),
+              help="Another resultants file (repeatable); files are merged by case name.")
+@click.option("--workers", type=int, default=None,
+              help="Compute on a local cluster of N single-threaded worker processes (dask.distributed).")
+@click.option("--scheduler", default=None, metavar="ADDRESS",
+              help="Compute on a running dask cluster, e.g. tcp://10.0.0.5:8786 (docs/scale.md).")
+@click.option("--block-cells", type=int, default=None, help="Cells per block (default: about 16 MiB of values).")
+@click.option("--quiet", is_flag=True, help="No progress on stderr.")
+def compare(definition, mesh, resultants, solver_plies, output, tolerance, view, map_png, fragment, as_json, more,
+            workers, scheduler, block_cells, quiet):
+    from bridge.commands.recover import _progress
     from bridge.compare.run import run_compare, verdict_lines
 
-    summary = run_compare(definition, mesh, [resultants], list(solver_plies), output, tolerance, view, map_png,
-                          fragment)
+    printers = {}
+
+    def progress(stage: str, done: int, total: int) -> None:
+        printers.setdefault(stage, _progress(f"compare ({stage})"))(done, total)
+
+    summary = run_compare(definition, mesh, [resultants, *more], list(solver_plies), output, tolerance, view,
+                          map_png, fragment, workers=workers, scheduler=scheduler, block_cells=block_cells,
+                          progress=None if quiet else progress)
     click.echo(json.dumps(summary, indent=1) if as_json else verdict_lines(summary), nl=as_json)
     raise click.exceptions.Exit(0 if summary["verdict"] == "pass" else 1)

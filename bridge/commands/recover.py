@@ -15,14 +15,15 @@ def sidecar(output: str | Path, suffix: str) -> Path:
     return out.with_name(out.stem + suffix)
 
 
-def _progress():
+def _progress(label: str = "recover"):
+    """A progress printer for stderr: ``label: done/total cells (pct%)`` every 5 %."""
     state = {"last": -1}
 
     def report(done: int, total: int) -> None:
         pct = int(100 * done / max(total, 1))
         if pct // 5 != state["last"] // 5 or done == total:
             state["last"] = pct
-            click.echo(f"\rrecover: {done}/{total} cells ({pct}%)", err=True, nl=done == total)
+            click.echo(f"\r{label}: {done}/{total} cells ({pct}%)", err=True, nl=done == total)
 
     return report
 

@@ -10,89 +10,176 @@ from __future__ import annotations
 
 import json
 from dataclasses import dataclass
-from typing import Sequence
+from typing import Callable, Sequence
 
 import numpy as np
 
-from postproc.compare import Comparison, compare_values, comparison_summary, reference_values
+from postproc.compare import Comparison, MetricAccumulator, ScaleAccumulator, reference_values
+from postproc.compare_summary import comparison_summary
 from postproc.diagnose import ZoneData, diagnose
 from shells.defaults import CAUTION
-from shells.errors import InputError
+from shells.errors import InputError, ResultantsError
+from shells.recovery_tables import build_tables
 
 from bridge.atomic import atomic_path
 from bridge.definition.loader import Definition, load_definition
 from bridge.mesh.formats import read_mesh
 from bridge.model.build import Model, build_model
+from bridge.compare.blocks import CompareContext, CompareSpec, block_cells as blocks_of
+from bridge.compare.solver_plies import SolverPlySource, axes_angle
 from bridge.definition.cases import combine_steps
 from bridge.definition.solver_plies import SolverPlies
 from bridge.recover.resultants import ResultantSource
 from bridge.recover.run import CasePlan, plan_cases, provenance
-from bridge.compare.solver_plies import read_solver_plies
 
 FORMAT = "plybridge-compare"
 #: Default largest relative difference accepted (relative to the value scale of the ply and component).
 DEFAULT_TOLERANCE = 1e-3
 
 
+#: Cells per zone the diagnosis works on: the worst ones and an even spread of the rest.
+DIAGNOSIS_CELLS = 256
+
+Progress = Callable[[str, int, int], None]
+Note = Callable[[str], None]
+
+
 @dataclass(frozen=True)
 class CompareInputs:
-    """Everything a comparison works on (arrays over the global cell index)."""
+    """Everything a comparison reads (arrays over the global cell index stay in their sources)."""
 
     defn: Definition
     model: Model
     plan: CasePlan
     spec: SolverPlies
-    twist_sign: int
-    R: np.ndarray        # (ncase, ncell, 8), element frame
-    dT: np.ndarray       # (ncase, ncell)
-    ours: np.ndarray     # (ncase, ncell, maxply, 3, 5)
-    solver: np.ndarray   # same
+    source: ResultantSource
+    solver: SolverPlySource
+    cases: tuple[int, ...]       # the run's cases compared (those the solver gives), in run order
+    skipped: tuple[str, ...]     # combinations the solver does not give
+
+    @property
+    def case_names(self) -> tuple[str, ...]:
+        return tuple(self.plan.names[j] for j in self.cases)
+
+    def zone_plies(self) -> list[int]:
+        m = self.model
+        out = []
+        for k in range(len(self.defn.zones)):
+            cells = np.flatnonzero(m.zone == k)
+            out.append(m.sections[int(m.section[cells[0]])].n_plies if cells.size else 0)
+        return out
 
 
 def load_inputs(definition: str, mesh_path: str, resultants: Sequence[str],
                 solver_plies: Sequence[str]) -> CompareInputs:
-    """Read every input and recover our side (errors are :class:`shells.errors.InputError`)."""
+    """Open every input once (errors are :class:`shells.errors.InputError`); values are read by blocks later."""
     defn = load_definition(definition)
     model = build_model(defn, read_mesh(mesh_path))
-    spec = defn.solver_plies
-    source = ResultantSource.of_model(resultants, model)
+    source = ResultantSource.of_model(list(resultants), model)
     plan = plan_cases(defn, model, source.names)
-    n = model.n_cells
-    R = combine_steps(plan.weights, source.read(0, n))
-    dT = plan.delta_T(model, 0, n)
-    src = solver_plies[0] if len(solver_plies) == 1 else list(solver_plies)
-    solver = read_solver_plies(src, spec, model, plan.names)
-    ours = reference_values(model.tables(), model.section, model.phi, R, dT, plan.dM, plan.pres, spec.quantity)
-    return CompareInputs(defn, model, plan, spec, defn.resultants.twist_sign, R, dT, ours, solver)
+    solver = SolverPlySource(list(solver_plies), model, plan.names)
+    combos = set(defn.cases.combinations)
+    missing = [c for j, c in enumerate(plan.names) if j not in solver.case_index]
+    base = [c for c in missing if c not in combos]
+    if base:
+        raise ResultantsError(f"no solver ply values for case(s) {base}; the files have {list(solver.file_cases)}. "
+                              "Name the ply arrays' cases as the load cases", solver.files.label)
+    return CompareInputs(defn, model, plan, defn.solver_plies, source, solver, solver.case_index, tuple(missing))
 
 
-def zone_data(inp: CompareInputs, cmp: Comparison) -> list[ZoneData]:
-    """One :class:`ZoneData` per zone with cells (its cells share one section)."""
+def _context(inp: CompareInputs, scale=None, tolerance: float = 1e-3) -> CompareContext:
+    j = list(inp.cases)
+    return CompareContext(inp.model.tables(), inp.plan.weights[j], inp.plan.dM[j], inp.plan.pres[j],
+                          inp.spec.quantity, len(inp.defn.zones), inp.source.reader, scale, tolerance,
+                          tuple(z.name for z in inp.defn.zones))
+
+
+def _specs(inp: CompareInputs, step: int, with_solver: bool):
+    m, j = inp.model, list(inp.cases)
+    for index, start in enumerate(range(0, m.n_cells, step)):
+        stop = min(m.n_cells, start + step)
+        cells = slice(start, stop)
+        yield CompareSpec(index, start, stop, m.section[cells], m.phi[cells], m.zone[cells],
+                          inp.plan.delta_T(m, start, stop)[j], inp.source.block_steps(start, stop),
+                          inp.solver.read_cells(cells).material if with_solver else None)
+
+
+def measure(inp: CompareInputs, tolerance: float, runner, progress: Progress | None = None,
+            block_cells: int | None = None) -> Comparison:
+    """The two streamed passes (value scales, then differences) over every block of cells."""
+    n = inp.model.n_cells
+    step = block_cells or blocks_of(len(inp.cases), inp.model.tables().max_plies)
+    scales = ScaleAccumulator(len(inp.defn.zones), inp.model.tables().max_plies)
+    for index, acc in runner.map(_context(inp), _specs(inp, step, False)):
+        scales.merge(acc)
+        if progress:
+            progress("scales", min(n, (index + 1) * step), n)
+    ctx = _context(inp, scales.result(), tolerance)
+    metrics = MetricAccumulator(ctx.scale, n, tolerance, inp.spec.quantity, ctx.zone_names)
+    for index, acc in runner.map(ctx, _specs(inp, step, True)):
+        metrics.merge(acc, index * step)
+        if progress:
+            progress("compare", min(n, (index + 1) * step), n)
+    return metrics.result()
+
+
+def diagnosis_cells(cmp: Comparison, cells: np.ndarray, k: int = DIAGNOSIS_CELLS) -> np.ndarray:
+    """Up to ``k`` of a zone's cells, increasing: its worst half and an even spread of the others."""
+    if cells.size <= k:
+        return cells
+    d = np.where(np.isfinite(cmp.cell_discrepancy[cells]), cmp.cell_discrepancy[cells], -np.inf)
+    worst = cells[np.argsort(-d, kind="stable")[:k // 2]]
+    spread = cells[np.linspace(0, cells.size - 1, k - worst.size).astype(np.int64)]
+    return np.unique(np.concatenate([worst, spread]))
+
+
+def zone_data(inp: CompareInputs, cmp: Comparison, zones=None) -> list[ZoneData]:
+    """One :class:`ZoneData` per zone with cells (its cells share one section), on a sample of its cells."""
     m, out = inp.model, []
+    j = list(inp.cases)
     for k, zone in enumerate(inp.defn.zones):
-        cells = np.flatnonzero(m.zone == k)
-        if cells.size == 0:
+        all_cells = np.flatnonzero(m.zone == k)
+        if all_cells.size == 0 or (zones is not None and zone.name not in zones):
             continue
+        cells = diagnosis_cells(cmp, all_cells)
         sec = m.sections[int(m.section[cells[0]])]
         n = sec.n_plies
-        out.append(ZoneData(zone.name, sec, m.phi[cells], inp.R[:, cells], inp.dT[:, cells], inp.plan.dM,
-                            inp.plan.pres, inp.ours[:, cells, :n], inp.solver[:, cells, :n], cmp.scale[k, :n],
-                            inp.spec.quantity, inp.spec.axes, inp.plan.names, inp.twist_sign, inp.spec.scale,
-                            inp.spec.ply_order, inp.spec.shear))
+        R = combine_steps(inp.plan.weights[j], inp.source.read_cells(cells))
+        dT = np.stack([inp.plan.delta_T(m, c, c + 1)[j, 0] for c in cells], axis=1)
+        ours = reference_values(build_tables([sec]), np.zeros(cells.size, np.int64), m.phi[cells], R, dT,
+                                inp.plan.dM[j], inp.plan.pres[j], inp.spec.quantity)
+        got = inp.solver.read_cells(cells)
+        alpha = axes_angle(inp.spec, m, None if inp.solver.vectors is None else inp.solver.vectors[cells], cells)
+        out.append(ZoneData(zone.name, sec, m.phi[cells], R, dT, inp.plan.dM[j], inp.plan.pres[j], ours[:, :, :n],
+                            got.material[:, :, :n], cmp.scale[k, :n], inp.spec.quantity, inp.spec.axes,
+                            inp.case_names, inp.defn.resultants.twist_sign, inp.spec.scale, inp.spec.ply_order,
+                            inp.spec.shear, got.written[:, :, :n], alpha))
     return out
 
 
-def compare_inputs(inp: CompareInputs, tolerance: float) -> tuple[Comparison, dict]:
+def compare_inputs(inp: CompareInputs, tolerance: float, runner=None, progress: Progress | None = None,
+                   block_cells: int | None = None) -> tuple[Comparison, dict]:
     """Compare, diagnose a failure, and summarise (plain data, JSON-ready)."""
+    from bridge.recover.distributed import SerialRunner
+
     names = [z.name for z in inp.defn.zones]
-    cmp = compare_values(inp.ours, inp.solver, inp.model.zone, len(names), tolerance, inp.spec.quantity, names)
-    summary = comparison_summary(cmp, inp.plan.names, inp.model.zone, names, inp.spec.quantity)
-    summary["cases"] = list(inp.plan.names)
+    cmp = measure(inp, tolerance, runner or SerialRunner(), progress, block_cells)
+    summary = comparison_summary(cmp, inp.case_names, inp.model.zone, names, inp.spec.quantity,
+                                 zone_plies=inp.zone_plies())
+    summary["cases"] = list(inp.case_names)
+    summary["skipped_cases"] = list(inp.skipped)
     summary["units"] = inp.defn.units.name
     summary["title"] = inp.defn.title
+    notes = []
+    if inp.skipped:
+        notes.append(f"combination(s) {', '.join(inp.skipped)} not checked: the solver gives no ply values for them")
     if cmp.compared == 0:
-        summary["note"] = "no value compared: the solver's ply arrays hold no finite value where plies exist"
-    summary["diagnosis"] = [] if cmp.passed else diagnose(zone_data(inp, cmp), tolerance)
+        notes.append("no value compared: the solver's ply arrays hold no finite value where plies exist")
+    if notes:
+        summary["note"] = "; ".join(notes)
+    failing = [] if cmp.passed else [name for name, z in summary["zones"].items()
+                                     if z["max_discrepancy"] is not None and z["max_discrepancy"] > tolerance]
+    summary["diagnosis"] = diagnose(zone_data(inp, cmp, set(failing)), tolerance) if failing else []
     return cmp, summary
 
 
@@ -131,19 +218,44 @@ def write_map(path: str, model: Model, discrepancy: np.ndarray, title: str) -> N
 
 def run_compare(definition: str, mesh_path: str, resultants: Sequence[str], solver_plies: Sequence[str],
                 output: str, tolerance: float = DEFAULT_TOLERANCE, view: str | None = None,
-                map_png: str | None = None, fragment: str | None = None) -> dict:
-    """Run a comparison and write its outputs; returns the summary (``verdict`` is ``pass`` or ``fail``)."""
+                map_png: str | None = None, fragment: str | None = None, *, workers: int | None = None,
+                scheduler: str | None = None, client=None, progress: Progress | None = None,
+                block_cells: int | None = None) -> dict:
+    """Run a comparison and write its outputs; returns the summary (``verdict`` is ``pass`` or ``fail``).
+
+    Parameters
+    ----------
+    definition, mesh_path : str
+    resultants, solver_plies : sequence of str
+        Result files of any kind ``recover`` reads; several files are merged by case name.
+    output : str
+        The comparison file (docs/compare.md).
+    tolerance : float
+        Largest relative difference accepted.
+    view, map_png, fragment : str, optional
+        Also write the per-cell discrepancy as a mesh, a picture, the report's HTML section.
+    workers, scheduler, client
+        Where the blocks are computed, as for ``recover`` (:func:`bridge.recover.distributed.open_runner`).
+    progress : callable(pass name, done cells, total cells), optional
+    block_cells : int, optional
+        Cells per block (default: about 16 MiB of ply values per block).
+    """
     from postproc.compare_report import compare_section_html
 
     from bridge.atomic import write_text
     from bridge.mesh.formats import write_mesh
+    from bridge.recover.distributed import check_workers, open_runner
+    from bridge.recover.run import check_block_cells
 
     if not (np.isfinite(tolerance) and tolerance > 0):
         raise InputError(f"--tolerance {tolerance!r}: give a positive relative tolerance, e.g. 1e-3")
     if view and not view.lower().endswith((".vtu", ".xdmf")):
         raise InputError(f"--view {view}: write a .vtu or .xdmf file")
+    check_workers(workers, scheduler)
+    check_block_cells(block_cells)
     inp = load_inputs(definition, mesh_path, resultants, solver_plies)
-    cmp, summary = compare_inputs(inp, tolerance)
+    with open_runner(workers, scheduler, client) as runner:
+        cmp, summary = compare_inputs(inp, tolerance, runner, progress, block_cells)
     paths = {"definition": definition, "mesh": mesh_path,
              **{f"resultants{k}": p for k, p in enumerate(resultants)},
              **{f"solver_plies{k}": p for k, p in enumerate(solver_plies)}}
@@ -163,7 +275,11 @@ def verdict_lines(summary: dict) -> str:
     rows = [("verdict", summary["verdict"]), ("max_discrepancy", f"{summary['max_discrepancy']:.3g}"),
             ("tolerance", f"{summary['tolerance']:.3g}"),
             ("cells_within", f"{summary['fraction_cells_within']:.4g}"),
-            ("compared_values", summary["compared_values"])]
+            ("compared_values", summary["compared_values"]),
+            ("coverage", summary["coverage"]["text"])]
+    rows += [("coverage_zone", f"{z}\t{c['text']}") for z, c in summary["coverage"]["zones"].items()]
+    if summary.get("skipped_cases"):
+        rows.append(("skipped_cases", ", ".join(summary["skipped_cases"])))
     for d in summary.get("diagnosis", []):
         top = d["explained"][0] if d["explained"] else None
         rows.append(("cause", f"{d['zone']}\t{top['name']}\t{top['fix']}" if top else f"{d['zone']}\tunexplained"))

@@ -23,6 +23,7 @@ from bridge.definition.cases import Cases, parse_cases
 from bridge.definition.frames import FrameSettings, parse_frames
 from bridge.definition.laminates import parse_laminates
 from bridge.definition.materials import parse_materials
+from bridge.definition.result_files import ResultFiles, parse_result_files
 from bridge.definition.resultants import ResultantFields, ResultantSettings, parse_fields, parse_resultant_settings
 from bridge.definition.schema import check_keys
 from bridge.definition.solver_plies import SolverPlies, parse_solver_plies
@@ -33,7 +34,7 @@ from bridge.definition.zones import Zone, parse_zones
 MAX_BYTES = 4 * 1024 * 1024
 
 TOP_LEVEL = ("units", "title", "description", "materials", "laminates", "analysis", "zones", "frames", "cases",
-             "combinations", "fields", "resultants", "solver_plies")
+             "combinations", "fields", "resultants", "solver_plies", "result_files")
 
 
 @dataclass(frozen=True)
@@ -48,6 +49,8 @@ class Definition:
         ``[fields]`` and ``[resultants]``: names and conventions of the solver's resultant arrays.
     solver_plies : SolverPlies
         ``[solver_plies]``: names and conventions of the solver's ply values (docs/compare.md).
+    result_files : ResultFiles
+        ``[result_files]``: how the solver's own files are read (point clouds, case names, tensor order).
     """
 
     source: str
@@ -63,6 +66,7 @@ class Definition:
     fields: ResultantFields = field(default_factory=ResultantFields)
     resultants: ResultantSettings = field(default_factory=ResultantSettings)
     solver_plies: SolverPlies = field(default_factory=SolverPlies)
+    result_files: ResultFiles = field(default_factory=ResultFiles)
 
 
 def read_toml(path: str | Path) -> tuple[dict[str, Any], str]:
@@ -101,8 +105,9 @@ def parse_definition(doc: Mapping[str, Any], source: str = "<definition>", sha25
             cases=parse_cases(doc.get("cases", {}), doc.get("combinations", {}), units),
             frames=parse_frames(doc.get("frames", {})),
             fields=parse_fields(doc.get("fields", {})),
-            resultants=parse_resultant_settings(doc.get("resultants", {})),
-            solver_plies=parse_solver_plies(doc.get("solver_plies", {})),
+            resultants=parse_resultant_settings(doc.get("resultants", {}), units),
+            solver_plies=parse_solver_plies(doc.get("solver_plies", {}), units),
+            result_files=parse_result_files(doc.get("result_files", {})),
         )
     except InputError as err:
         raise err.within(source) from None

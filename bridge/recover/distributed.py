@@ -12,6 +12,9 @@ writers). Results are taken in block order through a bounded window, so the
 driver holds at most a few blocks at a time and the result does not depend on
 which worker finished first.
 
+The runners take any context with a ``compute(spec)`` method, so ``compare``
+streams its blocks through the same machinery (:mod:`bridge.compare.blocks`).
+
 Pickle is used only by dask for its own messages between the processes of a
 cluster the user started; no file is ever unpickled.
 """
@@ -66,6 +69,10 @@ class BlockContext:
     fos: np.ndarray
     store_plies: bool = False
     reader: H5Steps | None = None
+
+    def compute(self, spec: "BlockSpec") -> "BlockResult":
+        """The block task of a recovery run (:func:`compute_block`)."""
+        return compute_block(self, spec)
 
 
 @dataclass(frozen=True)
@@ -123,12 +130,12 @@ def compute_block(ctx: BlockContext, spec: BlockSpec) -> BlockResult:
     return BlockResult(spec.index, spec.start, spec.stop, env, cells, plies)
 
 
-def _task(ctx: BlockContext, spec: BlockSpec) -> BlockResult:
-    """A dask task: cap numba at one thread in this worker thread, then compute the block."""
+def _task(ctx, spec):
+    """A dask task: cap numba at one thread in this worker thread, then compute the block (``ctx.compute``)."""
     import numba
 
     numba.set_num_threads(1)  # thread-local: the executor thread that runs the kernel
-    return compute_block(ctx, spec)
+    return ctx.compute(spec)
 
 
 class SerialRunner:
@@ -136,9 +143,10 @@ class SerialRunner:
 
     label = "serial"
 
-    def map(self, ctx: BlockContext, specs: Iterable[BlockSpec]) -> Iterator[BlockResult]:
+    def map(self, ctx, specs: Iterable) -> Iterator:
+        """``ctx.compute(spec)`` of every spec, in order (any context with a ``compute`` method)."""
         for spec in specs:
-            yield compute_block(ctx, spec)
+            yield ctx.compute(spec)
 
 
 class DaskRunner:
@@ -157,7 +165,8 @@ class DaskRunner:
         self.window = window or max(4, 2 * threads)
         self.label = f"dask ({len(client.nthreads())} workers, {threads} threads)"
 
-    def map(self, ctx: BlockContext, specs: Iterable[BlockSpec]) -> Iterator[BlockResult]:
+    def map(self, ctx, specs: Iterable) -> Iterator:
+        """``ctx.compute(spec)`` of every spec as dask tasks, results in spec order."""
         shared = self.client.scatter(ctx, broadcast=True, hash=False)
         run = uuid.uuid4().hex[:12]
         pending: collections.deque = collections.deque()
@@ -175,7 +184,7 @@ class DaskRunner:
             del shared
 
 
-def _take(pending: collections.deque) -> BlockResult:
+def _take(pending: collections.deque):
     fut = pending.popleft()
     try:
         return fut.result()

@@ -1,27 +1,31 @@
-"""Result files of a solver, opened once: the format found from the first bytes, the steps (load cases) named.
+"""Result files of a solver, opened once: the kind found from the first bytes, the steps (load cases) named.
 
 Kinds (docs/meshes.md, resultant inputs):
 
 (a) an XDMF time series: one grid per step (names from ``<Information Name="case">``, else ``<Time>``);
-(b) mesh files (VTU or any format :mod:`bridge.mesh.formats` reads): a list of files, one step each, named by
-    the file stem; or one file whose cell arrays carry a step suffix after :data:`CASE_SEPARATOR`
-    (``N@case1``); a single file without suffixes is one step named by its stem;
-(c) HDF5 with dataset ``/resultants`` (n_steps, n_cells, 8) and attribute ``case_names``: read by cell ranges.
+(b) mesh files (VTU or any format :mod:`bridge.mesh.formats` reads) whose cell arrays carry a step suffix
+    after :data:`CASE_SEPARATOR` (``N@case1``), or none (one step named by the file's stem or folder,
+    ``[result_files] case_names``);
+(c) point clouds (integration points: a VTU / VTK file of points and point arrays, no shell cells), reduced
+    to cells as ``[result_files]`` says (:mod:`bridge.recover.clouds`), named like (b);
+(d) HDF5 with dataset ``/resultants`` (n_steps, n_cells, 8) and attribute ``case_names``: read by cell ranges.
 
-Both the resultants (:mod:`bridge.recover.resultants`) and the solver's ply values
-(:mod:`bridge.compare.solver_plies`) are read through :func:`open_step_files`.
+Several files are merged by case name: arrays of the same case from different files are joined, other cases
+added in order of first appearance. Both the resultants (:mod:`bridge.recover.resultants`) and the solver's
+ply values (:mod:`bridge.compare.solver_plies`) are read through :func:`open_step_files`.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Callable, Mapping, Sequence
+from typing import Mapping, Sequence
 
 import numpy as np
 
-from shells.errors import ResultantsError
+from shells.errors import MeshError, ResultantsError
 
+from bridge.definition.result_files import ResultFiles
 from bridge.mesh.shell import ShellMesh
 
 #: Separator between a field name and a load-case name in one-file inputs: ``N@case1``.
@@ -41,23 +45,25 @@ class StepFiles:
     label : str
         The file (or files) named in error messages.
     h5_path : str or None
-        An HDF5 ``/resultants`` file (read by cell ranges with :func:`read_h5_cells`); None for mesh kinds.
+        An HDF5 ``/resultants`` file (read by cell ranges with :func:`read_h5_cells`); None for the other kinds.
     extra : dict
-        Cell arrays of the (first) file that belong to no step (e.g. per-cell axes vectors).
+        Cell arrays that belong to no step (e.g. per-cell axes vectors), from every file.
+    steps : tuple of dict
+        The cell arrays of each step (empty for HDF5).
     """
 
     names: tuple[str, ...]
     label: str
     h5_path: str | None = None
     extra: Mapping[str, np.ndarray] = field(default_factory=dict)
-    loader: Callable[[int], Mapping[str, np.ndarray]] | None = field(default=None, repr=False)
+    steps: tuple = field(default=(), repr=False)
 
     def arrays(self, i: int) -> Mapping[str, np.ndarray]:
-        """The cell arrays of step ``i`` (mesh kinds only)."""
-        if self.loader is None:
+        """The cell arrays of step ``i`` (not for HDF5 ``/resultants`` files)."""
+        if self.h5_path is not None:
             raise ResultantsError("an HDF5 /resultants file holds resultants only; give the solver's cell "
                                   "arrays (VTU, XDMF)", self.label)
-        return self.loader(i)
+        return self.steps[i]
 
 
 def _h5_names(path: str, n_cells: int) -> list[str]:
@@ -91,63 +97,92 @@ def read_h5_cells(path: str, cells: slice | np.ndarray) -> np.ndarray:
         return h5[H5_DATASET][:, cells, :]
 
 
-def _mesh_cases(mesh: ShellMesh, stem: str) -> tuple[list[str], dict[str, dict]]:
-    plain = {k: v for k, v in mesh.cell_data.items() if CASE_SEPARATOR not in k}
+def split_cases(cell_data: Mapping[str, np.ndarray], default: str) -> tuple[dict[str, dict], dict]:
+    """Cell arrays → ({case: arrays}, arrays of no case); arrays without ``@case`` are one case ``default``."""
+    plain = {k: v for k, v in cell_data.items() if CASE_SEPARATOR not in k}
     cases: dict[str, dict] = {}
-    for key, arr in mesh.cell_data.items():
+    for key, arr in cell_data.items():
         if CASE_SEPARATOR in key:
             field_name, _, case = key.partition(CASE_SEPARATOR)
             cases.setdefault(case, {})[field_name] = arr
     if not cases:
-        return [stem], {stem: plain}
-    return list(cases), {c: {**plain, **a} for c, a in cases.items()}
+        return {default: plain}, {}
+    return cases, plain
 
 
-def _check_cells(mesh: ShellMesh, n_cells: int, src: str) -> None:
-    if mesh.n_cells != n_cells:
-        raise ResultantsError(f"the file has {mesh.n_cells} shell cells but the mesh has {n_cells}; "
+def _check_cells(n_found: int, n_cells: int, src: str) -> None:
+    if n_found != n_cells:
+        raise ResultantsError(f"the file has {n_found} shell cells but the mesh has {n_cells}; "
                               "use the result file of this mesh", src)
 
 
-def open_step_files(path_or_paths: str | Sequence[str], n_cells: int) -> StepFiles:
-    """Find the kind of a result input (once) and name its steps.
+def _file_cases(path: str, head: bytes, n_cells: int, options: ResultFiles,
+                mesh: ShellMesh | None) -> tuple[dict[str, dict], dict]:
+    """One non-HDF5 file: ({case: cell arrays}, arrays of no case)."""
+    from bridge.mesh.formats import read_mesh, xdmf
+    from bridge.recover.clouds import cloud_to_cells
+
+    default = Path(path).parent.name if options.case_names == "folder" else Path(path).stem
+    if xdmf.sniff(head):
+        grid_mesh, steps = xdmf.read_series(path)
+        _check_cells(grid_mesh.n_cells, n_cells, path)
+        if len(steps) == 1:
+            return split_cases(steps[0].cell_data, default)
+        return {s.name: dict(s.cell_data) for s in steps}, dict(grid_mesh.cell_data)
+    try:
+        found = read_mesh(path)
+    except MeshError as err:
+        if "no shell cells" not in err.detail:
+            raise
+        from bridge.mesh.cloud import read_point_cloud
+
+        return split_cases(cloud_to_cells(read_point_cloud(path), n_cells, options, mesh), default)
+    _check_cells(found.n_cells, n_cells, path)
+    return split_cases(found.cell_data, default)
+
+
+def open_step_files(path_or_paths: str | Sequence[str], n_cells: int, options: ResultFiles = ResultFiles(),
+                    mesh: ShellMesh | None = None) -> StepFiles:
+    """Find the kind of a result input (once), name its steps and merge several files by case name.
 
     Parameters
     ----------
     path_or_paths : path or sequence of paths
-        One file of any kind, or several mesh files (one step each, named by the stem).
+        One file of any kind, or several files of kinds (a)–(c) (module notes).
     n_cells : int
-        Shell cells of the model mesh: every file must have as many.
+        Shell cells of the model mesh: every file must have as many (point clouds: reduced to as many).
+    options : ResultFiles
+        The definition's ``[result_files]``.
+    mesh : ShellMesh, optional
+        The model mesh (cell ids and centroids, for point clouds).
     """
-    from bridge.mesh.formats import read_mesh, xdmf
-
-    if isinstance(path_or_paths, (list, tuple)) and len(path_or_paths) == 1:
-        path_or_paths = path_or_paths[0]
-    if isinstance(path_or_paths, (list, tuple)):
-        paths = [str(p) for p in path_or_paths]
-        names = [Path(p).stem for p in paths]
-        if len(set(names)) != len(names):
-            raise ResultantsError(f"case files must have distinct names (the stem is the case name): {names}")
-        meshes = []
-        for p in paths:
-            meshes.append(read_mesh(p))
-            _check_cells(meshes[-1], n_cells, p)
-        return StepFiles(tuple(names), ", ".join(paths), None, dict(meshes[0].cell_data),
-                         lambda i: meshes[i].cell_data)
-    path = str(path_or_paths)
-    try:
-        with open(path, "rb") as fh:
-            head = fh.read(4096)
-    except FileNotFoundError:
-        raise ResultantsError("file not found; check the path", path) from None
-    if head.startswith(HDF5_SIGNATURE):
-        return StepFiles(tuple(_h5_names(path, n_cells)), path, path)
-    if xdmf.sniff(head):
-        mesh, steps = xdmf.read_series(path)
-        _check_cells(mesh, n_cells, path)
-        return StepFiles(tuple(s.name for s in steps), path, None, dict(mesh.cell_data),
-                         lambda i: steps[i].cell_data)
-    mesh = read_mesh(path)
-    _check_cells(mesh, n_cells, path)
-    names, per_case = _mesh_cases(mesh, Path(path).stem)
-    return StepFiles(tuple(names), path, None, dict(mesh.cell_data), lambda i: per_case[names[i]])
+    paths = [str(p) for p in path_or_paths] if isinstance(path_or_paths, (list, tuple)) else [str(path_or_paths)]
+    label = ", ".join(paths)
+    heads = []
+    for p in paths:
+        try:
+            with open(p, "rb") as fh:
+                heads.append(fh.read(4096))
+        except FileNotFoundError:
+            raise ResultantsError("file not found; check the path", p) from None
+    if any(h.startswith(HDF5_SIGNATURE) for h in heads):
+        if len(paths) != 1:
+            raise ResultantsError("an HDF5 /resultants file holds every case; give it alone", label)
+        return StepFiles(tuple(_h5_names(paths[0], n_cells)), label, paths[0])
+    merged: dict[str, dict] = {}
+    origin: dict[tuple[str, str], str] = {}
+    extra: dict[str, np.ndarray] = {}
+    for p, head in zip(paths, heads):
+        cases, plain = _file_cases(p, head, n_cells, options, mesh)
+        extra.update(plain)
+        for case, arrays in cases.items():
+            into = merged.setdefault(case, {})
+            for name, arr in arrays.items():
+                if (case, name) in origin:
+                    raise ResultantsError(f"array {name!r} of case {case!r} is in both {origin[case, name]} and {p}; "
+                                          "give each array of a case once", label)
+                origin[case, name] = p
+                into[name] = arr
+        if len(cases) == 1 and not plain:
+            extra.update(next(iter(cases.values())))
+    return StepFiles(tuple(merged), label, None, extra, tuple(merged.values()))

@@ -23,7 +23,8 @@ import numpy as np
 
 from shells.errors import InputError, ResultantsError
 
-from bridge.definition.resultants import ResultantFields, ResultantSettings
+from bridge.definition.result_files import ResultFiles
+from bridge.definition.resultants import TENSOR6, ResultantFields, ResultantSettings, component_index
 from bridge.model.frames import in_plane
 from bridge.recover.files import StepFiles, open_step_files, read_h5_cells
 from bridge.recover.writers import resultant_arrays, write_resultants_h5, write_resultants_xdmf  # noqa: F401
@@ -33,9 +34,48 @@ def _few(ids: np.ndarray, k: int = 6) -> str:
     return ", ".join(map(str, ids[:k])) + (" ..." if len(ids) > k else "")
 
 
+def _columns(arrays: Mapping[str, np.ndarray], name: str, n_cells: int, where: str) -> np.ndarray:
+    """The array ``name`` as (n_cells, k) float64."""
+    a0 = np.asarray(arrays[name])
+    a = a0[:, None] if a0.ndim == 1 else a0.reshape(len(a0), -1) if a0.ndim > 2 else a0
+    if a.ndim != 2:
+        raise ResultantsError(f"array {name!r}{where} has shape {a0.shape}; expected one row per cell")
+    if a.shape[0] != n_cells:
+        raise ResultantsError(f"array {name!r}{where} has {a.shape[0]} cells but the mesh has "
+                              f"{n_cells}; use the result file of this mesh")
+    return np.asarray(a, dtype=np.float64)
+
+
+def tensors(a: np.ndarray, tensor_order: str | None, where: str) -> np.ndarray:
+    """(n, 9) row-major or (n, 6) symmetric tensor arrays → (n, 3, 3)."""
+    if a.shape[1] == 9:
+        return a.reshape(-1, 3, 3)
+    if a.shape[1] != 6:
+        raise ResultantsError(f"{where}: global axes need whole 3 × 3 tensor arrays (9 components, or 6 with "
+                              f"[result_files] tensor_order); this one has {a.shape[1]}")
+    out = np.empty((len(a), 3, 3))
+    for j, name in enumerate(TENSOR6[tensor_order] if tensor_order else ()):
+        r, c = "xyz".index(name[0]), "xyz".index(name[1])
+        out[:, r, c] = out[:, c, r] = a[:, j]
+    if tensor_order is None:
+        component_index("xx", 6, None, where)          # raises: the order must be declared
+    return out
+
+
+def project(T: np.ndarray, frames: Sequence[np.ndarray]) -> np.ndarray:
+    """Global tensors (n, 3, 3) in each cell's element frame: Eᵀ T E with E = [x y n] (columns)."""
+    E = np.stack([np.asarray(f, dtype=np.float64) for f in frames], axis=-1)
+    return np.einsum("cai,cab,cbj->cij", E, T, E)
+
+
 def assemble(arrays: Mapping[str, np.ndarray], n_cells: int, fields: ResultantFields = ResultantFields(),
-             where: str = "") -> np.ndarray:
-    """Gather the named cell arrays of one case into (n_cells, 8) float64.
+             where: str = "", tensor_order: str | None = None,
+             frames: Sequence[np.ndarray] | None = None) -> np.ndarray:
+    """Gather the named arrays of one case into (n_cells, 8) float64.
+
+    Components are picked as ``fields`` says (:func:`bridge.definition.resultants.component_index`). With
+    ``frames`` (global axes), N, M and Q are read from whole tensor arrays and projected on each cell's
+    plane: N = (Txx, Tyy, Txy), Q = (Txz, Tyz) of the projected tensor T.
 
     Raises
     ------
@@ -44,22 +84,27 @@ def assemble(arrays: Mapping[str, np.ndarray], n_cells: int, fields: ResultantFi
         or a cell count other than ``n_cells``.
     """
     layout = fields.layout()
-    missing = [name for name, _ in layout if name not in arrays]
+    missing = [name for name, _, _ in layout if name not in arrays]
     if missing:
         raise ResultantsError(f"missing resultant array(s) {', '.join(map(repr, missing))}{where}; found "
                               f"{', '.join(map(repr, sorted(arrays))) or 'no cell arrays'}. Set the array "
-                              "names in the resultant fields")
+                              "names in [fields]")
     out = np.zeros((n_cells, 8))
-    for name, sl in layout:
-        a0 = np.asarray(arrays[name])
+    for name, sl, picks in layout:
+        a = _columns(arrays, name, n_cells, where)
         want = sl.stop - sl.start
-        a = a0[:, None] if a0.ndim == 1 else a0
-        if a.ndim != 2 or a.shape[1] != want:
-            raise ResultantsError(f"array {name!r}{where} has shape {a0.shape}; expected "
-                                  f"({n_cells}, {want}) ({want} component(s))")
-        if a.shape[0] != n_cells:
-            raise ResultantsError(f"array {name!r}{where} has {a.shape[0]} cells but the mesh has "
-                                  f"{n_cells}; use the result file of this mesh")
+        if frames is not None:
+            if fields.scalars is not None:
+                raise ResultantsError("global axes need tensor arrays for N, M and Q, not eight scalars")
+            T = project(tensors(a, tensor_order, f"array {name!r}{where}"), frames)
+            out[:, sl] = (np.stack([T[:, 0, 0], T[:, 1, 1], T[:, 0, 1]], 1) if want == 3
+                          else np.stack([T[:, 0, 2], T[:, 1, 2]], 1))
+            continue
+        if picks is not None:
+            a = a[:, [component_index(c, a.shape[1], tensor_order, f"array {name!r}{where}") for c in picks]]
+        elif a.shape[1] != want:
+            raise ResultantsError(f"array {name!r}{where} has {a.shape[1]} component(s); expected {want}, or "
+                                  "pick them: { array = ..., components = [...] } in [fields]")
         out[:, sl] = a
     return out
 
@@ -105,7 +150,7 @@ def to_element_frame(R: np.ndarray, frame: str, material_angle_deg: np.ndarray |
     ``Q_e = [[c, −s], [s, c]] Q``.
     """
     R = np.asarray(R, dtype=np.float64)
-    if frame == "element":
+    if frame in ("element", "global"):      # global tensors were projected on the element planes when read
         return R.copy()
     if frame == "laminate":
         if material_angle_deg is None:
@@ -125,7 +170,7 @@ def to_element_frame(R: np.ndarray, frame: str, material_angle_deg: np.ndarray |
                                   f"cell(s): {_few(ids)}; fix the vector array")
         theta = np.arctan2(np.einsum("ij,ij->i", u, y), np.einsum("ij,ij->i", u, x))
     else:
-        raise ResultantsError(f"resultant frame {frame!r} unknown; use element, laminate or vectors")
+        raise ResultantsError(f"resultant frame {frame!r} unknown; use element, laminate, global or vectors")
     if theta.shape != R.shape[-2:-1]:
         raise ResultantsError(f"{theta.size} angles for {R.shape[-2]} cells")
     c, s = np.cos(theta), np.sin(theta)
@@ -197,8 +242,10 @@ class ResultantSource:
     """
 
     def __init__(self, path_or_paths, n_cells: int, fields: ResultantFields = ResultantFields(),
-                 settings: ResultantSettings = ResultantSettings(), axes: CellAxes = CellAxes()):
-        self.files: StepFiles = open_step_files(path_or_paths, n_cells)
+                 settings: ResultantSettings = ResultantSettings(), axes: CellAxes = CellAxes(),
+                 options: ResultFiles = ResultFiles(), mesh=None):
+        self.files: StepFiles = open_step_files(path_or_paths, n_cells, options, mesh)
+        self.options = options
         self.names = self.files.names
         self.settings = settings
         self.axes = axes
@@ -208,9 +255,9 @@ class ResultantSource:
             if len(set(self.names)) != len(self.names):
                 raise ResultantsError(f"duplicate case names {list(self.names)}; name each load case once")
             if self.files.h5_path is not None:
-                if settings.frame == "vectors":
-                    raise ResultantsError("frame = 'vectors' is not available for HDF5 resultants; give the "
-                                          "resultants in the element frame or laminate axes ([resultants] frame)")
+                if settings.frame in ("vectors", "global"):
+                    raise ResultantsError(f"frame = {settings.frame!r} is not available for HDF5 resultants; give "
+                                          "the resultants in the element frame or laminate axes ([resultants] frame)")
                 self.reader = H5Steps(self.files.h5_path, settings)
             else:
                 self._data = self._read_all(n_cells, fields)
@@ -221,13 +268,18 @@ class ResultantSource:
     def of_model(cls, path_or_paths, model) -> "ResultantSource":
         """The resultants of a model, with the definition's ``[fields]`` and ``[resultants]`` settings."""
         return cls(path_or_paths, model.n_cells, model.defn.fields, model.defn.resultants,
-                   CellAxes(model.phi, (model.frame_x, model.frame_y, model.normal)))
+                   CellAxes(model.phi, (model.frame_x, model.frame_y, model.normal)), model.defn.result_files,
+                   model.mesh)
 
     def _read_all(self, n_cells: int, fields: ResultantFields) -> np.ndarray:
         names, files, settings = self.names, self.files, self.settings
         R = np.empty((len(names), n_cells, 8))
+        frames = self.axes.frames if settings.frame == "global" else None
+        if settings.frame == "global" and frames is None:
+            raise ResultantsError("resultants in global axes need the element frames of every cell")
         for i in range(len(names)):
-            R[i] = assemble(files.arrays(i), n_cells, fields, f" in case {names[i]!r}")
+            R[i] = assemble(files.arrays(i), n_cells, fields, f" in case {names[i]!r}", self.options.tensor_order,
+                            frames)
         vectors = None
         if settings.frame == "vectors":
             if settings.vectors is None or settings.vectors not in files.extra:

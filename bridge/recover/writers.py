@@ -24,7 +24,7 @@ def resultant_arrays(R_case: np.ndarray, fields: ResultantFields = ResultantFiel
     """
     R_case = np.asarray(R_case, dtype=np.float64)
     return {name: (R_case[:, sl][:, 0] if sl.stop - sl.start == 1 else R_case[:, sl].copy())
-            for name, sl in fields.layout()}
+            for name, sl, _ in fields.layout()}
 
 
 def _check_cases(case_names: Sequence[str], R: np.ndarray) -> np.ndarray:

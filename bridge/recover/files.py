@@ -129,13 +129,16 @@ def _file_cases(path: str, head: bytes, n_cells: int, options: ResultFiles,
         if len(steps) == 1:
             return split_cases(steps[0].cell_data, default)
         return {s.name: dict(s.cell_data) for s in steps}, dict(grid_mesh.cell_data)
-    try:
-        found = read_mesh(path)
-    except MeshError as err:
-        if "no shell cells" not in err.detail:
-            raise
-        from bridge.mesh.cloud import read_point_cloud
+    from bridge.mesh.cloud import is_point_cloud, read_point_cloud
 
+    found = None
+    if not is_point_cloud(head):
+        try:
+            found = read_mesh(path)
+        except MeshError as err:
+            if "no shell cells" not in err.detail:
+                raise
+    if found is None:
         return split_cases(cloud_to_cells(read_point_cloud(path), n_cells, options, mesh), default)
     _check_cells(found.n_cells, n_cells, path)
     return split_cases(found.cell_data, default)

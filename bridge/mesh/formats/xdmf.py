@@ -15,10 +15,10 @@ Layout written
   share the mesh datasets.
 - The .h5 is written first, then the XML; both are replaced atomically.
 
-Other readers: meshio 5.3.5 reads our single-grid files, including
-triangle + quad ``Mixed`` topologies, but not a ``Mixed`` topology with
-``Triangle_6`` / ``Quadrilateral_8`` cells. Cell arrays with 1, 2, 3, 6 or 9
-components are what meshio and most viewers accept; our reader takes any count.
+Cell arrays are written so that VTK's XDMF reader sees their true component
+count (1: ``Scalar``; 2: ``Matrix`` (n, 1, 2); more: ``Vector``), meshio and our
+reader give (n, k); meshio cannot read a ``Mixed`` topology with quadratic cells.
+Reading follows XInclude references within the file (:mod:`bridge.mesh.xinclude`).
 """
 
 from __future__ import annotations
@@ -74,8 +74,9 @@ class Step:
 # ----------------------------------------------------------------------------- writing
 
 def _attr_type(a: np.ndarray) -> str:
+    """Scalar (1 component), Matrix of shape (n, 1, 2) (2), Vector (3 or more): as VTK's reader takes them."""
     k = 1 if a.ndim == 1 else a.shape[1]
-    return {1: "Scalar", 3: "Vector", 6: "Tensor6", 9: "Tensor"}.get(k, "Matrix")
+    return {1: "Scalar", 2: "Matrix"}.get(k, "Vector")
 
 
 def _number_type(a: np.ndarray) -> tuple[str, str]:
@@ -131,7 +132,7 @@ def _grid(mesh: ShellMesh, w: _H5Writer, data: Mapping[str, np.ndarray], group: 
         if a.ndim == 2 and a.shape[1] == 1:
             a = a[:, 0]
         att = ET.SubElement(grid, "Attribute", Name=key, AttributeType=_attr_type(a), Center="Cell")
-        att.append(w.item(f"{group}/{i}", a))
+        att.append(w.item(f"{group}/{i}", a[:, None, :] if a.ndim == 2 and a.shape[1] == 2 else a))
     return grid
 
 
@@ -207,6 +208,9 @@ class _Reader:
             raise MeshError(f"not well-formed XML ({exc}); the file may be truncated", path) from None
         if self.root.tag != "Xdmf":
             raise MeshError(f"root element is <{self.root.tag}>, not <Xdmf>", path)
+        from bridge.mesh.xinclude import resolve_includes
+
+        resolve_includes(self.root, path)
 
     def data(self, item: ET.Element | None) -> np.ndarray:
         if item is None:
@@ -259,7 +263,10 @@ class _Reader:
                     walk(child)
             else:
                 out.append(g)
-        for g in (domain.findall("Grid") if domain is not None else []):
+        tops = domain.findall("Grid") if domain is not None else []
+        if any(g.get("GridType") == "Collection" for g in tops):   # shared mesh grids outside are not steps
+            tops = [g for g in tops if g.get("GridType") == "Collection"]
+        for g in tops:
             walk(g)
         if not out:
             raise MeshError("no <Grid> in the <Domain>", self.path)
@@ -289,8 +296,12 @@ class _Reader:
         raise _Unsupported(f"geometry {gtype!r}")
 
     def cell_arrays(self, grid: ET.Element) -> dict[str, np.ndarray]:
-        return {a.get("Name", f"array{i}"): self.data(a.find("DataItem"))
-                for i, a in enumerate(grid.findall("Attribute")) if a.get("Center", "Node") == "Cell"}
+        out = {}
+        for i, a in enumerate(grid.findall("Attribute")):
+            if a.get("Center", "Node") == "Cell":
+                d = self.data(a.find("DataItem"))
+                out[a.get("Name", f"array{i}")] = d[:, 0] if d.ndim == 3 and d.shape[1] == 1 else d
+        return out
 
 
 def _split_mixed(flat: np.ndarray, where: str) -> list[tuple[str, np.ndarray]]:

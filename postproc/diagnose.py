@@ -2,7 +2,7 @@
 
 Every hypothesis of :data:`postproc.hypotheses.HYPOTHESES` is tried on each failing zone; when no single one
 brings the zone within tolerance, pairs are searched (the best variant of one hypothesis, then every variant of
-another). A **best fix** is named only when it removes most of the discrepancy (residual below
+another, in either order). A **best fix** is named only when it removes most of the discrepancy (residual below
 :data:`BEST_FRACTION` of the original); otherwise the zone is "unexplained" and the three best partial
 candidates are listed with their residuals.
 """
@@ -58,7 +58,7 @@ def diagnose_zone(z: ZoneData, tolerance: float) -> dict:
     if not any(f["residual"] <= tolerance for f in singles):
         for first in singles:
             for rank, h in enumerate(HYPOTHESES):
-                if rank <= first["_rank"][0]:
+                if rank == first["_rank"][0]:
                     continue
                 best = _best_variant(h, first["_variant"])
                 if best is not None:
@@ -67,9 +67,15 @@ def diagnose_zone(z: ZoneData, tolerance: float) -> dict:
                                         best[1], best[0], base, first["_rank"] + (rank,)))
     found.sort(key=lambda f: (f["residual"] > tolerance, len(f["_rank"]) if f["residual"] <= tolerance else 0,
                               f["residual"], f["_rank"]))
-    for f in found:
+    seen, unique = set(), []
+    for f in found:                                   # a pair found in both orders is listed once
+        key = frozenset(f["name"].split(" + "))
+        if key not in seen:
+            seen.add(key)
+            unique.append(f)
         f.pop("_rank")
         f.pop("_variant")
+    found = unique
     explained = [f for f in found if f["residual"] <= tolerance]
     top = found[0] if found and found[0]["residual"] < BEST_FRACTION * base else None
     return {"zone": z.name, "discrepancy": base, "explained": explained, "best": top,

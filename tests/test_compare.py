@@ -265,6 +265,69 @@ def test_planted_error_fails_and_is_named_first(world, name):
     assert first["fix"] and "{" not in first["fix"]
 
 
+WRITING = {
+    "stacking-order": lambda v, m: v[:, :, ::-1],
+    "ply-value-axes": lambda v, m: material_to_element(v, _angles(m), "stress"),
+    "top-bottom-swapped": lambda v, m: v[:, :, :, ::-1],
+    "unit-factor": lambda v, m: v * 145.0377,
+    "transverse-shear-swapped": lambda v, m: v[..., [0, 1, 2, 4, 3]],
+}
+
+
+def _angles(model):
+    from bridge.compare.solver_plies import ply_angles
+    return ply_angles(model)[None, :, :, None]
+
+
+def planted_pair(world, first, second):
+    """Two errors in the left zone: ``first`` in the inputs or the writing, then ``second`` in the writing."""
+    path, model, spec, ours = base(world)
+    if first in WRITING:
+        bad = WRITING[first](ours, model)
+    elif first == "resultant-frame":
+        from postproc.hypotheses import _rotate_resultants
+        bad = recovered(world, definition_text(), R=_rotate_resultants(world["R"], -model.phi))[3]
+    elif first == "ply-angle-sign":
+        bad = recovered(world, definition_text(left_angles=(0, -30, 45, -90, -60)))[3]
+    elif first == "twisting-moment-sign":
+        R = world["R"].copy()
+        R[..., 5] *= -1
+        bad = recovered(world, definition_text(), R=R)[3]
+    bad = WRITING[second](bad, model)
+    return path, write_solver(world, in_zone(world, "left", bad, ours), spec, model)
+
+
+PAIRS = [("resultant-frame", "unit-factor"), ("ply-value-axes", "stacking-order"),
+         ("twisting-moment-sign", "top-bottom-swapped"), ("ply-angle-sign", "unit-factor"),
+         ("resultant-frame", "stacking-order"), ("top-bottom-swapped", "transverse-shear-swapped")]
+
+
+@pytest.mark.parametrize("pair", PAIRS, ids=["+".join(p) for p in PAIRS])
+def test_planted_pair_is_named_first(world, pair):
+    path, solver = planted_pair(world, *pair)
+    code, summary = run(world, path, solver)
+    assert code == 1
+    d = summary["diagnosis"][0]
+    top = d["explained"][0]
+    assert set(top["name"].split(" + ")) == set(pair) and top["residual"] < 1e-6, d["explained"][:3]
+    assert d["best"]["name"] == top["name"] and len(top["fix"].split("; ")) == 2
+
+
+def test_unexplained_zone_lists_three_partial_candidates(world):
+    path, model, spec, ours = base(world)
+    bad = ours.copy()
+    rng = np.random.default_rng(0)
+    bad[:, :, :, :, :3] *= 1 + 0.5 * rng.standard_normal(bad[..., :3].shape)   # no convention error does this
+    code, summary = run(world, path, write_solver(world, in_zone(world, "left", bad, ours), spec, model))
+    d = summary["diagnosis"][0]
+    assert d["explained"] == [] and d["best"] is None and len(d["candidates"]) == 3
+    assert all(c["residual"] > 0.1 * d["discrepancy"] for c in d["candidates"])
+    assert any(line.startswith("cause\tleft\tunexplained") for line in
+               CliRunner().invoke(main, ["compare", str(path), str(world["dir"] / "mesh.vtu"),
+                                         str(world["dir"] / "res.vtu"), str(world["dir"] / "solver.vtu"), "-o",
+                                         str(world["dir"] / "cmp.h5"), "--quiet"]).stdout.splitlines())
+
+
 def test_two_errors_in_two_zones(world):
     path, model, spec, ours = base(world)
     left = recovered(world, definition_text(left_angles=(0, -30, 45, -90, -60)))[3]
@@ -326,3 +389,22 @@ def test_bad_tolerance_is_input_error(world):
     path, model, spec, ours = base(world)
     with pytest.raises(InputError, match="tolerance"):
         run_compare(str(path), "m", ["r"], ["s"], "o.h5", tolerance=-1.0)
+
+
+def test_reversed_element_axes_output_of_an_unsymmetric_stack(world):
+    """The reversal is applied to the values as written (element axes), before any rotation into ply axes."""
+    text = definition_text().replace('components = ["sigma1", "sigma2", "tau12", "tau13", "tau23"]',
+                                     'axes = "element"\ncomponents = ["sigma_x", "sigma_y", "tau_xy", "tau_xz", '
+                                     '"tau_yz"]')
+    path, model, spec, ours = recovered(world, text, name="element-axes.toml")
+    written = material_to_element(ours, _angles(model), "stress")
+    planted = in_zone(world, "left", written[:, :, ::-1], written)        # angles (0, 30, -45, 90, 60): no palindrome
+    arrays = {}
+    for j, c in enumerate(CASES):
+        for k in range(planted.shape[2]):
+            for q, p in enumerate(("bottom", "middle", "top")):
+                arrays[f"ply{k + 1}_{p}@{c}"] = np.nan_to_num(planted[j, :, k, q])
+    vtu.write(world["dir"] / "reversed.vtu", world["mesh"], arrays)
+    code, summary = run(world, path, world["dir"] / "reversed.vtu")
+    assert code == 1
+    assert summary["diagnosis"][0]["explained"][0]["name"] == "stacking-order"

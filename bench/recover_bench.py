@@ -51,7 +51,7 @@ def inputs(work: Path, n_cells: int, n_cases: int) -> dict[str, str]:
     import h5py
 
     from bridge.mesh.formats import write_mesh
-    from bridge.recover.resultants import H5_DATASET
+    from bridge.recover.files import H5_DATASET
 
     folder = work / f"c{n_cells}-k{n_cases}"
     paths = {"definition": folder / "def.toml", "mesh": folder / "mesh.xdmf", "resultants": folder / "res.h5"}

@@ -63,6 +63,11 @@ def compare_section_html(summary: dict) -> str:
             f"{_num(summary.get('max_discrepancy'))} against a tolerance of {_num(summary.get('tolerance'))}; "
             f"{_num(100 * summary.get('fraction_cells_within', 0.0), '.1f')} % of cells within tolerance, "
             f"{_num(summary.get('compared_values'), 'd')} values compared.</p>")
+    cov = summary.get("coverage")
+    if cov:
+        zones = "; ".join(f"{escape(str(z))}: {escape(str(c.get('text', '')))}"
+                          for z, c in cov.get("zones", {}).items())
+        head += f"<p>Coverage: {escape(str(cov.get('text', '')))} ({zones}).</p>"
     if summary.get("note"):
         head += f"<p>{escape(str(summary['note']))}</p>"
     zones = _table(["zone", "cells", "largest relative difference", "cells within"],

@@ -81,7 +81,8 @@ def test_absolute_z_and_surfaces(tmp_path):
 
 
 def test_per_cell_axes_vectors(tmp_path):
-    table = 'axes = "vectors"\nvectors = "axis"\ncomponents = ["sigma_x", "sigma_y", "tau_xy"]\npattern = "p{ply}_{point}"\n'
+    table = ('axes = "vectors"\nvectors = "axis"\ncomponents = ["sigma_x", "sigma_y", "tau_xy"]\n'
+             'pattern = "p{ply}_{point}"\n')
     defn, mesh, model, ours = setup(tmp_path, table)
     theta = np.linspace(-60, 80, mesh.n_cells)
     axis = np.stack([np.cos(np.radians(theta)), np.sin(np.radians(theta)), np.zeros(mesh.n_cells)], 1)

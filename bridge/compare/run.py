@@ -175,6 +175,9 @@ def compare_inputs(inp: CompareInputs, tolerance: float, runner=None, progress: 
         notes.append(f"combination(s) {', '.join(inp.skipped)} not checked: the solver gives no ply values for them")
     if cmp.compared == 0:
         notes.append("no value compared: the solver's ply arrays hold no finite value where plies exist")
+    if inp.spec.axes != "global" and not {3, 4} & set(inp.spec.slots):
+        notes.append("transverse shear not compared: [solver_plies] components name no transverse component "
+                     "(a solver may distribute it through the thickness its own way)")
     if notes:
         summary["note"] = "; ".join(notes)
     failing = [] if cmp.passed else [name for name, z in summary["zones"].items()

@@ -184,8 +184,8 @@ class SolverPlySource:
                 found = ", ".join(sorted(arrays)[:12]) or "no arrays"
                 raise ResultantsError(f"missing solver ply array {name!r}{where}; found {found}. Fix "
                                       "[solver_plies] pattern, points, locations or ply_base")
-            a0 = np.asarray(arrays[name])
-            a = (a0[:, None] if a0.ndim == 1 else a0.reshape(len(a0), -1))[cells].astype(np.float64)
+            part = np.asarray(arrays[name][cells])                 # only these rows (lazy HDF5 arrays stay put)
+            a = (part[:, None] if part.ndim == 1 else part.reshape(len(part), -1)).astype(np.float64)
             if spec.axes == "global":
                 T = project(tensors(a, self.tensor_order, f"solver ply array {name!r}{where}"), frames)
                 out[:] = np.stack([T[:, 0, 0], T[:, 1, 1], T[:, 0, 1], T[:, 0, 2], T[:, 1, 2]], axis=1)

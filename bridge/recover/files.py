@@ -124,7 +124,7 @@ def _file_cases(path: str, head: bytes, n_cells: int, options: ResultFiles,
 
     default = Path(path).parent.name if options.case_names == "folder" else Path(path).stem
     if xdmf.sniff(head):
-        grid_mesh, steps = xdmf.read_series(path)
+        grid_mesh, steps = xdmf.read_series(path, lazy=True)
         _check_cells(grid_mesh.n_cells, n_cells, path)
         if len(steps) == 1:
             return split_cases(steps[0].cell_data, default)

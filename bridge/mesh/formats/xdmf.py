@@ -32,6 +32,8 @@ from typing import Mapping, Sequence
 import numpy as np
 
 from bridge.atomic import atomic_path, write_text
+from bridge.mesh.lazy import LazyH5
+from bridge.mesh.mixed import MIXED_ID, split_mixed as _split_mixed
 from bridge.mesh.shell import NODES_PER_CELL, ShellMesh, flatten_cell_data, shell_mesh_from_blocks
 from shells.errors import MeshError
 
@@ -45,10 +47,6 @@ _TOPOLOGY_IN = {"Triangle": "triangle", "Quadrilateral": "quad", "Triangle_6": "
                 "Tri_6": "triangle6", "Quadrilateral_8": "quad8", "Quad_8": "quad8",
                 "Quadrilateral_9": "quad9", "Quad_9": "quad9", "Polyline": "line", "Polyvertex": "vertex",
                 "Tetrahedron": "tetra", "Hexahedron": "hexahedron", "Wedge": "wedge", "Pyramid": "pyramid"}
-#: XDMF Mixed-topology type numbers -> (meshio type, nodes); 0 nodes = count follows the type.
-MIXED_ID = {1: ("vertex", 0), 2: ("line", 0), 4: ("triangle", 3), 5: ("quad", 4), 6: ("tetra", 4),
-            7: ("pyramid", 5), 8: ("wedge", 6), 9: ("hexahedron", 8), 0x22: ("line3", 3),
-            0x23: ("quad9", 9), 0x24: ("triangle6", 6), 0x25: ("quad8", 8)}
 _MIXED_OUT = {"triangle": 4, "quad": 5, "triangle6": 0x24, "quad8": 0x25}
 _DTYPES = {("Float", "4"): np.float32, ("Float", "8"): np.float64, ("Int", "1"): np.int8,
            ("Int", "2"): np.int16, ("Int", "4"): np.int32, ("Int", "8"): np.int64,
@@ -212,7 +210,7 @@ class _Reader:
 
         resolve_includes(self.root, path)
 
-    def data(self, item: ET.Element | None) -> np.ndarray:
+    def data(self, item: ET.Element | None, lazy: bool = False) -> np.ndarray:
         if item is None:
             raise MeshError("an element has no DataItem", self.path)
         if item.get("Reference"):
@@ -220,7 +218,7 @@ class _Reader:
             target = self.root.find("." + ref[len("/Xdmf"):]) if ref.startswith("/Xdmf") else None
             if target is None:
                 raise _Unsupported(f"reference {ref!r}")
-            return self.data(target)
+            return self.data(target, lazy)
         if item.get("ItemType", "Uniform") != "Uniform":
             raise _Unsupported(f"DataItem ItemType {item.get('ItemType')}")
         dims = [int(d) for d in item.get("Dimensions", "").split()]
@@ -231,21 +229,23 @@ class _Reader:
             dtype = _DTYPES.get(key, np.float64)
             a = np.array(text.split(), dtype=dtype) if text else np.zeros(0, dtype)
         elif fmt == "HDF":
-            a = self._hdf(text)
+            a = self._hdf(text, lazy)
+            if isinstance(a, LazyH5):
+                return a if tuple(dims) in ((), a.shape, a.shape[:1] + (1,) + a.shape[1:]) else a.eager(dims)
         else:
             raise _Unsupported(f"DataItem Format {fmt}")
         if dims and int(np.prod(dims)) == a.size:
             a = a.reshape(dims)
         return a
 
-    def _hdf(self, text: str) -> np.ndarray:
+    def _hdf(self, text: str, lazy: bool = False) -> np.ndarray:
         import h5py
 
         fname, _, h5path = text.rpartition(":")
         full = self.folder / fname
         try:
             with h5py.File(full, "r", locking=False) as h5:
-                return h5[h5path][()]
+                return LazyH5(str(full), h5path, h5[h5path].shape) if lazy else h5[h5path][()]
         except FileNotFoundError:
             raise MeshError(f"data file {full} not found; keep the .h5 beside the .xdmf", self.path) from None
         except KeyError:
@@ -295,41 +295,13 @@ class _Reader:
             return np.column_stack([self.data(d).ravel() for d in geo.findall("DataItem")]).astype(np.float64)
         raise _Unsupported(f"geometry {gtype!r}")
 
-    def cell_arrays(self, grid: ET.Element) -> dict[str, np.ndarray]:
+    def cell_arrays(self, grid: ET.Element, lazy: bool = False) -> dict[str, np.ndarray]:
         out = {}
         for i, a in enumerate(grid.findall("Attribute")):
             if a.get("Center", "Node") == "Cell":
-                d = self.data(a.find("DataItem"))
+                d = self.data(a.find("DataItem"), lazy)
                 out[a.get("Name", f"array{i}")] = d[:, 0] if d.ndim == 3 and d.shape[1] == 1 else d
         return out
-
-
-def _split_mixed(flat: np.ndarray, where: str) -> list[tuple[str, np.ndarray]]:
-    """Split a Mixed topology into runs of one type, vectorised over each run."""
-    blocks, r, n = [], 0, len(flat)
-    while r < n:
-        tid = int(flat[r])
-        if tid not in MIXED_ID:
-            raise MeshError(f"unknown cell type number {tid} in a Mixed topology", where)
-        ctype, nn = MIXED_ID[tid]
-        if nn == 0:  # polyvertex / polyline: the node count follows
-            k = int(flat[r + 1])
-            blocks.append((ctype, flat[r + 2:r + 2 + k][None, :]))
-            r += 2 + k
-            continue
-        stride, count, w = nn + 1, 0, 16
-        while r + (count + 1) * stride <= n:
-            m = min(w, (n - r) // stride - count)
-            heads = flat[r + count * stride:r + (count + m) * stride:stride]
-            bad = np.flatnonzero(heads != tid)
-            if bad.size:
-                count += int(bad[0])
-                break
-            count, w = count + m, w * 2
-        conn = flat[r:r + count * stride].reshape(count, stride)[:, 1:]
-        blocks.append((ctype, conn))
-        r += count * stride
-    return blocks
 
 
 def _per_block(arrays: Mapping[str, np.ndarray], blocks) -> dict[str, list[np.ndarray]]:
@@ -370,13 +342,15 @@ def _step_name(grid: ET.Element, index: int) -> tuple[str, float | None]:
     return grid.get("Name") or f"step{index + 1}", time
 
 
-def read_series(path: str | os.PathLike) -> tuple[ShellMesh, list[Step]]:
+def read_series(path: str | os.PathLike, lazy: bool = False) -> tuple[ShellMesh, list[Step]]:
     """Read the mesh of the first grid and every grid's cell arrays as steps.
 
     Returns
     -------
     mesh : ShellMesh
         The mesh of the first grid.
+    lazy : bool
+        Leave the steps' HDF5 arrays in the file (:class:`bridge.mesh.lazy.LazyH5`, read by rows on demand).
     steps : list of Step
         One per uniform grid in document order. Names come from an
         ``<Information Name="case" Value=...>`` element, else the ``<Time>``
@@ -393,7 +367,7 @@ def read_series(path: str | os.PathLike) -> tuple[ShellMesh, list[Step]]:
             blocks = reader.cells(g) if g.find("Topology") is not None else reader.cells(grids[0])
             keep = np.concatenate([np.full(len(c), t in NODES_PER_CELL or t in ("quad9", "triangle7"))
                                    for t, c in blocks])
-            arrays = {k: a[keep] for k, a in reader.cell_arrays(g).items()
+            arrays = {k: a if keep.all() else a[keep] for k, a in reader.cell_arrays(g, lazy).items()
                       if a.ndim and a.shape[0] == len(keep)}
             steps.append(Step(*_step_name(g, i), arrays))
     except _Unsupported as exc:

@@ -97,3 +97,32 @@ def test_unreachable_scheduler_is_one_clear_error(model, tmp_path):
         with pytest.raises(InputError, match="cannot reach the scheduler"):
             _run(model, tmp_path / "x.h5", scheduler="tcp://127.0.0.1:9")
     assert list(tmp_path.iterdir()) == []
+
+
+def test_compare_on_workers_equals_serial(tmp_path, client):
+    """compare streams its blocks through the same runners: dask workers give the serial comparison."""
+    from bridge.compare.run import run_compare
+    from bridge.compare.solver_plies import solver_arrays
+    from bridge.definition.loader import load_definition
+    from bridge.mesh.formats import read_mesh, vtu
+    from bridge.model.build import build_model
+    from postproc.compare import reference_values
+    from tests.corpus.models import DEFINITION
+
+    paths = write_model(tmp_path, nx=12, ny=10,
+                        definition=DEFINITION + '\n[solver_plies]\npattern = "p{ply}_{point}"\n')
+    defn = load_definition(paths["definition"])
+    model = build_model(defn, read_mesh(paths["mesh"]))
+    R = resultants(model.n_cells)
+    ours = reference_values(model.tables(), model.section, model.phi, R, np.zeros((3, model.n_cells)), None, None,
+                            "stress")
+    ours[1] *= 1 + 1e-4 * np.random.default_rng(1).standard_normal(ours[1].shape)   # a small, real discrepancy
+    arrays = {f"{k}@case{j + 1}": v for j in range(3) for k, v in solver_arrays(ours[j], defn.solver_plies,
+                                                                                  model).items()}
+    vtu.write(tmp_path / "plies.vtu", model.mesh, arrays)
+    args = (str(paths["definition"]), str(paths["mesh"]), [str(paths["resultants"])], [str(tmp_path / "plies.vtu")])
+    serial = run_compare(*args, str(tmp_path / "s.h5"), block_cells=BLOCK)
+    dist = run_compare(*args, str(tmp_path / "d.h5"), block_cells=BLOCK, client=client)
+    assert serial == dist and serial["compared_values"] > 0 and serial["max_discrepancy"] > 0
+    with h5py.File(tmp_path / "s.h5", "r") as a, h5py.File(tmp_path / "d.h5", "r") as b:
+        assert np.array_equal(a["cells/discrepancy"][()], b["cells/discrepancy"][()], equal_nan=True)

@@ -17,7 +17,8 @@ import pytest
 from bridge.mesh.formats import vtu
 from bridge.model.frames import element_frames
 from bridge.definition.resultants import ResultantFields, ResultantSettings
-from bridge.recover.resultants import (nonfinite_mask, read_resultants, resultant_arrays, to_element_frame, write_resultants_h5, write_resultants_xdmf)
+from bridge.recover.resultants import nonfinite_mask, read_resultants, to_element_frame
+from bridge.recover.writers import resultant_arrays, write_resultants_h5, write_resultants_xdmf
 from shells.errors import InputError, ResultantsError
 from tests.meshes import mixed_plate, warped_plate
 

@@ -30,8 +30,7 @@ class ZoneData:
 
     Attributes
     ----------
-    name : str
-    section : Section
+    name, section : str, Section
     phi : (n,) material angle of each cell, degrees
     R : (ncase, n, 8) resultants in the element frame; dT (ncase, n); dM, pres (ncase,)
     ours, solver : (ncase, n, nply, 3, 5) material axes (postproc.compare), NaN where not given

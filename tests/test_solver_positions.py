@@ -20,10 +20,10 @@ from tests.meshes import flat_plate
 BASE = """
 units = "N-mm"
 [materials.cf]
-E1 = 140000
-E2 = 9000
-G12 = 4600
+E1 = "140 GPa"
 nu12 = 0.3
+E2 = "9 GPa"
+G12 = "4.6 GPa"
 [laminates.three]
 material = "cf"
 plies = [{angle = 20, thickness = 0.2}, {angle = -50, thickness = 0.3}, {angle = 75, thickness = 0.25}]

@@ -109,3 +109,32 @@ def test_z_on_an_interface_needs_a_ply(tmp_path, z):
     else:
         with pytest.raises(InputError, match="interface"):
             src.read_cells(slice(None))
+
+
+def test_global_stress_tensors_on_a_curved_shell(tmp_path):
+    """Global 3 × 3 ply stress tensors, T_g = E T_e Eᵀ (E = [x y n] of each cell), projected back on the cells."""
+    import tomllib
+
+    from tests.meshes import cylinder
+
+    text = (BASE.replace("orientation = { vector = [1, 0.4, 0] }", "orientation = { vector = [0, 0, 1] }")
+            + 'axes = "global"\npattern = "p{ply}_{point}"\n')
+    defn = parse_definition(tomllib.loads(text), "def.toml")
+    mesh = cylinder(n_theta=12, n_z=2)
+    model = build_model(defn, mesh)
+    n = mesh.n_cells
+    R = np.random.default_rng(10).normal(size=(1, n, 8)) * np.array([50, 40, 20, 9, 8, 5, 3, 2])
+    ours = reference_values(model.tables(), model.section, model.phi, R, np.zeros((1, n)), None, None, "stress")[0]
+    elem = material_to_element(ours[None], ply_angles(model)[None, :, :, None], "stress")[0]
+    E = np.stack([model.frame_x, model.frame_y, model.normal], axis=-1)
+    arrays = {}
+    for k in range(3):
+        for q, p in enumerate(("bottom", "middle", "top")):
+            v = elem[:, k, q]
+            T = np.zeros((n, 3, 3))
+            T[:, 0, 0], T[:, 1, 1], T[:, 0, 1], T[:, 0, 2], T[:, 1, 2] = v[:, 0], v[:, 1], v[:, 2], v[:, 3], v[:, 4]
+            T[:, 1, 0], T[:, 2, 0], T[:, 2, 1] = T[:, 0, 1], T[:, 0, 2], T[:, 1, 2]
+            arrays[f"p{k + 1}_{p}"] = np.einsum("cia,cab,cjb->cij", E, T, E).reshape(n, 9)
+    vtu.write(tmp_path / "g.vtu", mesh, arrays)
+    got = SolverPlySource([str(tmp_path / "g.vtu")], model, ("g",)).read_cells(slice(None)).material[0]
+    np.testing.assert_allclose(got, ours, atol=1e-9 * np.abs(ours).max())

@@ -128,7 +128,7 @@ def _file_cases(path: str, head: bytes, n_cells: int, options: ResultFiles,
         _check_cells(grid_mesh.n_cells, n_cells, path)
         if len(steps) == 1:
             return split_cases(steps[0].cell_data, default)
-        return {s.name: dict(s.cell_data) for s in steps}, dict(grid_mesh.cell_data)
+        return {s.name: dict(s.cell_data) for s in steps}, dict(steps[0].cell_data)
     from bridge.mesh.cloud import is_point_cloud, read_point_cloud
 
     found = None

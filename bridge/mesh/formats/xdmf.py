@@ -310,10 +310,10 @@ def _per_block(arrays: Mapping[str, np.ndarray], blocks) -> dict[str, list[np.nd
             for k, a in arrays.items() if a.ndim and a.shape[0] == off[-1]}
 
 
-def _mesh_of(reader: _Reader, grid: ET.Element) -> ShellMesh:
+def _mesh_of(reader: _Reader, grid: ET.Element, with_data: bool = True) -> ShellMesh:
     blocks = reader.cells(grid)
-    return shell_mesh_from_blocks(reader.points(grid), blocks,
-                                  _per_block(reader.cell_arrays(grid), blocks), source=reader.path)
+    data = _per_block(reader.cell_arrays(grid), blocks) if with_data else {}
+    return shell_mesh_from_blocks(reader.points(grid), blocks, data, source=reader.path)
 
 
 def read(path: str | os.PathLike) -> ShellMesh:
@@ -345,12 +345,13 @@ def _step_name(grid: ET.Element, index: int) -> tuple[str, float | None]:
 def read_series(path: str | os.PathLike, lazy: bool = False) -> tuple[ShellMesh, list[Step]]:
     """Read the mesh of the first grid and every grid's cell arrays as steps.
 
+    ``lazy`` leaves the steps' HDF5 arrays in the file (:class:`bridge.mesh.lazy.LazyH5`, read by rows on
+    demand), for series too large to hold.
+
     Returns
     -------
     mesh : ShellMesh
-        The mesh of the first grid.
-    lazy : bool
-        Leave the steps' HDF5 arrays in the file (:class:`bridge.mesh.lazy.LazyH5`, read by rows on demand).
+        The mesh of the first grid (without its cell arrays when ``lazy``).
     steps : list of Step
         One per uniform grid in document order. Names come from an
         ``<Information Name="case" Value=...>`` element, else the ``<Time>``
@@ -361,12 +362,16 @@ def read_series(path: str | os.PathLike, lazy: bool = False) -> tuple[ShellMesh,
     reader = _Reader(path)
     grids = reader.grids()
     try:
-        mesh = _mesh_of(reader, grids[0])
-        steps = []
+        mesh = _mesh_of(reader, grids[0], with_data=not lazy)
+        steps, kept = [], {}
         for i, g in enumerate(grids):
-            blocks = reader.cells(g) if g.find("Topology") is not None else reader.cells(grids[0])
-            keep = np.concatenate([np.full(len(c), t in NODES_PER_CELL or t in ("quad9", "triangle7"))
-                                   for t, c in blocks])
+            topo = g.find("Topology") if g.find("Topology") is not None else grids[0].find("Topology")
+            key = ET.tostring(topo)                    # steps sharing one topology dataset share its split
+            if key not in kept:
+                kept[key] = np.concatenate([np.full(len(c), t in NODES_PER_CELL or t in ("quad9", "triangle7"))
+                                            for t, c in reader.cells(g if g.find("Topology") is not None
+                                                                     else grids[0])])
+            keep = kept[key]
             arrays = {k: a if keep.all() else a[keep] for k, a in reader.cell_arrays(g, lazy).items()
                       if a.ndim and a.shape[0] == len(keep)}
             steps.append(Step(*_step_name(g, i), arrays))

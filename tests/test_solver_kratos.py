@@ -125,3 +125,13 @@ def test_planted_ply_order_error_is_named_first(solved):
     code, summary = compare(folder, files, path)
     assert code == 1
     assert summary["diagnosis"][0]["explained"][0]["name"] == "stacking-order"
+
+
+def test_recover_reads_the_native_files(solved):
+    folder, files = solved
+    out = CliRunner().invoke(main, ["recover", str(variant(folder, "recover")), str(files["pull"]["mesh"]),
+                                    str(files["pull"]["points"]), str(files["bend"]["points"]), "-o",
+                                    str(folder / "results.h5"), "--json", "--quiet"])
+    assert out.exit_code == 0, out.output
+    summary = json.loads(out.stdout)
+    assert summary["flagged_cells"] == 0 and summary["worst"]["case"] in ("pull", "bend", "both")

@@ -144,8 +144,9 @@ def main(argv=None) -> None:
     if proc.returncode:
         raise SystemExit(f"measurement failed:\n{proc.stderr[-3000:]}")
     r = json.loads(proc.stdout.strip().splitlines()[-1])
-    print(f"run_compare {r['seconds']:.1f} s, peak {r['peak_mib']:.0f} MiB (workers: "
-          f"{r['children_peak_mib']:.0f} MiB), {r['verdict']}, {r['compared_values']} values, {r['coverage']}")
+    workers = f" (largest worker process: {r['children_peak_mib']:.0f} MiB)" if args.workers else ""
+    print(f"run_compare {r['seconds']:.1f} s, peak {r['peak_mib']:.0f} MiB{workers}, {r['verdict']}, "
+          f"{r['compared_values']} values, {r['coverage']}")
 
 
 if __name__ == "__main__":

@@ -53,6 +53,45 @@ def _umask() -> int:
     return mask
 
 
+def close_h5(h5, discard: bool = False) -> None:
+    """Close an h5py file opened for writing; with ``discard``, its contents are given up first.
+
+    On a full disk HDF5 cannot flush its metadata when a file is closed, which leaves the library in a state
+    that fails again at exit (errors printed for every open object, at worst a crash). Truncating the file
+    first (its descriptor is still open) frees the space, so the close that follows succeeds; the caller
+    then removes the file.
+    """
+    if discard:
+        with contextlib.suppress(Exception):
+            os.ftruncate(h5.id.get_vfd_handle(), 0)
+    try:
+        h5.close()
+    except Exception:
+        if not discard:
+            close_h5(h5, discard=True)
+        raise
+
+
+@contextlib.contextmanager
+def atomic_h5(target: str | os.PathLike) -> Iterator:
+    """An h5py file open for writing at a temporary path beside ``target``, renamed onto it on success.
+
+    On any exception (a full disk included) the temporary file is given up (:func:`close_h5`) and removed;
+    ``target`` is untouched.
+    """
+    import h5py
+
+    with atomic_path(target) as tmp:
+        h5 = h5py.File(tmp, "w")
+        try:
+            yield h5
+        except BaseException:
+            with contextlib.suppress(Exception):
+                close_h5(h5, discard=True)
+            raise
+        close_h5(h5)
+
+
 def write_text(target: str | os.PathLike, text: str) -> None:
     """Write ``text`` (UTF-8) to ``target`` atomically."""
     with atomic_path(target) as tmp:

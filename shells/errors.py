@@ -8,6 +8,25 @@ The message names the file (when known), the entry and the fix.
 
 from __future__ import annotations
 
+import unicodedata
+
+#: Format characters that reorder text on a terminal or a page (bidirectional embeddings, overrides, isolates).
+BIDI_CONTROLS = frozenset(map(chr, (*range(0x202A, 0x202F), *range(0x2066, 0x206A))))
+
+
+def is_control(ch: str) -> bool:
+    """True for a character that must never reach a terminal raw: C0 and C1 controls (NUL, ESC, U+0085 …),
+    DEL, line and paragraph separators, and bidirectional controls."""
+    return unicodedata.category(ch) in ("Cc", "Zl", "Zp") or ch in BIDI_CONTROLS
+
+
+def printable(text: str) -> str:
+    """``text`` on one line and safe for a terminal: every control character written as an escape (``\\x1b``)."""
+    text = str(text)
+    if not any(is_control(ch) for ch in text):
+        return text
+    return "".join(ch.encode("unicode_escape").decode("ascii") if is_control(ch) else ch for ch in text)
+
 
 class PlybridgeError(Exception):
     """Base class of every error raised on purpose by plybridge."""
@@ -28,7 +47,8 @@ class InputError(PlybridgeError, ValueError):
     def __init__(self, message: str, source: str | None = None):
         self.source = source
         self.detail = message
-        super().__init__(f"{source}: {message}" if source else message)
+        # One line, nothing a terminal would act on: user strings inside messages are escaped here, once.
+        super().__init__(printable(f"{source}: {message}" if source else message))
 
     def within(self, source: str) -> "InputError":
         """Return the same error attributed to ``source`` (if it has none yet)."""

@@ -96,7 +96,7 @@ def test_bad_input_ends_cleanly(case, good_model, tmp_path):
     else:
         from bridge.results.store import StoreReader
 
-        assert left == ["RESULT.h5", "RESULT.hotspots.csv"], left
+        assert left == ["RESULT.h5", "RESULT.h5.hotspots.csv"], left
         with StoreReader(output) as st:
             assert st.array("cells/flagged").sum() == 3
 

@@ -86,7 +86,7 @@ def test_store_matches_hand_recovery(model, write_definition):
         assert list(h5["envelope/case"].attrs["names"]) == ["a", "b", "ab"]
         assert h5["cells/criterion"].attrs["names"][0] == "max-stress"
     assert float(summary["min_margin"]) == pytest.approx(min(16.33 / 2 - 1, 99), rel=1) and summary["units"] == "N-mm"
-    assert (model / "view.vtu").exists() and (model / "out.hotspots.csv").read_text().startswith("rank,cell")
+    assert (model / "view.vtu").exists() and (model / "out.h5.hotspots.csv").read_text().startswith("rank,cell")
 
 
 def test_missing_strength_names_material_and_key(model, write_definition):

@@ -65,7 +65,7 @@ def test_h5_layout_is_chunked(tmp_path, R):
     with h5py.File(tmp_path / "r.h5", "r") as h5:
         ds = h5["resultants"]
         assert ds.chunks == (1, R.shape[1], 8) and ds.compression == "gzip"
-        assert [str(s, "utf-8") if isinstance(s, bytes) else s for s in ds.attrs["case_names"]] == list(CASES)
+        assert [str(s, "utf-8") if isinstance(s, bytes) else s for s in h5["case_names"][()]] == list(CASES)
 
 
 def test_case_selection_and_unknown_cases(tmp_path, mesh, R):

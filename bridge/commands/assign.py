@@ -6,37 +6,43 @@ from pathlib import Path
 
 import click
 
-from shells.errors import InputError
+from shells.errors import InputError, printable
 
 
 def sections_path(output: str | Path) -> Path:
-    """The section table written beside a mesh output: ``OUT.sections.json``."""
+    """The section table written beside a mesh output, named from its full name: ``OUT.vtu.sections.json``."""
     out = Path(output)
-    return out.with_name(out.stem + ".sections.json")
+    return out.with_name(out.name + ".sections.json")
 
 
 @click.command(help="Assign laminates to the zones of MESH, orient them and write per-cell section fields "
                     "(element frame; docs/fields.md) to OUTPUT (.vtu or .xdmf), with the section table in "
-                    "laminate axes beside it as OUTPUT-stem.sections.json.")
+                    "laminate axes beside it as OUTPUT.sections.json (e.g. assigned.vtu.sections.json).")
 @click.argument("definition", type=click.Path(dir_okay=False))
 @click.argument("mesh", type=click.Path(dir_okay=False))
 @click.option("-o", "--output", required=True, type=click.Path(dir_okay=False), help="Output mesh (.vtu, .xdmf).")
 def assign(definition: str, mesh: str, output: str) -> None:
-    from bridge.atomic import write_text
+    from bridge.atomic import atomic_path
     from bridge.definition.loader import load_definition
+    from bridge.guards import guard_outputs
+    from bridge.mesh.checks import mesh_notes
     from bridge.mesh.formats import read_mesh, write_mesh
     from bridge.model.build import build_model, describe
     from bridge.model.fields import section_fields, section_table_json
 
     if not output.lower().endswith((".vtu", ".xdmf")):
         raise InputError(f"--output {output}: write a .vtu or .xdmf file")
+    guard_outputs({"definition": definition, "mesh": mesh},
+                  {"-o": output, "section table": sections_path(output)})
     defn = load_definition(definition)
     m = read_mesh(mesh)
     model = build_model(defn, m)
     fields = section_fields(model)
-    write_text(sections_path(output), section_table_json(model))
-    write_mesh(output, m, fields)
-    for note in m.notes:
-        click.echo(f"note: {note}", err=True)
+    with atomic_path(sections_path(output)) as tmp:  # both files or neither: the table is renamed last
+        tmp.write_text(section_table_json(model), encoding="utf-8")
+        write_mesh(output, m, fields)
+    for note in (*m.notes, *mesh_notes(m)):
+        click.echo(f"note: {printable(note)}", err=True)
     counts = ", ".join(f"{k}: {v}" for k, v in describe(model).items())
-    click.echo(f"assigned {model.n_cells} cells ({counts}); wrote {output} and {sections_path(output)}", err=True)
+    click.echo(printable(f"assigned {model.n_cells} cells ({counts}); wrote {output} and {sections_path(output)}"),
+               err=True)

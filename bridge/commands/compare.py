@@ -39,7 +39,11 @@ def compare(definition, mesh, resultants, solver_plies, output, tolerance, view,
             workers, scheduler, block_cells, quiet):
     from bridge.commands.recover import _progress
     from bridge.compare.run import run_compare, verdict_lines
+    from bridge.guards import guard_outputs
 
+    guard_outputs({"definition": definition, "mesh": mesh, "resultants": [resultants, *more],
+                   "solver ply values": list(solver_plies)},
+                  {"-o": output, "--view": view, "--map": map_png, "--fragment": fragment})
     printers = {}
 
     def progress(stage: str, done: int, total: int) -> None:
@@ -48,5 +52,7 @@ def compare(definition, mesh, resultants, solver_plies, output, tolerance, view,
     summary = run_compare(definition, mesh, [resultants, *more], list(solver_plies), output, tolerance, view,
                           map_png, fragment, workers=workers, scheduler=scheduler, block_cells=block_cells,
                           progress=None if quiet else progress)
-    click.echo(json.dumps(summary, indent=1) if as_json else verdict_lines(summary), nl=as_json)
+    from bridge.cli import safe_lines
+
+    click.echo(json.dumps(summary, indent=1) if as_json else safe_lines(verdict_lines(summary)), nl=as_json)
     raise click.exceptions.Exit(0 if summary["verdict"] == "pass" else 1)

@@ -18,7 +18,9 @@ import click
 @click.option("--material", help="Material name (envelope; default: the first).")
 @click.option("--criteria", help="Comma-separated criteria (envelope; default: those evaluated).")
 def plot(results, output, kind, cell, case, laminate, material, criteria) -> None:
+    from bridge.guards import guard_outputs
     from bridge.pictures.plots import plot_store
 
+    guard_outputs({"results store": results}, {"-o": output})
     plot_store(results, output, kind=kind, cell=cell, case=case, laminate=laminate, material=material,
                criteria=criteria)

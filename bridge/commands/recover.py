@@ -7,12 +7,13 @@ from pathlib import Path
 
 import click
 
-from shells.errors import InputError
+from shells.errors import InputError, printable
 
 
 def sidecar(output: str | Path, suffix: str) -> Path:
+    """A file written beside an output, named from the output's full name: ``R.h5`` → ``R.h5.hotspots.csv``."""
     out = Path(output)
-    return out.with_name(out.stem + suffix)
+    return out.with_name(out.name + suffix)
 
 
 def _progress(label: str = "recover"):
@@ -38,7 +39,7 @@ def summary_lines(summary: dict, units: str) -> str:
             ("flagged_cells", summary["flagged_cells"]), ("units", units)]
     zone = next((z for z, v in summary["zones"].items() if w and v["cell"] == w.get("cell")), "")
     rows.insert(2, ("zone", zone))
-    return "".join(f"{k}\t{v}\n" for k, v in rows)
+    return "".join(f"{k}\t{printable(str(v))}\n" for k, v in rows)
 
 
 @click.command(help="Recover every ply of every cell and case of MESH from RESULTANTS (HDF5 /resultants, "
@@ -48,11 +49,12 @@ def summary_lines(summary: dict, units: str) -> str:
 @click.argument("mesh", type=click.Path(dir_okay=False))
 @click.argument("resultants", nargs=-1, required=True, type=click.Path(dir_okay=False))
 @click.option("-o", "--output", required=True, type=click.Path(dir_okay=False), help="Results store (.h5).")
-@click.option("--store", "store_kind", type=click.Choice(["envelope", "plies"]), default="envelope",
-              show_default=True, help="'plies' also stores every ply stress and strain of every case.")
+@click.option("--store", "store_kind", type=click.Choice(["envelope", "plies"]), default=None,
+              help="'plies' also stores every ply stress and strain of every case (default: envelope; "
+                   "with --resume, as the interrupted run).")
 @click.option("--view", type=click.Path(dir_okay=False), help="Also write the envelope as cell data (.vtu/.xdmf).")
 @click.option("--hot-spots", "hot_path", type=click.Path(dir_okay=False),
-              help="Hot-spot CSV (default: OUTPUT-stem.hotspots.csv).")
+              help="Hot-spot CSV (default: OUTPUT.hotspots.csv beside the store).")
 @click.option("--json", "as_json", is_flag=True, help="Print the full summary as JSON instead.")
 @click.option("--quiet", is_flag=True, help="No progress on stderr.")
 @click.option("--workers", type=int, default=None,
@@ -60,29 +62,40 @@ def summary_lines(summary: dict, units: str) -> str:
 @click.option("--scheduler", default=None, metavar="ADDRESS",
               help="Compute on a running dask cluster, e.g. tcp://10.0.0.5:8786 (docs/scale.md).")
 @click.option("--block-cells", type=int, default=None,
-              help="Cells per block (default: about 32 MiB of block arrays, a multiple of the store chunk).")
+              help="Cells per block (default: about 32 MiB of block arrays, a multiple of the store chunk; "
+                   "with --resume, as the interrupted run).")
 @click.option("--resume", is_flag=True,
-              help="Continue an interrupted run of OUTPUT with the same inputs; finished blocks are kept.")
+              help="Continue an interrupted run of OUTPUT with the same inputs and options (remembered); finished "
+                   "blocks are checked against their checksums and kept.")
 def recover(definition, mesh, resultants, output, store_kind, view, hot_path, as_json, quiet, workers,
             scheduler, block_cells, resume) -> None:
     from bridge.atomic import write_text
+    from bridge.guards import guard_outputs
     from bridge.recover.run import run_recover
+    from bridge.results.partial import partial_paths
     from bridge.results.view import write_view
     from postproc.summary import hot_spots_csv
 
     if view and not view.lower().endswith((".vtu", ".xdmf")):
         raise InputError(f"--view {view}: write a .vtu or .xdmf file")
+    hot_path = hot_path or sidecar(output, ".hotspots.csv")
+    guard_outputs({"definition": definition, "mesh": mesh, "resultants": list(resultants)},
+                  {"-o": output, "--hot-spots": hot_path, "--view": view}, {"-o": partial_paths(output)})
+
     def note(text: str) -> None:
-        click.echo(f"recover: {text}", err=True)
+        click.echo(f"recover: {printable(text)}", err=True)
 
     try:
-        summary = run_recover(definition, mesh, list(resultants), output, store_kind == "plies",
+        summary = run_recover(definition, mesh, list(resultants), output,
+                              None if store_kind is None else store_kind == "plies",
                               None if quiet else _progress(), workers=workers, scheduler=scheduler,
                               block_cells=block_cells, resume=resume, note=note)
     except KeyboardInterrupt:
         note("interrupted; finished blocks are kept beside the output: run again with --resume to finish")
         raise
-    write_text(hot_path or sidecar(output, ".hotspots.csv"), hot_spots_csv(summary))
+    for text in summary.get("notes", []):
+        note(f"note: {text}")
+    write_text(hot_path, hot_spots_csv(summary))
     if view:
         write_view(output, view)
     from bridge.results.store import StoreReader

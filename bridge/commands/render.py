@@ -55,9 +55,12 @@ def render(results, output, field, ply, case, views, cameras, size, cell_data) -
     os.environ.setdefault("VTK_DEFAULT_OPENGL_WINDOW", "vtkEGLRenderWindow")
     from bridge.pictures.render import render_store
 
+    from bridge.guards import guard_outputs
+
     chosen = list(views) + [parse_camera(c) for c in cameras]
     if cell_data and not cell_data.lower().endswith(".vtu"):
         raise InputError(f"--cell-data {cell_data}: write a .vtu file")
+    guard_outputs({"results store": results}, {"-o": output, "--cell-data": cell_data})
     drawn = render_store(results, output, field=field, ply=ply, case=case, views=tuple(chosen or ["iso"]),
                          size=parse_size(size), cell_data=cell_data)
     click.echo(json.dumps(drawn))

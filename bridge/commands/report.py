@@ -19,8 +19,11 @@ from shells.defaults import CAUTION
               help="HTML fragment written by plybridge compare, inserted as a section.")
 def report(results, output, compare) -> None:
     os.environ.setdefault("VTK_DEFAULT_OPENGL_WINDOW", "vtkEGLRenderWindow")
+    from bridge.guards import guard_outputs
     from bridge.pictures.report import write_report
+    from shells.errors import printable
 
+    guard_outputs({"results store": results, "--compare": compare}, {"-o": output})
     fragment = Path(compare).read_text(encoding="utf-8") if compare else None
     write_report(results, output, fragment)
-    click.echo(output)
+    click.echo(printable(output))

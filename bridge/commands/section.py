@@ -17,8 +17,11 @@ def section(definition: str, names: tuple[str, ...], as_json: bool, output: str 
     from bridge.atomic import write_text
     from bridge.definition.loader import load_definition
     from bridge.model.sections import build_sections, select_laminates
+    from bridge.guards import guard_outputs
     from bridge.model.section_text import format_sections
 
+    if output:
+        guard_outputs({"definition": definition}, {"-o": output})
     defn = load_definition(definition)
     chosen = select_laminates(defn, names)
     sections = build_sections(defn, chosen)
@@ -30,4 +33,6 @@ def section(definition: str, names: tuple[str, ...], as_json: bool, output: str 
     if output:
         write_text(output, text)
     else:
-        click.echo(text, nl=False)
+        from bridge.cli import safe_lines
+
+        click.echo(safe_lines(text), nl=False)

@@ -21,7 +21,7 @@ from shells.defaults import CAUTION
 from shells.errors import InputError, ResultantsError
 from shells.recovery_tables import build_tables
 
-from bridge.atomic import atomic_path
+from bridge.atomic import atomic_h5, atomic_path
 from bridge.definition.loader import Definition, load_definition
 from bridge.mesh.formats import read_mesh
 from bridge.model.build import Model, build_model
@@ -188,11 +188,9 @@ def compare_inputs(inp: CompareInputs, tolerance: float, runner=None, progress: 
 
 def write_compare(path: str, summary: dict, cmp: Comparison, model: Model, meta: dict) -> None:
     """The comparison file (HDF5, atomic): cell discrepancy and worst value, metrics, summary JSON."""
-    import h5py
-
     from bridge.results.store import mesh_group
 
-    with atomic_path(path) as tmp, h5py.File(tmp, "w") as h5:
+    with atomic_h5(path) as h5:
         h5.attrs["format"] = FORMAT
         h5.attrs["layout_version"] = 1
         for key, value in {**meta, "summary": summary, "caution": CAUTION}.items():

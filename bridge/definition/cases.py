@@ -26,6 +26,9 @@ CASE_SPEC = {"step": "int", "source": "str", "delta_T": "temperature", "temperat
              "kind": "str", "pressure": "stress", "delta_M": "dimensionless", "description": "str"}
 COMBO_SPEC = {"factors": "any", "kind": "str", "delta_T": "temperature", "description": "str"}
 MAX_CASES = 100000
+#: Largest combination factor in magnitude (common practice: load factors are of order one; 1e6 leaves room
+#: for unit conversions and keeps every sum far from floating-point overflow).
+MAX_FACTOR = 1e6
 
 
 @dataclass(frozen=True)
@@ -140,8 +143,9 @@ def parse_cases(cases: Any, combinations: Any, units: UnitSystem) -> Cases:
         if not factors:
             raise DefinitionError(f"{where}.factors is empty; give case = factor pairs")
         for case_name, f in factors.items():
-            if isinstance(f, bool) or not isinstance(f, (int, float)) or not np.isfinite(f):
-                raise DefinitionError(f"{where}.factors.{case_name} = {f!r} must be a finite number")
+            if isinstance(f, bool) or not isinstance(f, (int, float)) or not abs(f) <= MAX_FACTOR:
+                raise DefinitionError(f"{where}.factors.{case_name} = {f!r} must be a number from -{MAX_FACTOR:g} "
+                                      f"to {MAX_FACTOR:g}")
         _check_kind(values, where)
         combos[name] = values
     return Cases(parsed, combos)

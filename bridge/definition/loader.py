@@ -25,7 +25,7 @@ from bridge.definition.laminates import parse_laminates
 from bridge.definition.materials import parse_materials
 from bridge.definition.result_files import ResultFiles, parse_result_files
 from bridge.definition.resultants import ResultantFields, ResultantSettings, parse_fields, parse_resultant_settings
-from bridge.definition.schema import check_keys
+from bridge.definition.schema import check_keys, clean_document
 from bridge.definition.solver_plies import SolverPlies, parse_solver_plies
 from bridge.definition.units import UnitSystem, system
 from bridge.definition.zones import Zone, parse_zones
@@ -90,6 +90,7 @@ def read_toml(path: str | Path) -> tuple[dict[str, Any], str]:
 def parse_definition(doc: Mapping[str, Any], source: str = "<definition>", sha256: str = "") -> Definition:
     """Build a :class:`Definition` from a parsed TOML document."""
     try:
+        doc = clean_document(doc)  # names and strings: NFC, bounded, no control characters (docs/scale.md)
         check_keys(doc, TOP_LEVEL, "top level", required=("units", "materials", "laminates"))
         units = system(doc["units"], source)
         materials = parse_materials(doc["materials"], units)

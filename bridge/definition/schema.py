@@ -9,13 +9,68 @@ closest known key suggested, since they are nearly always typos.
 from __future__ import annotations
 
 import difflib
+import unicodedata
 from typing import Any, Iterable, Mapping
 
-from shells.errors import DefinitionError
+from shells.errors import DefinitionError, InputError, is_control, printable
 
 from bridge.definition.units import UnitSystem, convert
 
+#: Longest name (characters, after NFC normalisation): materials, laminates, zones, cases, every table key.
 MAX_NAME = 200
+#: Longest string value of a definition (a layup, a unit, a title); ``description`` is bounded by the file only.
+MAX_TEXT = 10_000
+#: String values that may span lines (newlines and tabs allowed, no other control character).
+MULTILINE = ("description",)
+
+
+def _char(ch: str) -> str:
+    name = unicodedata.name(ch, "") or {"\n": "LINE FEED", "\r": "CARRIAGE RETURN", "\t": "TAB",
+                                         "\x00": "NUL", "\x1b": "ESCAPE"}.get(ch, "a control character")
+    return f"U+{ord(ch):04X} {name.lower()}"
+
+
+def check_text(text: str, where: str, what: str = "the name", limit: int = MAX_NAME,
+               allow: str = "", error: type[InputError] = DefinitionError, source: str | None = None) -> str:
+    """``text`` in Unicode NFC form, refused when longer than ``limit`` or holding a control character.
+
+    Control characters are C0 and C1 controls (NUL, TAB, newline, ESC, U+0085 …), DEL, line and paragraph
+    separators and bidirectional controls (:func:`shells.errors.is_control`); ``allow`` lists exceptions.
+    The refusal names the character and its 1-based position.
+    """
+    text = unicodedata.normalize("NFC", text)
+    for pos, ch in enumerate(text, 1):
+        if is_control(ch) and ch not in allow:
+            raise error(f"{where}: {what} {printable(text[:60])!r}{'…' if len(text) > 60 else ''} holds a control "
+                        f"character at position {pos} ({_char(ch)}); remove it", source)
+    if len(text) > limit:
+        raise error(f"{where}: {what} {printable(text[:40])!r}… is {len(text)} characters long, more than "
+                    f"{limit}; shorten it", source)
+    return text
+
+
+def clean_document(doc: Any, where: str = "") -> Any:
+    """A copy of a parsed definition with every key and string in NFC form, checked.
+
+    Keys are names (:func:`check_text`: no control character, at most :data:`MAX_NAME` characters); two keys of
+    one table that differ only in normalisation are refused as one name given twice. String values may be
+    :data:`MAX_TEXT` characters long; only :data:`MULTILINE` values may hold newlines and tabs.
+    """
+    if isinstance(doc, Mapping):
+        out: dict[str, Any] = {}
+        for key, value in doc.items():
+            label = f"{where}.{printable(str(key))}" if where else printable(str(key))
+            name = check_text(str(key), f"[{where or 'top level'}]", "the key")
+            if name in out:
+                raise DefinitionError(f"[{where or 'top level'}]: the key {name!r} is given twice (the two "
+                                      "spellings differ only in Unicode normalisation); keep one")
+            out[name] = clean_document(value, label) if not isinstance(value, str) else check_text(
+                value, label, "the text", MAX_TEXT, "\n\t\r" if name in MULTILINE else "")
+        return out
+    if isinstance(doc, list):
+        return [clean_document(v, f"{where}[{i + 1}]") if not isinstance(v, str)
+                else check_text(v, f"{where}[{i + 1}]", "the text", MAX_TEXT) for i, v in enumerate(doc)]
+    return doc
 
 
 def suggest(word: str, known: Iterable[str]) -> str:
@@ -43,15 +98,25 @@ def expect_table(value: Any, where: str) -> Mapping[str, Any]:
     return value
 
 
-def check_name(name: Any, where: str) -> str:
-    """Names of materials, laminates, cases: non-empty printable strings of bounded length."""
+def check_name(name: Any, where: str, error: type[InputError] = DefinitionError, source: str | None = None) -> str:
+    """Names of materials, laminates, zones, cases: non-empty strings in NFC form, at most :data:`MAX_NAME`
+    characters, without control characters (:func:`check_text`)."""
     if not isinstance(name, str) or not name.strip():
-        raise DefinitionError(f"{where}: a name must be a non-empty string")
-    if len(name) > MAX_NAME:
-        raise DefinitionError(f"{where}: the name '{name[:40]}…' is longer than {MAX_NAME} characters; shorten it")
-    if any(ord(ch) < 32 or ord(ch) == 127 for ch in name):
-        raise DefinitionError(f"{where}: the name {name!r} contains control characters; remove them")
-    return name
+        raise error(f"{where}: a name must be a non-empty string", source)
+    return check_text(name, where, "the name", MAX_NAME, "", error, source)
+
+
+def check_names(names: Iterable[Any], where: str, error: type[InputError] = DefinitionError,
+                source: str | None = None) -> tuple[str, ...]:
+    """:func:`check_name` on each name, refusing a name given twice (also when only the normalisation differs)."""
+    out: dict[str, int] = {}
+    for k, raw in enumerate(names):
+        name = check_name(raw, f"{where}[{k + 1}]", error, source)
+        if name in out:
+            raise error(f"{where}: the name {name!r} is given twice (items {out[name] + 1} and {k + 1}); "
+                        "name each once", source)
+        out[name] = k
+    return tuple(out)
 
 
 def take(table: Mapping[str, Any], spec: Mapping[str, str], where: str, units: UnitSystem,

@@ -16,7 +16,7 @@ import numpy as np
 from shells.errors import DefinitionError
 from shells.laminate import Laminate
 
-from bridge.definition.schema import check_keys, expect_table, suggest, take
+from bridge.definition.schema import check_keys, check_names, expect_table, suggest, take
 from bridge.definition.units import UnitSystem
 
 ZONE_SPEC = {"name": "str", "laminate": "str", "select": "any", "orientation": "any", "offset": "length"}
@@ -116,4 +116,5 @@ def parse_zones(entries: Any, laminates: Mapping[str, Laminate], units: UnitSyst
         zones.append(Zone(values.get("name", f"zone-{k}"), lam, tag, tag_values,
                           parse_orientation(values.get("orientation"), f"{where}.orientation"),
                           values.get("offset", 0.0)))
+    check_names([z.name for z in zones], "zones (names)")
     return tuple(zones)

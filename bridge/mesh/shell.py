@@ -89,6 +89,7 @@ class ShellMesh:
                 raise MeshError(f"{cell_type} connectivity refers to nodes outside 0..{len(pts) - 1}; "
                                 "check the node numbering of the file", src)
             blocks.append((cell_type, _frozen(c)))
+        _check_coordinates(pts, blocks, src)
         n = sum(len(c) for _, c in blocks)
         data = {}
         for name, arr in self.cell_data.items():
@@ -138,6 +139,29 @@ class ShellMesh:
         return ShellMesh(self.points, self.blocks, merged, self.tags, self.source, self.notes)
 
 
+#: Largest node coordinate in magnitude (common practice: no shell model spans 1e15 length units in any unit
+#: system; beyond it products of coordinates lose all precision and overflow).
+MAX_COORDINATE = 1e15
+
+
+def _check_coordinates(points: np.ndarray, blocks, src: str | None) -> None:
+    """Refuse non-finite or absurdly large coordinates of the nodes the cells use."""
+    if not points.size:
+        return
+    bad = ~(np.abs(points) <= MAX_COORDINATE).all(axis=1)
+    if not bad.any():
+        return
+    used = np.zeros(len(points), dtype=bool)
+    for _, c in blocks:
+        used[c.ravel()] = True
+    ids = np.flatnonzero(bad & used)
+    if ids.size:
+        raise MeshError(f"{ids.size} node(s) used by cells have non-finite coordinates or coordinates beyond "
+                        f"±{MAX_COORDINATE:g} (node {ids[0]} at {tuple(float(v) for v in points[ids[0]])}"
+                        f"{', …' if ids.size > 1 else ''}); fix the node coordinates or the export's length unit",
+                        src)
+
+
 def _describe(counts: Mapping[str, int]) -> str:
     return ", ".join(f"{n} {t}" for t, n in counts.items()) or "no cells"
 
@@ -182,7 +206,8 @@ def shell_mesh_from_blocks(points: np.ndarray, blocks: Sequence[tuple[str, np.nd
     if not kept:
         raise MeshError(f"no shell cells (triangle, quad, triangle6, quad8) found; the file has "
                         f"{_describe(skipped)}. Export the shell elements of the model", source or None)
-    notes.extend(f"skipped {n} {t} cells" for t, n in skipped.items())
+    notes.extend(f"skipped {n} {t} cells (plybridge analyses shell cells only; check those separately)"
+                 for t, n in skipped.items())
     cell_data = {}
     for name, arrays in (block_data or {}).items():
         if len(arrays) != len(blocks):

@@ -29,7 +29,7 @@ from typing import Iterable, Iterator
 
 import numpy as np
 
-from shells.errors import InputError
+from shells.errors import InputError, ResultantsError
 from shells.recovery_tables import SectionTables
 
 from bridge.definition.cases import combine_steps
@@ -124,7 +124,8 @@ def compute_block(ctx: BlockContext, spec: BlockSpec) -> BlockResult:
 
     steps = spec.steps if spec.steps is not None else ctx.reader.read(slice(spec.start, spec.stop),
                                                                       CellAxes(spec.phi))
-    R = combine_steps(ctx.weights, steps)
+    with np.errstate(over="ignore", invalid="ignore"):  # an overflow gives inf: the cell-case is flagged
+        R = combine_steps(ctx.weights, steps)
     env, cells, plies = recover_cells(tuple(by_name(n) for n in ctx.criteria), ctx.tables, spec.section,
                                       spec.phi, R, spec.dT, ctx.dM, ctx.pres, ctx.fos, ctx.store_plies)
     return BlockResult(spec.index, spec.start, spec.stop, env, cells, plies)

@@ -20,8 +20,9 @@ import numpy as np
 from shells.criteria import CRITERIA, by_name, check_requirements
 from shells.errors import InputError, ResultantsError
 
-from bridge.definition.cases import Case, combine_steps
+from bridge.definition.cases import MAX_CASES, Case, combine_steps
 from bridge.definition.loader import Definition, load_definition
+from bridge.mesh.checks import mesh_notes
 from bridge.mesh.formats import read_mesh
 from bridge.model.build import Model, build_model
 from bridge.results.partial import companions
@@ -71,6 +72,10 @@ def plan_cases(defn: Definition, model: Model, step_names: tuple[str, ...]) -> C
         cases = defn.cases.resolve(step_names)
     except InputError as err:
         raise err.within(defn.source) from None
+    check_run_memory(model.n_cells, len(step_names), len(cases))
+    if len(cases) > MAX_CASES:
+        raise ResultantsError(f"{len(cases)} load cases, more than {MAX_CASES}; split the run into several "
+                              "(select cases in [cases])", defn.source)
     W = np.zeros((len(cases), len(step_names)))
     for j, c in enumerate(cases):
         for idx, f in c.factors:
@@ -94,6 +99,20 @@ def criteria_of(defn: Definition, model: Model) -> tuple[type, ...]:
 
 #: Largest --block-cells.
 MAX_BLOCK_CELLS = 2 ** 22
+
+
+def check_run_memory(n_cells: int, n_steps: int, n_cases: int, cells: int = 256, per_ply_case: int = 0) -> None:
+    """Refuse, before allocating, a run whose case weights and smallest blocks exceed the memory available.
+
+    Estimate: the case weights (n_cases × n_steps float64), the per-cell model (about 100 bytes a cell) and
+    three blocks of ``cells`` cells (input steps and cases, 64 bytes each per cell, plus ``per_ply_case``).
+    """
+    from bridge.guards import check_memory
+
+    block = cells * (64 * (n_steps + n_cases) + 8 * n_cases + per_ply_case)
+    need = 8 * n_cases * n_steps + 100 * n_cells + 3 * block
+    check_memory(need, f"the run ({n_cases:,} cases from {n_steps:,} input steps, {n_cells:,} cells)",
+                 "split the cases into several runs")
 
 
 def block_size(n_steps: int, n_cases: int, max_plies: int, store_plies: bool) -> int:
@@ -166,7 +185,7 @@ def block_specs(model: Model, source: ResultantSource, plan: CasePlan, step: int
 
 
 def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], output: str,
-                store_plies: bool = False, progress: Progress | None = None, *, workers: int | None = None,
+                store_plies: bool | None = None, progress: Progress | None = None, *, workers: int | None = None,
                 scheduler: str | None = None, client=None, block_cells: int | None = None,
                 resume: bool = False, note: Note | None = None) -> dict:
     """Recover every cell and case and write the results store at ``output``.
@@ -179,8 +198,8 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
         Resultants input (one HDF5 / XDMF file, or VTU files, docs/meshes.md).
     output : str
         The store; replaced only when complete (docs/results.md, docs/scale.md).
-    store_plies : bool
-        Also store every ply stress and strain.
+    store_plies : bool, optional
+        Also store every ply stress and strain (default: as the unfinished run when resuming, else False).
     progress : callable(done_cells, total_cells), optional
     workers : int, optional
         Compute blocks on a local cluster of this many single-threaded worker processes.
@@ -189,9 +208,11 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
     client : distributed.Client, optional
         Compute blocks with this client (tests, notebooks).
     block_cells : int, optional
-        Cells per block (default: about 32 MiB of block arrays, a multiple of the store chunk).
+        Cells per block (default: as the unfinished run when resuming, else about 32 MiB of block arrays, a
+        multiple of the store chunk).
     resume : bool
-        Continue the unfinished run of ``output`` (same inputs and options) instead of starting again.
+        Continue the unfinished run of ``output`` (same inputs; options remembered by its journal) instead of
+        starting again.
     note : callable(str), optional
         Receives one-line notes about resuming.
 
@@ -203,15 +224,22 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
     from postproc.summary import SummaryAccumulator
 
     from bridge.recover.distributed import check_workers, open_runner
-    from bridge.results.partial import PartialStore
+    from bridge.results.partial import PartialStore, check_store_space, journal_options
 
     check_workers(workers, scheduler)
+    remembered = journal_options(output) if resume else {}
+    block_cells = block_cells if block_cells is not None else remembered.get("block_cells")
+    store_plies = bool(store_plies if store_plies is not None else remembered.get("store_plies", False))
     check_block_cells(block_cells)
     defn, model, source, plan, crit = prepare(definition, mesh_path, resultants)
+    notes = [*model.mesh.notes, *mesh_notes(model.mesh)]
     tables = model.tables()
     n = model.n_cells
     step = block_cells or block_size(len(source.names), len(plan.cases), tables.max_plies, store_plies)
+    check_run_memory(n, len(source.names), len(plan.cases), step,
+                     tables.max_plies * 3 * 8 * 8 * len(plan.cases) if store_plies else 0)
     layout = StoreLayout(n, tables.max_plies, plan.names, store_plies, len(CRITERIA), chunk_cells=step)
+    check_store_space(output, layout, model.mesh, resume)
     paths = {"definition": definition, "mesh": mesh_path, **{f"resultants{k}": p for k, p in enumerate(resultants)}}
     digests = input_digests(paths)
     fingerprint = {"inputs": digests, "options": {"block_cells": step, "store_plies": store_plies,
@@ -219,7 +247,7 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
     acc = SummaryAccumulator(model.zone, len(defn.zones), len(plan.cases), defn.analysis.hot_spots)
     with contextlib.ExitStack() as stack:
         runner = stack.enter_context(open_runner(workers, scheduler, client))
-        partial = stack.enter_context(PartialStore(output, fingerprint, layout, resume, note))
+        partial = stack.enter_context(PartialStore(output, fingerprint, layout, resume, note, step))
         store, done = partial.writer, set(partial.done)
         results = stack.enter_context(contextlib.closing(runner.map(
             block_context(defn, tables, source, plan, store_plies), block_specs(model, source, plan, step, done))))
@@ -229,13 +257,13 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
                 acc.add(start, stop, {}, store.read_cells(start, stop))
             else:
                 res = next(results)
-                store.write_block(res.start, res.stop, res.envelope, res.cells, res.plies)
+                partial.write_block(res.index, res.start, res.stop, res.envelope, res.cells, res.plies)
                 acc.add(res.start, res.stop, res.envelope, res.cells)
-                partial.record(res.index)
             if progress:
                 progress(stop, n)
         summary = acc.result(plan.names, zone_names=[z.name for z in defn.zones],
                              laminate_of_zone=[z.laminate for z in defn.zones])
+        summary["notes"] = notes
         _finish(store, summary, crit, tables, model, source, plan, defn, provenance(paths, digests), store_plies)
         partial.complete()
     return summary

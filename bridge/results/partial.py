@@ -1,33 +1,47 @@
-"""Unfinished runs: the partial store beside the target, its journal, and ``--resume``.
+"""Unfinished runs: the partial store beside the target, its journal, ``--resume``, and the completeness record.
 
 A run writes into ``.NAME.partial.h5`` in the target's folder, never into the
 target. After each block is written and flushed, the journal
-``.NAME.partial.json`` (replaced atomically) records the block as done,
-together with the run's *fingerprint*: the SHA-256 of every input file (and of
-the ``.h5`` beside an XDMF file) and the options that fix the store's layout.
-Only when every block is done is the partial store renamed onto the target, so
-a run killed at any moment leaves the target as it was (absent, or the
-previous complete store). ``--resume`` reopens the partial store and computes
-the blocks the journal does not list; it refuses when the fingerprint differs.
+``.NAME.partial.json`` (replaced atomically) records the block as done with the
+SHA-256 of its arrays, together with the run's *fingerprint*: the SHA-256 of
+every input file (and of the ``.h5`` beside an XDMF file) and the options of
+the run. Only when every block is done is the completeness record written
+(``/check``: each block's cell range and checksum) and the partial store
+renamed onto the target, so a run killed at any moment leaves the target as it
+was (absent, or the previous complete store). ``--resume`` reopens the partial
+store, checks each block the journal lists against its checksum (and that
+every cell of it holds a result), computes again what is missing or altered,
+and refuses when the fingerprint differs; the options come from the journal.
 A lock file (``.NAME.lock``, ``flock``) keeps two runs off the same target.
+
+Partial and lock files are created exclusively (``O_EXCL``, no following of
+symbolic links); a partial store that is a link or has other hard links is
+never written into. A full disk or a read-only file system removes the
+partial store, journal and lock, leaving the target as it was.
 """
 
 from __future__ import annotations
 
 import contextlib
+import errno
 import fcntl
 import json
 import os
+import stat
 from pathlib import Path
 from typing import Any, Callable, Mapping
 
+import numpy as np
+
 from shells.errors import InputError, StoreError
 
-from bridge.atomic import write_text
-from bridge.results.store import StoreLayout, StoreWriter
+from bridge.atomic import close_h5, write_text
+from bridge.guards import is_fault
+from bridge.results.complete import CELL_TABLES, CHECK_GROUP, block_arrays, check_complete, covered, digest, total_digest
+from bridge.results.store import CELLS, ENVELOPE, PLIES, StoreLayout, StoreWriter
 
 JOURNAL_FORMAT = "plybridge-partial"
-JOURNAL_VERSION = 1
+JOURNAL_VERSION = 2
 #: Largest journal read back (bytes).
 MAX_JOURNAL_BYTES = 16 * 2 ** 20
 
@@ -49,6 +63,19 @@ def partial_paths(target: str | Path) -> tuple[Path, Path, Path]:
             t.with_name(f".{t.name}.lock"))
 
 
+def _as_stored(writer: StoreWriter, envelope, cells, plies) -> tuple[dict, dict, dict | None]:
+    """The block's arrays in the store's number types, so the checksum equals that of the bytes read back."""
+    h5 = writer.h5
+    env = {k: np.asarray(envelope[k], dtype=h5["envelope"][k].dtype) for k in ENVELOPE}
+    cel = {k: np.asarray(cells[k], dtype=h5["cells"][k].dtype) for k in CELL_TABLES}
+    pl = None
+    if plies is not None and "plies" in h5:
+        pl = {k: np.asarray(plies[k], dtype=h5["plies"][k].dtype) for k in PLIES}
+    return env, cel, pl
+
+
+# ----------------------------------------------------------------------------- the partial store
+
 class PartialStore:
     """The unfinished store of one run (use as a context manager; see the module notes).
 
@@ -60,53 +87,87 @@ class PartialStore:
         JSON-ready inputs and options of the run (compared on resume).
     layout : StoreLayout
     resume : bool
-        Reopen a matching partial store and keep its finished blocks.
+        Reopen a matching partial store and keep its finished blocks (checked against their checksums).
     note : callable, optional
         Receives one-line notes (to stderr).
+    block_cells : int, optional
+        Cells per block (default: the layout's chunk).
     """
 
     def __init__(self, target: str | Path, fingerprint: Mapping[str, Any], layout: StoreLayout,
-                 resume: bool = False, note: Note | None = None):
+                 resume: bool = False, note: Note | None = None, block_cells: int | None = None):
         self.target = Path(target)
         self.fingerprint = json.loads(json.dumps(fingerprint))
         self.layout = layout
         self.resume = resume
         self.note = note or (lambda text: None)
+        self.step = int(block_cells or layout.chunk)
         self.h5_path, self.journal_path, self.lock_path = partial_paths(target)
-        self.done: set[int] = set()
+        self.done: dict[int, str] = {}
         self.writer: StoreWriter | None = None
         self._lock: int | None = None
         self._h5 = None
+
+    @property
+    def n_blocks(self) -> int:
+        return -(-self.layout.n_cells // self.step)
+
+    def block_range(self, index: int) -> tuple[int, int]:
+        return index * self.step, min(self.layout.n_cells, (index + 1) * self.step)
 
     # ------------------------------------------------------------------ lifecycle
     def __enter__(self) -> "PartialStore":
         self._acquire()
         try:
             self._open()
-        except BaseException:
-            self._release()
+        except BaseException as exc:
+            self._close(discard=is_fault(exc))
             raise
         return self
 
-    def __exit__(self, *exc) -> None:
+    def __exit__(self, exc_type, exc, tb) -> None:
+        self._close(discard=exc is not None and is_fault(exc))
+
+    def _close(self, discard: bool) -> None:
+        """Close the partial store; remove it (and the journal) when nothing is worth resuming or on a fault."""
         if self._h5 is not None:
+            discard = discard or not self.done
             with contextlib.suppress(Exception):
-                self._h5.close()
-            if not self.done:  # nothing worth resuming: leave no file behind
+                close_h5(self._h5, discard=discard)
+            self._h5 = None
+            if discard:
                 for path in (self.h5_path, self.journal_path):
                     with contextlib.suppress(FileNotFoundError):
                         path.unlink()
         self._release()
 
-    def record(self, index: int) -> None:
-        """Mark block ``index`` done: flush the store to disk, then rewrite the journal."""
+    def write_block(self, index: int, start: int, stop: int, envelope, cells, plies=None) -> None:
+        """Write block ``index`` (cells start … stop − 1), flush, then record it and its checksum in the journal."""
+        env, cel, pl = _as_stored(self.writer, envelope, cells, plies)
+        self.writer.write_block(start, stop, env, cel, pl)
+        arrays = {**{f"envelope/{k}": v for k, v in env.items()}, **{f"cells/{k}": v for k, v in cel.items()},
+                  **({f"plies/{k}": v for k, v in pl.items()} if pl is not None else {})}
         self._h5.flush()
-        self.done.add(int(index))
+        self.done[int(index)] = digest(arrays)
         self._write_journal()
 
     def complete(self) -> None:
-        """Close the finished store and rename it onto the target; remove the journal."""
-        self._h5.close()
+        """Write the completeness record, close the finished store and rename it onto the target."""
+        import h5py
+
+        ranges = np.array([self.block_range(i) for i in range(self.n_blocks)], dtype=np.int64).reshape(-1, 2)
+        missing = [i for i in range(self.n_blocks) if i not in self.done]
+        if missing:
+            raise StoreError(f"blocks {missing[:5]} were never written; run again without --resume",
+                             str(self.target))
+        digests = np.array([self.done[i].encode() for i in range(self.n_blocks)], dtype="S64")
+        chk = self._h5.require_group(CHECK_GROUP)
+        chk.create_dataset("blocks", data=ranges)
+        chk.create_dataset("digests", data=digests, dtype=h5py.string_dtype("ascii", 64))
+        chk.attrs["digest"] = total_digest(digests, self.layout.n_cells)
+        chk.attrs["algorithm"] = "sha256 of each block's arrays (docs/results.md)"
+        check_complete(self._h5, str(self.h5_path))
+        close_h5(self._h5)
         self._h5 = None
         os.replace(self.h5_path, self.target)
         with contextlib.suppress(FileNotFoundError):
@@ -115,7 +176,13 @@ class PartialStore:
     # ------------------------------------------------------------------ internals
     def _acquire(self) -> None:
         while True:
-            fd = os.open(self.lock_path, os.O_RDWR | os.O_CREAT, 0o644)
+            try:
+                fd = os.open(self.lock_path, os.O_RDWR | os.O_CREAT | os.O_NOFOLLOW, 0o644)
+            except OSError as exc:
+                if exc.errno == errno.ELOOP:
+                    raise InputError(f"the lock path {self.lock_path.name} is a symbolic link; remove it (plybridge "
+                                     "never follows links beside its outputs)", str(self.target)) from None
+                raise
             try:
                 fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
             except BlockingIOError:
@@ -134,7 +201,7 @@ class PartialStore:
     def _release(self) -> None:
         if self._lock is None:
             return
-        if not self.h5_path.exists():
+        if not os.path.lexists(self.h5_path):
             with contextlib.suppress(FileNotFoundError):
                 self.lock_path.unlink()
         os.close(self._lock)
@@ -143,55 +210,128 @@ class PartialStore:
     def _open(self) -> None:
         import h5py
 
-        journal = self._read_journal()
+        journal = read_journal(self.journal_path, self.h5_path)
         if self.resume and journal is None:
             self.note("nothing to resume (no unfinished run of this output); starting from the first block")
         if self.resume and journal is not None:
             self._check_fingerprint(journal["fingerprint"])
-            try:
-                self._h5 = h5py.File(self.h5_path, "r+")
-                self.writer = StoreWriter(self._h5, self.layout, create=False)
-                if not self.writer.matches():
-                    raise OSError("layout")
-                self.done = set(journal["done"])
-                self.note(f"resuming: {len(self.done)} block(s) already done")
-                return
-            except OSError:
-                if self._h5 is not None:
-                    self._h5.close()
-                self.note("the unfinished store is damaged; starting from the first block")
-        elif journal is not None or self.h5_path.exists():
+            if self._plain_file(self.h5_path):
+                try:
+                    self._h5 = h5py.File(self.h5_path, "r+")
+                    self.writer = StoreWriter(self._h5, self.layout, create=False)
+                    if not self.writer.matches():
+                        raise OSError("layout")
+                    self.done = self._verified(journal["done"])
+                    return
+                except OSError as exc:
+                    if is_fault(exc):
+                        raise
+                    if self._h5 is not None:
+                        with contextlib.suppress(Exception):
+                            self._h5.close()
+                        self._h5 = None
+            self.note("the unfinished store is damaged; starting from the first block")
+        elif journal is not None or os.path.lexists(self.h5_path):
             self.note("discarding the unfinished store of an earlier run (use --resume to continue it)")
-        with contextlib.suppress(FileNotFoundError):
-            self.journal_path.unlink()
-        self._h5 = h5py.File(self.h5_path, "w")
+        for path in (self.journal_path, self.h5_path):
+            with contextlib.suppress(FileNotFoundError):
+                path.unlink()  # a link is removed, never followed
+        self._h5 = h5py.File(self.h5_path, "w-")  # O_EXCL: fails on anything planted since
         self.writer = StoreWriter(self._h5, self.layout)
-        self.done = set()
+        self.done = {}
         self._h5.flush()
         self._write_journal()
 
-    def _write_journal(self) -> None:
-        write_text(self.journal_path, json.dumps({"format": JOURNAL_FORMAT, "version": JOURNAL_VERSION,
-                                                  "fingerprint": self.fingerprint, "done": sorted(self.done)}))
-
-    def _read_journal(self) -> dict | None:
-        """The journal if present, readable and of this format; else None."""
+    @staticmethod
+    def _plain_file(path: Path) -> bool:
+        """A regular file with no other hard link (so writing into it cannot change another file)."""
         try:
-            if self.journal_path.stat().st_size > MAX_JOURNAL_BYTES or not self.h5_path.is_file():
-                return None
-            doc = json.loads(self.journal_path.read_text(encoding="utf-8"))
-        except (OSError, ValueError):
-            return None
-        ok = (isinstance(doc, dict) and doc.get("format") == JOURNAL_FORMAT
-              and doc.get("version") == JOURNAL_VERSION and isinstance(doc.get("fingerprint"), dict)
-              and isinstance(doc.get("done"), list) and all(isinstance(i, int) for i in doc["done"]))
-        return doc if ok else None
+            st = os.lstat(path)
+        except OSError:
+            return False
+        return stat.S_ISREG(st.st_mode) and st.st_nlink == 1
+
+    def _verified(self, entries: list) -> dict[int, str]:
+        """The journal's blocks whose arrays match their checksum and whose cells all hold a result."""
+        done, bad = {}, []
+        for index, want in entries:
+            if not 0 <= index < self.n_blocks:
+                continue
+            start, stop = self.block_range(index)
+            if digest(block_arrays(self._h5, start, stop)) == want and covered(self._h5, start, stop):
+                done[index] = want
+            else:
+                bad.append(index)
+        if bad:
+            self.note(f"{len(bad)} block(s) listed as done do not match their checksum or hold no result "
+                      f"(e.g. block {bad[0]}, cells {self.block_range(bad[0])[0]}…{self.block_range(bad[0])[1] - 1}); "
+                      "computing them again")
+        self.note(f"resuming: {len(done)} block(s) already done and verified")
+        return done
+
+    def _write_journal(self) -> None:
+        write_text(self.journal_path, json.dumps({
+            "format": JOURNAL_FORMAT, "version": JOURNAL_VERSION, "fingerprint": self.fingerprint,
+            "done": [[i, d] for i, d in sorted(self.done.items())]}))
 
     def _check_fingerprint(self, old: Mapping[str, Any]) -> None:
         changed = changes(old, self.fingerprint)
         if changed:
             raise StoreError(f"--resume: the unfinished run used other inputs or options (changed: "
                              f"{'; '.join(changed)}); run again without --resume to start afresh", str(self.target))
+
+
+def read_journal(journal_path: Path, h5_path: Path | None = None) -> dict | None:
+    """The journal if present, readable, of this format and well formed field by field; else None."""
+    try:
+        if h5_path is not None and not os.path.lexists(h5_path):
+            return None
+        fd = os.open(journal_path, os.O_RDONLY | os.O_NOFOLLOW)
+        with os.fdopen(fd, "rb") as fh:
+            data = fh.read(MAX_JOURNAL_BYTES + 1)
+        if len(data) > MAX_JOURNAL_BYTES:
+            return None
+        doc = json.loads(data.decode("utf-8"))
+    except (OSError, ValueError):
+        return None
+    done = doc.get("done") if isinstance(doc, dict) else None
+    ok = (isinstance(doc, dict) and doc.get("format") == JOURNAL_FORMAT
+          and doc.get("version") == JOURNAL_VERSION and isinstance(doc.get("fingerprint"), dict)
+          and isinstance(doc["fingerprint"].get("options", {}), dict) and isinstance(done, list)
+          and all(isinstance(e, list) and len(e) == 2 and type(e[0]) is int and isinstance(e[1], str)
+                  and len(e[1]) == 64 for e in done)
+          and len({e[0] for e in done}) == len(done))
+    return doc if ok else None
+
+
+def store_bytes(layout: StoreLayout, mesh) -> int:
+    """Estimated size of a finished store (bytes, uncompressed: an upper bound of what gzip leaves)."""
+    n, mp, nc = layout.n_cells, layout.max_plies, layout.n_cases
+    env = n * mp * sum(np.dtype(t).itemsize for t in ENVELOPE.values())
+    cells = n * (sum(np.dtype(t).itemsize for t in CELLS.values()) + 8 * (nc + layout.n_criteria))
+    plies = nc * n * mp * 3 * 8 * sum(PLIES.values()) if layout.store_plies else 0
+    geometry = mesh.points.size * 8 + sum(c.size for _, c in mesh.blocks) * 8 + n * 64
+    return int(env + cells + plies + geometry + 2 ** 20)
+
+
+def check_store_space(target: str | Path, layout: StoreLayout, mesh, resume: bool = False) -> None:
+    """Refuse a run whose estimated store does not fit on the target's file system (the partial store of a
+    resumed run counts as already written)."""
+    from bridge.guards import check_free_space
+
+    need = store_bytes(layout, mesh)
+    if resume:
+        with contextlib.suppress(OSError):
+            need -= os.lstat(partial_paths(target)[0]).st_size
+    check_free_space(target, max(need, 0), f"the results store ({layout.n_cells:,} cells × "
+                     f"{layout.n_cases:,} cases{', ply states' if layout.store_plies else ''})")
+
+
+def journal_options(target: str | Path) -> dict[str, Any]:
+    """The options recorded by the unfinished run of ``target`` (empty when there is none)."""
+    h5_path, journal_path, _ = partial_paths(target)
+    doc = read_journal(journal_path, h5_path)
+    return dict(doc["fingerprint"].get("options", {})) if doc else {}
 
 
 def changes(old: Mapping[str, Any], new: Mapping[str, Any]) -> list[str]:

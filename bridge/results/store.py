@@ -226,6 +226,13 @@ class StoreReader:
                              "rewrite it", self.path)
         if "meta/run" not in self.h5:
             raise StoreError("the store has no run metadata (/meta/run); run plybridge recover again", self.path)
+        self.verify_complete()
+
+    def verify_complete(self) -> None:
+        """Refuse a store that breaks the loading rules or is incomplete (:mod:`bridge.results.complete`)."""
+        from bridge.results.complete import check_complete
+
+        check_complete(self.h5, self.path)
 
     def __enter__(self) -> "StoreReader":
         return self

@@ -31,7 +31,8 @@ from typing import Mapping, Sequence
 
 import numpy as np
 
-from bridge.atomic import atomic_path, write_text
+from bridge.atomic import atomic_h5, atomic_path, write_text
+from bridge.mesh import h5_rules
 from bridge.mesh.lazy import LazyH5
 from bridge.mesh.mixed import MIXED_ID, split_mixed as _split_mixed
 from bridge.mesh.shell import NODES_PER_CELL, ShellMesh, flatten_cell_data, shell_mesh_from_blocks
@@ -169,22 +170,19 @@ def write(path: str | os.PathLike, mesh: ShellMesh, cell_data: Mapping[str, np.n
 
 
 def _write(path: Path, mesh: ShellMesh, steps, temporal: bool) -> None:
-    import h5py
-
     h5path = path.with_suffix(".h5")
     if ":" in h5path.name:
         raise MeshError("XDMF data file names must not contain ':'; rename the target", str(path))
     steps = [(s, flatten_cell_data(d, mesh.n_cells, str(path))) for s, d in steps]
     grids = []
-    with atomic_path(h5path) as tmp:
-        with h5py.File(tmp, "w") as h5:
-            w = _H5Writer(h5, h5path.name)
-            for k, (step_name, data) in enumerate(steps):
-                g = _grid(mesh, w, data, f"/step{k}" if temporal else "/cell_data", str(step_name))
-                if temporal:
-                    g.insert(0, ET.Element("Information", Name="case", Value=str(step_name)))
-                    g.insert(0, ET.Element("Time", Value=str(k)))
-                grids.append(g)
+    with atomic_h5(h5path) as h5:
+        w = _H5Writer(h5, h5path.name)
+        for k, (step_name, data) in enumerate(steps):
+            g = _grid(mesh, w, data, f"/step{k}" if temporal else "/cell_data", str(step_name))
+            if temporal:
+                g.insert(0, ET.Element("Information", Name="case", Value=str(step_name)))
+                g.insert(0, ET.Element("Time", Value=str(k)))
+            grids.append(g)
     _write_xml(path, grids, temporal)
 
 
@@ -199,6 +197,7 @@ class _Reader:
         self.path = path
         self.folder = Path(path).resolve().parent
         try:
+            h5_rules.check_prolog(path)
             self.root = ET.parse(path).getroot()
         except FileNotFoundError:
             raise MeshError("file not found; check the path", path) from None
@@ -206,6 +205,7 @@ class _Reader:
             raise MeshError(f"not well-formed XML ({exc}); the file may be truncated", path) from None
         if self.root.tag != "Xdmf":
             raise MeshError(f"root element is <{self.root.tag}>, not <Xdmf>", path)
+        h5_rules.check_xdmf(path, self.root)  # before any include or data file is read
         from bridge.mesh.xinclude import resolve_includes
 
         resolve_includes(self.root, path)
@@ -221,36 +221,32 @@ class _Reader:
             return self.data(target, lazy)
         if item.get("ItemType", "Uniform") != "Uniform":
             raise _Unsupported(f"DataItem ItemType {item.get('ItemType')}")
-        dims = [int(d) for d in item.get("Dimensions", "").split()]
+        dims = h5_rules.dimensions(item, self.path)
         key = (item.get("DataType", item.get("NumberType", "Float")), item.get("Precision", "4"))
         fmt = item.get("Format", "XML")
         text = (item.text or "").strip()
         if fmt == "XML":
             dtype = _DTYPES.get(key, np.float64)
-            a = np.array(text.split(), dtype=dtype) if text else np.zeros(0, dtype)
+            try:
+                a = np.array(text.split(), dtype=dtype) if text else np.zeros(0, dtype)
+            except (ValueError, OverflowError):
+                raise MeshError(f"DataItem {item.get('Name') or text[:40]!r}: values that are not {key[0]} "
+                                "numbers; fix the XDMF file", self.path) from None
         elif fmt == "HDF":
-            a = self._hdf(text, lazy)
+            a = self._hdf(text, lazy, tuple(dims))
             if isinstance(a, LazyH5):
                 return a if tuple(dims) in ((), a.shape, a.shape[:1] + (1,) + a.shape[1:]) else a.eager(dims)
         else:
             raise _Unsupported(f"DataItem Format {fmt}")
-        if dims and int(np.prod(dims)) == a.size:
-            a = a.reshape(dims)
-        return a
+        if dims and int(np.prod(dims, dtype=np.int64)) != a.size:
+            raise MeshError(f"DataItem {item.get('Name') or text[:40]!r}: Dimensions {' '.join(map(str, dims))} "
+                            f"do not match its {a.size} values; fix the XDMF file", self.path)
+        return a.reshape(dims) if dims else a
 
-    def _hdf(self, text: str, lazy: bool = False) -> np.ndarray:
-        import h5py
-
-        fname, _, h5path = text.rpartition(":")
-        full = self.folder / fname
-        try:
-            with h5py.File(full, "r", locking=False) as h5:
-                return LazyH5(str(full), h5path, h5[h5path].shape) if lazy else h5[h5path][()]
-        except FileNotFoundError:
-            raise MeshError(f"data file {full} not found; keep the .h5 beside the .xdmf", self.path) from None
-        except KeyError:
-            raise MeshError(f"dataset {h5path!r} missing from {full}; the file may be incomplete",
-                            self.path) from None
+    def _hdf(self, text: str, lazy: bool = False, dims: tuple = ()) -> np.ndarray:
+        """``FILE.h5:/dataset`` under the loading rules (h5_rules): read now, or left in its file (``lazy``)."""
+        full, name, shape, data = h5_rules.heavy(self.path, text, dims, read=not lazy)
+        return LazyH5(str(full), name, shape) if lazy else data
 
     def grids(self) -> list[ET.Element]:
         """Uniform grids in document order (the members of collections, flattened)."""

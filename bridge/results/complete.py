@@ -1,0 +1,90 @@
+"""The completeness record of a results store: a checksum per block of cells, checked when a store is read.
+
+``plybridge recover`` writes ``/check`` when every block is done: ``blocks`` (n_blocks, 2) cell ranges
+``[start, stop)`` in order, ``digests`` the SHA-256 of each block's arrays (envelope rows, cell summary, ply
+states when stored; names, number types, shapes and bytes), and the attribute ``digest`` over all of them
+and the cell count. :func:`check_complete` (called by :class:`bridge.results.store.StoreReader`, so by
+render, plot, report and ``--view``) refuses a store without a valid record or with a cell that holds no
+result; :func:`verify_blocks` re-reads every block and compares its checksum.
+"""
+
+from __future__ import annotations
+
+import hashlib
+from typing import Mapping
+
+import numpy as np
+
+from shells.errors import StoreError
+
+from bridge.results.store import CELLS, ENVELOPE, PLIES
+
+#: The completeness record of a finished store.
+CHECK_GROUP = "check"
+CELL_TABLES = (*CELLS, "case_margin", "criterion_margin")
+
+
+def block_arrays(h5, start: int, stop: int) -> dict[str, np.ndarray]:
+    """The arrays of cells start … stop − 1 as stored (envelope rows, cell summary, ply states if any)."""
+    out = {f"envelope/{k}": h5["envelope"][k][start:stop] for k in ENVELOPE}
+    out.update({f"cells/{k}": h5["cells"][k][start:stop] for k in CELL_TABLES})
+    if "plies" in h5:
+        out.update({f"plies/{k}": h5["plies"][k][:, start:stop] for k in PLIES})
+    return out
+
+
+def digest(arrays: Mapping[str, np.ndarray]) -> str:
+    """SHA-256 of named arrays (names, shapes, types and bytes, in the given order)."""
+    h = hashlib.sha256()
+    for name, a in arrays.items():
+        a = np.ascontiguousarray(a)
+        h.update(f"{name}|{a.dtype.str}|{a.shape}|".encode())
+        h.update(a.data)
+    return h.hexdigest()
+
+
+def covered(h5, start: int, stop: int) -> bool:
+    """Every cell of the range holds a result (critical ply 0 or more; the fill value is −1)."""
+    return bool((h5["cells"]["critical_ply"][start:stop] >= 0).all())
+
+
+def check_complete(h5, path: str) -> None:
+    """Refuse a store that breaks the loading rules or lacks a valid completeness record (render, report, plot).
+
+    Checks: the HDF5 loading rules (:func:`bridge.mesh.h5_rules.check_file`), the record ``/check`` (block
+    ranges covering every cell once, the total checksum of the block checksums), and that every cell holds a
+    result. The blocks' own checksums are checked by :func:`verify_blocks` (reads the whole store).
+    """
+    from bridge.mesh.h5_rules import check_file
+
+    check_file(h5, path, StoreError)
+    chk = h5.get(CHECK_GROUP)
+    again = "run plybridge recover again"
+    if chk is None or "blocks" not in chk or "digests" not in chk or "cells/critical_ply" not in h5:
+        raise StoreError(f"the store has no completeness record (/{CHECK_GROUP}): it is unfinished, damaged or "
+                         f"written by an earlier plybridge; {again}", path)
+    n = h5["cells/critical_ply"].shape[0]
+    blocks, digests = chk["blocks"][()], chk["digests"][()]
+    ends = np.concatenate([[0], blocks[:, 1]]) if blocks.size else np.zeros(1, np.int64)
+    if (blocks.ndim != 2 or len(blocks) != len(digests) or (blocks.size and not np.array_equal(blocks[:, 0], ends[:-1]))
+            or int(ends[-1]) != n or chk.attrs.get("digest") != total_digest(digests, n)):
+        raise StoreError(f"the completeness record /{CHECK_GROUP} does not match the store (altered or damaged); "
+                         f"{again}", path)
+    missing = np.flatnonzero(h5["cells/critical_ply"][()] < 0)
+    if missing.size:
+        raise StoreError(f"{missing.size} cells hold no result (e.g. cells {', '.join(map(str, missing[:5]))}); "
+                         f"the store is incomplete; {again}", path)
+
+
+def total_digest(digests, n_cells: int) -> str:
+    h = hashlib.sha256(f"{int(n_cells)}|".encode())
+    for d in digests:
+        h.update(d if isinstance(d, bytes) else str(d).encode())
+    return h.hexdigest()
+
+
+def verify_blocks(h5) -> list[int]:
+    """Indices of the blocks of a finished store whose arrays no longer match their checksum."""
+    chk = h5[CHECK_GROUP]
+    return [i for i, ((a, b), d) in enumerate(zip(chk["blocks"][()], chk["digests"][()]))
+            if digest(block_arrays(h5, int(a), int(b))) != d.decode()]

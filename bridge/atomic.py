@@ -56,14 +56,17 @@ def _umask() -> int:
 def close_h5(h5, discard: bool = False) -> None:
     """Close an h5py file opened for writing; with ``discard``, its contents are given up first.
 
-    On a full disk HDF5 cannot flush its metadata when a file is closed, which leaves the library in a state
-    that fails again at exit (errors printed for every open object, at worst a crash). Truncating the file
-    first (its descriptor is still open) frees the space, so the close that follows succeeds; the caller
-    then removes the file.
+    On a full disk HDF5 cannot flush its cached chunks and metadata when a file is closed, which leaves the
+    library in a state that fails again at exit (errors printed for every open object, then a crash). To
+    give up a file, its descriptor is first pointed at an empty in-memory file (``memfd``), so the close
+    that follows writes nowhere on disk and succeeds; the caller then removes the file.
     """
     if discard:
         with contextlib.suppress(Exception):
-            os.ftruncate(h5.id.get_vfd_handle(), 0)
+            fd = h5.id.get_vfd_handle()
+            mem = os.memfd_create("plybridge-discarded")
+            os.dup2(mem, fd)
+            os.close(mem)
     try:
         h5.close()
     except Exception:

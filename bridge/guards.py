@@ -96,7 +96,8 @@ def guard_outputs(inputs: Mapping[str, object], outputs: Mapping[str, object],
         for path in _paths(value):
             for f in input_files(path):
                 if f.exists():
-                    ins.append((role if f == Path(path) else f"{role} (data of {path})", f, _identity(f)))
+                    ins.append((f"{role} input" if f == Path(path) else f"heavy data of the {role} input {path}:",
+                                f, _identity(f)))
     seen: dict[tuple | str, tuple[str, Path]] = {}
     for option, value in outputs.items():
         for path in _paths(value):

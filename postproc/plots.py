@@ -55,8 +55,21 @@ def new_figure(width: float = 10.0, height: float = 6.0):
     return fig
 
 
+def literal_text(fig) -> None:
+    """Draw every text of ``fig`` as written: no mathtext, so a ``$`` in a user's name is a dollar sign.
+
+    The one place plot labels are made safe (titles, axis labels, legends, annotations), applied by
+    :func:`save_figure` to whatever the figure functions wrote.
+    """
+    from matplotlib.text import Text
+
+    for text in fig.findobj(Text):
+        text.set_parse_math(False)
+
+
 def save_figure(fig, path, fmt: str) -> None:
-    """Save ``fig`` to ``path`` (a path or a binary file object) as ``png`` or ``svg``."""
+    """Save ``fig`` to ``path`` (a path or a binary file object) as ``png`` or ``svg``; labels drawn literally."""
+    literal_text(fig)
     fig.savefig(path, format=fmt, dpi=110, facecolor="white")
 
 

@@ -41,10 +41,10 @@ def check_text(text: str, where: str, what: str = "the name", limit: int = MAX_N
     text = unicodedata.normalize("NFC", text)
     for pos, ch in enumerate(text, 1):
         if is_control(ch) and ch not in allow:
-            raise error(f"{where}: {what} {printable(text[:60])!r}{'…' if len(text) > 60 else ''} holds a control "
+            raise error(f"{where}: {what} '{printable(text[:60])}{'…' if len(text) > 60 else ''}' holds a control "
                         f"character at position {pos} ({_char(ch)}); remove it", source)
     if len(text) > limit:
-        raise error(f"{where}: {what} {printable(text[:40])!r}… is {len(text)} characters long, more than "
+        raise error(f"{where}: {what} '{printable(text[:40])}…' is {len(text)} characters long, more than "
                     f"{limit}; shorten it", source)
     return text
 

@@ -239,9 +239,17 @@ def inside(xdmf_path: str | os.PathLike, ref: str, where: str = "heavy data",
 
 
 def check_xdmf(xdmf_path: str | os.PathLike, root: ET.Element, error: type[InputError] = MeshError) -> None:
-    """Refuse an XDMF tree whose heavy data or included files lie outside its folder."""
+    """Refuse an XDMF tree whose heavy data or included files lie outside its folder, or whose HDF5 files
+    break the HDF5 rules (checked once per file, whichever reader then reads them)."""
+    checked = set()
     for where, ref in _xdmf_refs(root):
-        inside(xdmf_path, ref, where, error)
+        target = inside(xdmf_path, ref, where, error)
+        if where.startswith("DataItem") and target not in checked and target.is_file():
+            checked.add(target)
+            with open(target, "rb") as fh:
+                if fh.read(8) == HDF5_SIGNATURE:
+                    with open_h5(target, error, "the XDMF heavy data"):
+                        pass
 
 
 def check_prolog(xdmf_path: str | os.PathLike, error: type[InputError] = MeshError) -> None:

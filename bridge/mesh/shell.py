@@ -257,6 +257,7 @@ def read_with_meshio(path: str, file_format: str | None = None) -> ShellMesh:
     import io
 
     src = str(path)
+    _check_hdf5(src)
     chatter = io.StringIO()
     try:
         # meshio prints and calls sys.exit on some unreadable files: keep both inside.
@@ -270,6 +271,20 @@ def read_with_meshio(path: str, file_format: str | None = None) -> ShellMesh:
                         f"{type(exc).__name__}: {reason or 'no reason given'}; check the file is complete and "
                         "of that format", src) from None
     return from_meshio(m, src)
+
+
+def _check_hdf5(path: str) -> None:
+    """HDF5-based formats (MED, CGNS, H5M, XDMF heavy data) follow the loading rules before meshio reads them."""
+    from bridge.mesh.h5_rules import HDF5_SIGNATURE, open_h5
+
+    try:
+        with open(path, "rb") as fh:
+            head = fh.read(8)
+    except OSError:
+        return  # meshio reports a missing file
+    if head == HDF5_SIGNATURE:
+        with open_h5(path, MeshError):
+            pass
 
 
 def flatten_cell_data(cell_data: Mapping[str, np.ndarray], n_cells: int,

@@ -31,7 +31,7 @@ from typing import Mapping, Sequence
 
 import numpy as np
 
-from bridge.atomic import atomic_h5, atomic_path, write_text
+from bridge.atomic import atomic_h5, atomic_path
 from bridge.mesh import h5_rules
 from bridge.mesh.lazy import LazyH5
 from bridge.mesh.mixed import MIXED_ID, split_mixed as _split_mixed
@@ -136,6 +136,7 @@ def _grid(mesh: ShellMesh, w: _H5Writer, data: Mapping[str, np.ndarray], group: 
 
 
 def _write_xml(path: Path, grids: Sequence[ET.Element], temporal: bool) -> None:
+    """Write the XML to ``path`` (a temporary file of :func:`_write`)."""
     root = ET.Element("Xdmf", Version="3.0")
     domain = ET.SubElement(root, "Domain")
     if temporal:
@@ -144,7 +145,7 @@ def _write_xml(path: Path, grids: Sequence[ET.Element], temporal: bool) -> None:
     else:
         domain.extend(grids)
     ET.indent(root)
-    write_text(path, '<?xml version="1.0"?>\n' + ET.tostring(root, encoding="unicode") + "\n")
+    path.write_text('<?xml version="1.0"?>\n' + ET.tostring(root, encoding="unicode") + "\n", encoding="utf-8")
 
 
 def write_series(path: str | os.PathLike, mesh: ShellMesh,
@@ -175,15 +176,18 @@ def _write(path: Path, mesh: ShellMesh, steps, temporal: bool) -> None:
         raise MeshError("XDMF data file names must not contain ':'; rename the target", str(path))
     steps = [(s, flatten_cell_data(d, mesh.n_cells, str(path))) for s, d in steps]
     grids = []
-    with atomic_h5(h5path) as h5:
-        w = _H5Writer(h5, h5path.name)
-        for k, (step_name, data) in enumerate(steps):
-            g = _grid(mesh, w, data, f"/step{k}" if temporal else "/cell_data", str(step_name))
-            if temporal:
-                g.insert(0, ET.Element("Information", Name="case", Value=str(step_name)))
-                g.insert(0, ET.Element("Time", Value=str(k)))
-            grids.append(g)
-    _write_xml(path, grids, temporal)
+    # Both files or neither: the XML is written to its temporary file before the .h5 is renamed, and renamed
+    # after it, so a failure at any point leaves the previous pair as it was.
+    with atomic_path(path) as xml_tmp:
+        with atomic_h5(h5path) as h5:
+            w = _H5Writer(h5, h5path.name)
+            for k, (step_name, data) in enumerate(steps):
+                g = _grid(mesh, w, data, f"/step{k}" if temporal else "/cell_data", str(step_name))
+                if temporal:
+                    g.insert(0, ET.Element("Information", Name="case", Value=str(step_name)))
+                    g.insert(0, ET.Element("Time", Value=str(k)))
+                grids.append(g)
+            _write_xml(xml_tmp, grids, temporal)
 
 
 # ----------------------------------------------------------------------------- reading

@@ -11,6 +11,9 @@ from shells.errors import DefinitionError
 from bridge.definition.schema import expect_table, take
 from bridge.definition.units import UnitSystem
 
+#: Largest factor of safety accepted (common practice: 1.0 to about 3; a larger value is a typing error that
+#: would turn every margin into -1).
+MAX_FOS = 10.0
 SPEC = {"criteria": "any", "factor_of_safety": "any", "transverse_shear": "str", "shear_factor": "dimensionless",
         "wrinkling_coefficient": "dimensionless", "hot_spots": "int"}
 SHEAR_METHODS = ("equilibrium", "factor")
@@ -66,8 +69,9 @@ def parse_analysis(table: Any, units: UnitSystem) -> Analysis:
     for kind, value in given.items():
         if kind not in DEFAULT_FOS:
             raise DefinitionError(f"analysis.factor_of_safety: unknown case kind '{kind}'; use limit or ultimate")
-        if isinstance(value, bool) or not isinstance(value, (int, float)) or not value >= 1.0:
-            raise DefinitionError(f"analysis.factor_of_safety.{kind} = {value!r} must be a number >= 1")
+        if isinstance(value, bool) or not isinstance(value, (int, float)) or not 1.0 <= value <= MAX_FOS:
+            raise DefinitionError(f"analysis.factor_of_safety.{kind} = {value!r} must be a number from 1 to "
+                                  f"{MAX_FOS:g}")
         fos[kind] = float(value)
     method = values.get("transverse_shear", TRANSVERSE_SHEAR)
     if method not in SHEAR_METHODS:

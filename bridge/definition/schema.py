@@ -24,10 +24,15 @@ MAX_TEXT = 10_000
 MULTILINE = ("description",)
 
 
+_CONTROL_NAMES = {"\n": "line feed", "\r": "carriage return", "\t": "tab", "\x00": "nul", "\x1b": "escape",
+                  "\x7f": "delete", "\x85": "next line", "\x9b": "control sequence introducer"}
+
+
 def _char(ch: str) -> str:
-    name = unicodedata.name(ch, "") or {"\n": "LINE FEED", "\r": "CARRIAGE RETURN", "\t": "TAB",
-                                         "\x00": "NUL", "\x1b": "ESCAPE"}.get(ch, "a control character")
-    return f"U+{ord(ch):04X} {name.lower()}"
+    """``U+001B escape``: the code point and a plain name of a character."""
+    name = _CONTROL_NAMES.get(ch) or unicodedata.name(ch, "").lower() or (
+        "a C1 control" if 0x80 <= ord(ch) <= 0x9F else "a C0 control")
+    return f"U+{ord(ch):04X} {name}"
 
 
 def check_text(text: str, where: str, what: str = "the name", limit: int = MAX_NAME,

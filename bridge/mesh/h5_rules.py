@@ -29,8 +29,8 @@ from shells.errors import InputError, MeshError
 HDF5_SIGNATURE = b"\x89HDF\r\n\x1a\n"
 #: Most links walked in one file (a results store has about 60).
 MAX_LINKS = 100_000
-#: Most names read from one list (cases).
-MAX_NAMES = 100_000
+#: Most names read from one list (ten times the case bound: the run's own bounds and memory estimate decide).
+MAX_NAMES = 1_000_000
 #: Most dimensions of an XDMF DataItem.
 MAX_DIMS = 8
 XINCLUDE = ("{http://www.w3.org/2001/XInclude}include", "{http://www.w3.org/2003/XInclude}include")
@@ -75,31 +75,37 @@ def check_file(h5, path: str, error: type[InputError] = InputError) -> None:
 
     count = 0
 
-    def visit(name: str) -> None:
+    def visit(name: str):
+        # Returns the refusal (which stops the walk): an exception raised inside h5py's callback would not
+        # come out cleanly.
         nonlocal count
         count += 1
         if count > MAX_LINKS:
-            raise error(f"more than {MAX_LINKS} objects; this is not a file plybridge writes or reads", path)
+            return error(f"more than {MAX_LINKS} objects; this is not a file plybridge writes or reads", path)
         link = h5.get(name, getlink=True)
         if isinstance(link, h5py.ExternalLink):
-            raise error(f"/{name} is an external link to {link.filename}:{link.path}; links leaving the file "
-                        "are refused. Copy the data into the file", path)
+            return error(f"/{name} is an external link to {link.filename}:{link.path}; links leaving the file "
+                         "are refused. Copy the data into the file", path)
         if isinstance(link, h5py.SoftLink):
             if h5.get(name) is None:
-                raise error(f"/{name} is a soft link to {link.path}, which is not in the file; copy the data "
-                            "into the file", path)
-            return
+                return error(f"/{name} is a soft link to {link.path}, which is not in the file; copy the data "
+                             "into the file", path)
+            return None
         obj = h5.get(name)
         if isinstance(obj, h5py.Dataset):
-            check_storage(obj, path, error)
+            try:
+                check_storage(obj, path, error)
+            except InputError as exc:
+                return exc
+        return None
 
     try:
-        h5.visit_links(visit)
-    except InputError:
-        raise
+        found = h5.visit_links(visit)
     except (OSError, RuntimeError, KeyError, ValueError) as exc:
         raise error(f"damaged HDF5 structure ({' '.join(str(exc).split())[:120]}); write the file again",
                     path) from None
+    if found is not None:
+        raise found
 
 
 def check_storage(ds, path: str, error: type[InputError] = InputError) -> None:
@@ -280,7 +286,8 @@ def dimensions(item: ET.Element, xdmf_path: str, error: type[InputError] = MeshE
         dims = tuple(int(d) for d in parts)
     except ValueError:
         dims = ()
-    if len(dims) != len(parts) or len(dims) > MAX_DIMS or any(d < 0 for d in dims):
+    if (len(dims) != len(parts) or len(dims) > MAX_DIMS or any(d < 0 for d in dims)
+            or np.prod([float(d) for d in dims]) > 2.0 ** 62):
         raise error(f"DataItem {item.get('Name') or (item.text or '').strip()[:60]!r}: Dimensions={text!r} is "
                     "not a list of up to 8 whole numbers; fix the XDMF file", xdmf_path)
     return dims

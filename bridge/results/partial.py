@@ -231,7 +231,7 @@ class PartialStore:
                             self._h5.close()
                         self._h5 = None
             self.note("the unfinished store is damaged; starting from the first block")
-        elif journal is not None or os.path.lexists(self.h5_path):
+        elif not self.resume and (journal is not None or os.path.lexists(self.h5_path)):
             self.note("discarding the unfinished store of an earlier run (use --resume to continue it)")
         for path in (self.journal_path, self.h5_path):
             with contextlib.suppress(FileNotFoundError):

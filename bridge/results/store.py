@@ -217,7 +217,8 @@ class StoreReader:
     def _check(self) -> None:
         """Refuse what is not a complete store of this layout (one line naming the fix)."""
         if self.h5.attrs.get("format") != FORMAT:
-            raise StoreError(f"not a plybridge results store (attribute format != {FORMAT!r})", self.path)
+            raise StoreError(f"not a plybridge results store (attribute format != {FORMAT!r}); give a store "
+                             "written by plybridge recover", self.path)
         version = self.h5.attrs.get("layout_version")
         if version != LAYOUT_VERSION:
             older = isinstance(version, (int, np.integer)) and version < LAYOUT_VERSION

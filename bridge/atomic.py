@@ -67,11 +67,17 @@ def close_h5(h5, discard: bool = False) -> None:
             mem = os.memfd_create("plybridge-discarded")
             os.dup2(mem, fd)
             os.close(mem)
+        for _ in range(2):  # after a failed flush HDF5 may refuse the first close ("slist already enabled")
+            try:
+                h5.close()
+                return
+            except Exception:
+                continue
+        return
     try:
         h5.close()
     except Exception:
-        if not discard:
-            close_h5(h5, discard=True)
+        close_h5(h5, discard=True)
         raise
 
 

@@ -242,7 +242,8 @@ def fault_errno(exc: BaseException) -> int | None:
 
 def is_fault(exc: BaseException) -> bool:
     """True for a file-system fault (full disk, read-only, permission, I/O) rather than bad content."""
-    return isinstance(exc, (OSError, RuntimeError)) and fault_errno(exc) is not None
+    return isinstance(exc, ResourceError) or (isinstance(exc, (OSError, RuntimeError))
+                                              and fault_errno(exc) is not None)
 
 
 def fault_error(exc: BaseException, path: str | os.PathLike | None = None) -> InputError | None:

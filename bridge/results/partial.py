@@ -63,14 +63,25 @@ def partial_paths(target: str | Path) -> tuple[Path, Path, Path]:
             t.with_name(f".{t.name}.lock"))
 
 
-def _as_stored(writer: StoreWriter, envelope, cells, plies) -> tuple[dict, dict, dict | None]:
+def block_datasets(h5) -> dict:
+    """Every block dataset of an open store, opened once for the run.
+
+    Holding them open is also what keeps HDF5 from flushing a dataset's chunk cache whenever a short-lived
+    handle is dropped (where a write error could only be printed, never raised).
+    """
+    names = [f"envelope/{k}" for k in ENVELOPE] + [f"cells/{k}" for k in CELL_TABLES]
+    if "plies" in h5:
+        names += [f"plies/{k}" for k in PLIES]
+    return {name: h5[name] for name in names}
+
+
+def _as_stored(types: dict, envelope, cells, plies) -> tuple[dict, dict, dict | None]:
     """The block's arrays in the store's number types, so the checksum equals that of the bytes read back."""
-    h5 = writer.h5
-    env = {k: np.asarray(envelope[k], dtype=h5["envelope"][k].dtype) for k in ENVELOPE}
-    cel = {k: np.asarray(cells[k], dtype=h5["cells"][k].dtype) for k in CELL_TABLES}
+    env = {k: np.asarray(envelope[k], dtype=types[f"envelope/{k}"].dtype) for k in ENVELOPE}
+    cel = {k: np.asarray(cells[k], dtype=types[f"cells/{k}"].dtype) for k in CELL_TABLES}
     pl = None
-    if plies is not None and "plies" in h5:
-        pl = {k: np.asarray(plies[k], dtype=h5["plies"][k].dtype) for k in PLIES}
+    if plies is not None and f"plies/{next(iter(PLIES))}" in types:
+        pl = {k: np.asarray(plies[k], dtype=types[f"plies/{k}"].dtype) for k in PLIES}
     return env, cel, pl
 
 
@@ -107,6 +118,7 @@ class PartialStore:
         self.writer: StoreWriter | None = None
         self._lock: int | None = None
         self._h5 = None
+        self._types: dict | None = None
 
     @property
     def n_blocks(self) -> int:
@@ -143,13 +155,28 @@ class PartialStore:
 
     def write_block(self, index: int, start: int, stop: int, envelope, cells, plies=None) -> None:
         """Write block ``index`` (cells start … stop − 1), flush, then record it and its checksum in the journal."""
-        env, cel, pl = _as_stored(self.writer, envelope, cells, plies)
-        self.writer.write_block(start, stop, env, cel, pl)
+        if self._types is None:
+            self._types = block_datasets(self._h5)
+        env, cel, pl = _as_stored(self._types, envelope, cells, plies)
         arrays = {**{f"envelope/{k}": v for k, v in env.items()}, **{f"cells/{k}": v for k, v in cel.items()},
                   **({f"plies/{k}": v for k, v in pl.items()} if pl is not None else {})}
+        self._check_space(index, sum(a.nbytes for a in arrays.values()))
+        self.writer.write_block(start, stop, env, cel, pl)
         self._h5.flush()
         self.done[int(index)] = digest(arrays)
         self._write_journal()
+
+    def _check_space(self, index: int, nbytes: int) -> None:
+        """Stop before HDF5 meets a full disk (it cannot report that cleanly): the block, its chunk caches and
+        the journal must fit in the space left."""
+        from bridge.guards import ResourceError, free_bytes, size_text
+
+        need = 2 * nbytes + 2 ** 20
+        free = free_bytes(self.h5_path.parent)
+        if need > free:
+            raise ResourceError(f"no space left for block {index} (about {size_text(need)} needed, "
+                                f"{size_text(free)} free); free some space or write to another folder",
+                                str(self.target))
 
     def complete(self) -> None:
         """Write the completeness record, close the finished store and rename it onto the target."""

@@ -33,6 +33,8 @@ from bridge.recover.resultants import ResultantSource
 from bridge.recover.run import CasePlan, plan_cases, provenance
 
 FORMAT = "plybridge-compare"
+#: Larger metadata values (JSON text) are written as datasets /meta/KEY instead of root attributes.
+MAX_ATTRIBUTE_BYTES = 32 * 1024
 #: Default largest relative difference accepted (relative to the value scale of the ply and component).
 DEFAULT_TOLERANCE = 1e-3
 
@@ -194,7 +196,11 @@ def write_compare(path: str, summary: dict, cmp: Comparison, model: Model, meta:
         h5.attrs["format"] = FORMAT
         h5.attrs["layout_version"] = 1
         for key, value in {**meta, "summary": summary, "caution": CAUTION}.items():
-            h5.attrs[key] = value if isinstance(value, (str, int, float)) else json.dumps(value)
+            text = value if isinstance(value, (str, int, float)) else json.dumps(value)
+            if isinstance(text, str) and len(text.encode()) > MAX_ATTRIBUTE_BYTES:
+                h5.create_dataset(f"meta/{key}", data=text)  # HDF5 attributes stop at 64 KiB (many cases)
+            else:
+                h5.attrs[key] = text
         cells = h5.create_group("cells")
         cells["discrepancy"] = cmp.cell_discrepancy
         cells["worst"] = cmp.cell_worst

@@ -1,4 +1,4 @@
-"""The rules for loading HDF5 and XDMF files that may be hostile (docs/scale.md, "Loading untrusted files").
+"""The rules for loading HDF5 and XDMF files that may be hostile (docs/scale.md, "Loading and safety rules").
 
 Every HDF5 file plybridge reads — resultants, XDMF heavy data, results stores, solver ply values, meshio's
 HDF5-based formats — is opened through :func:`open_h5`, which walks its links once and refuses:

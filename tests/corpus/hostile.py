@@ -46,34 +46,38 @@ def _names(h5, names) -> None:
 
 # ----------------------------------------------------------------------------- hostile HDF5 resultants
 
+def _hostile(folder: Path, name: str, make: Callable) -> Path:
+    """An HDF5 resultants file whose /resultants is made by ``make(h5)``, with two case names."""
+    path = folder / name
+    with h5py.File(path, "w") as h5:
+        make(h5)
+        _names(h5, NAMES2)
+    return path
+
+
+def _link(target: str, where: str = "resultants") -> Callable:
+    def make(h5):
+        h5[where] = h5py.ExternalLink(*target.split(":")) if ":" in target else h5py.SoftLink(target)
+    return make
+
+
 @generator
 def res_external_link(folder: Path, good: dict) -> Path:
     write_resultants_h5(folder / "elsewhere.h5", NAMES2, resultants(600, 2))
-    path = folder / "res-ext.h5"
-    with h5py.File(path, "w") as h5:
-        h5["resultants"] = h5py.ExternalLink("elsewhere.h5", "/resultants")
-        _names(h5, NAMES2)
-    return path
+    return _hostile(folder, "res-ext.h5", _link("elsewhere.h5:/resultants"))
 
 
 @generator
 def res_external_passwd(folder: Path, good: dict) -> Path:
-    path = folder / "res-passwd.h5"
-    with h5py.File(path, "w") as h5:
-        h5["resultants"] = h5py.ExternalLink("/etc/passwd", "/resultants")
-        _names(h5, NAMES2)
-    return path
+    return _hostile(folder, "res-passwd.h5", _link("/etc/passwd:/resultants"))
 
 
 @generator
 def res_external_storage(folder: Path, good: dict) -> Path:
     R = resultants(600, 2)
     (folder / "raw.bin").write_bytes(R.tobytes())
-    path = folder / "res-raw.h5"
-    with h5py.File(path, "w") as h5:
-        h5.create_dataset("resultants", shape=R.shape, dtype="<f8", external=[("raw.bin", 0, R.nbytes)])
-        _names(h5, NAMES2)
-    return path
+    return _hostile(folder, "res-raw.h5", lambda h5: h5.create_dataset(
+        "resultants", shape=R.shape, dtype="<f8", external=[("raw.bin", 0, R.nbytes)]))
 
 
 @generator
@@ -81,19 +85,11 @@ def res_virtual(folder: Path, good: dict) -> Path:
     write_resultants_h5(folder / "source.h5", NAMES2, resultants(600, 2))
     layout = h5py.VirtualLayout(shape=(2, 600, 8), dtype="f8")
     layout[:] = h5py.VirtualSource("source.h5", "resultants", shape=(2, 600, 8))
-    path = folder / "res-virtual.h5"
-    with h5py.File(path, "w") as h5:
-        h5.create_virtual_dataset("resultants", layout)
-        _names(h5, NAMES2)
-    return path
+    return _hostile(folder, "res-virtual.h5", lambda h5: h5.create_virtual_dataset("resultants", layout))
 
 
 def _typed(folder: Path, name: str, data) -> Path:
-    path = folder / name
-    with h5py.File(path, "w") as h5:
-        h5.create_dataset("resultants", data=data)
-        _names(h5, NAMES2)
-    return path
+    return _hostile(folder, name, lambda h5: h5.create_dataset("resultants", data=data))
 
 
 @generator
@@ -182,21 +178,15 @@ def res_names_not_utf8(folder: Path, good: dict) -> Path:
 
 @generator
 def res_soft_dangling(folder: Path, good: dict) -> Path:
-    path = folder / "res-dangling.h5"
-    with h5py.File(path, "w") as h5:
-        h5["resultants"] = h5py.SoftLink("/nowhere")
-        _names(h5, NAMES2)
-    return path
+    return _hostile(folder, "res-dangling.h5", _link("/nowhere"))
 
 
 @generator
 def res_soft_inside(folder: Path, good: dict) -> Path:
-    path = folder / "res-soft.h5"
-    with h5py.File(path, "w") as h5:
+    def make(h5):
         h5.create_dataset("data", data=resultants(600, 2))
-        h5["resultants"] = h5py.SoftLink("/data")
-        _names(h5, NAMES2)
-    return path
+        _link("/data")(h5)
+    return _hostile(folder, "res-soft.h5", make)
 
 
 @generator
@@ -312,29 +302,12 @@ def xdmf_symlink_out(folder: Path, good: dict) -> Path:
     return _xdmf_variant(folder, "linked", "linked.h5:/mesh/points", "near.h5:/mesh/points")
 
 
-@generator
-def xdmf_dims_words(folder: Path, good: dict) -> Path:
-    return _xdmf_variant(folder, "dims-words", 'Dimensions="651 3"', 'Dimensions="651 x"')
-
-
-@generator
-def xdmf_dims_negative(folder: Path, good: dict) -> Path:
-    return _xdmf_variant(folder, "dims-neg", 'Dimensions="651 3"', 'Dimensions="-651 -3"')
-
-
-@generator
-def xdmf_dims_mismatch(folder: Path, good: dict) -> Path:
-    return _xdmf_variant(folder, "dims-mismatch", 'Dimensions="651 3"', 'Dimensions="600 3"')
-
-
-@generator
-def xdmf_dims_many(folder: Path, good: dict) -> Path:
-    return _xdmf_variant(folder, "dims-many", 'Dimensions="651 3"', 'Dimensions="1 1 1 1 1 1 1 651 3"')
-
-
-@generator
-def xdmf_dims_huge(folder: Path, good: dict) -> Path:
-    return _xdmf_variant(folder, "dims-huge", 'Dimensions="651 3"', 'Dimensions="99999999999999999999 3"')
+#: Malformed Dimensions of the points DataItem: generator name → Dimensions text.
+BAD_DIMENSIONS = {"xdmf-dims-words": "651 x", "xdmf-dims-negative": "-651 -3", "xdmf-dims-mismatch": "600 3",
+                  "xdmf-dims-many": "1 1 1 1 1 1 1 651 3", "xdmf-dims-huge": "99999999999999999999 3"}
+for _name, _dims in BAD_DIMENSIONS.items():
+    GENERATORS[_name] = (lambda folder, good, name=_name, dims=_dims:
+                         _xdmf_variant(folder, name[5:], 'Dimensions="651 3"', f'Dimensions="{dims}"'))
 
 
 @generator
@@ -549,13 +522,6 @@ def store_virtual(folder: Path, good: dict) -> Path:
 
 
 @generator
-def store_not_hdf5(folder: Path, good: dict) -> Path:
-    path = folder / "notes.h5"
-    path.write_text("not a store\n", encoding="utf-8")
-    return path
-
-
-@generator
 def store_dollar(folder: Path, good: dict) -> Path:
     from bridge.recover.run import run_recover
 
@@ -569,38 +535,35 @@ def store_dollar(folder: Path, good: dict) -> Path:
 
 # ----------------------------------------------------------------------------- setups of the output folder
 
-@setup
-def hardlink_output_to_resultants(ctx: dict):
-    os.link(ctx["in"] / "res.h5", ctx["out"] / "RESULT.h5")
+#: Links planted before a run: setup name → (symbolic?, the file linked to, the link). "victim.h5" is a copy
+#: of the resultants made for the purpose: it must come out unchanged.
+LINKS = {
+    "hardlink-output-to-resultants": (False, "in/res.h5", "out/RESULT.h5"),
+    "symlink-output-to-definition": (True, "in/def.toml", "out/RESULT.h5"),
+    "symlink-view-to-mesh": (True, "in/mesh.xdmf", "out/view.xdmf"),
+    "symlink-at-partial": (True, "in/victim.h5", "out/.RESULT.h5.partial.h5"),
+    "hardlink-at-partial": (False, "in/victim.h5", "out/.RESULT.h5.partial.h5"),
+    "symlink-at-lock": (True, "in/victim.h5", "out/.RESULT.h5.lock"),
+}
 
 
-@setup
-def symlink_output_to_definition(ctx: dict):
-    os.symlink(ctx["in"] / "def.toml", ctx["out"] / "RESULT.h5")
+def _plant(name: str) -> Callable[[dict], None]:
+    symbolic, target, link = LINKS[name]
+
+    def plant(ctx: dict) -> None:
+        def where(rel):
+            folder, _, file = rel.partition("/")
+            return ctx[folder] / file
+
+        if target.endswith("victim.h5"):
+            shutil.copy(ctx["in"] / "res.h5", where(target))
+        (os.symlink if symbolic else os.link)(where(target), where(link))
+        if name == "hardlink-at-partial":
+            (ctx["out"] / ".RESULT.h5.partial.json").write_text("{}")
+    return plant
 
 
-@setup
-def symlink_view_to_mesh(ctx: dict):
-    os.symlink(ctx["in"] / "mesh.xdmf", ctx["out"] / "view.xdmf")
-
-
-@setup
-def symlink_at_partial(ctx: dict):
-    shutil.copy(ctx["in"] / "res.h5", ctx["in"] / "victim.h5")
-    os.symlink(ctx["in"] / "victim.h5", ctx["out"] / ".RESULT.h5.partial.h5")
-
-
-@setup
-def hardlink_at_partial(ctx: dict):
-    shutil.copy(ctx["in"] / "res.h5", ctx["in"] / "victim.h5")
-    os.link(ctx["in"] / "victim.h5", ctx["out"] / ".RESULT.h5.partial.h5")
-    (ctx["out"] / ".RESULT.h5.partial.json").write_text("{}")
-
-
-@setup
-def symlink_at_lock(ctx: dict):
-    shutil.copy(ctx["in"] / "res.h5", ctx["in"] / "victim.h5")
-    os.symlink(ctx["in"] / "victim.h5", ctx["out"] / ".RESULT.h5.lock")
+SETUPS.update({name: _plant(name) for name in LINKS})
 
 
 @setup

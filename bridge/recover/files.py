@@ -26,6 +26,8 @@ import numpy as np
 from shells.errors import MeshError, ResultantsError
 
 from bridge.definition.result_files import ResultFiles
+from bridge.definition.schema import check_names
+from bridge.mesh.h5_rules import dataset, open_h5, read_names
 from bridge.mesh.shell import ShellMesh
 
 #: Separator between a field name and a load-case name in one-file inputs: ``N@case1``.
@@ -58,6 +60,10 @@ class StepFiles:
     extra: Mapping[str, np.ndarray] = field(default_factory=dict)
     steps: tuple = field(default=(), repr=False)
 
+    def __post_init__(self):
+        # Step names become case names printed on stdout and stored: names' rules (docs/scale.md).
+        object.__setattr__(self, "names", check_names(self.names, "load case names", ResultantsError, self.label))
+
     def arrays(self, i: int) -> Mapping[str, np.ndarray]:
         """The cell arrays of step ``i`` (not for HDF5 ``/resultants`` files)."""
         if self.h5_path is not None:
@@ -67,23 +73,15 @@ class StepFiles:
 
 
 def _h5_names(path: str, n_cells: int) -> list[str]:
-    import h5py
-
-    try:
-        h5 = h5py.File(path, "r", locking=False)
-    except OSError:
-        raise ResultantsError("an HDF5 file that cannot be opened (truncated or damaged); write it again",
-                              path) from None
-    with h5:
+    with open_h5(path, ResultantsError) as h5:
         if H5_DATASET not in h5:
             raise ResultantsError(f"no dataset /{H5_DATASET}; found {', '.join(h5) or 'nothing'}", path)
-        ds = h5[H5_DATASET]
+        ds = dataset(h5, H5_DATASET, path, ResultantsError)
         if ds.ndim != 3 or ds.shape[2] != 8:
             raise ResultantsError(f"/{H5_DATASET} has shape {ds.shape}; expected (cases, cells, 8)", path)
         if ds.shape[1] != n_cells:
             raise ResultantsError(f"/{H5_DATASET} has {ds.shape[1]} cells but the mesh has {n_cells}", path)
-        raw = np.atleast_1d(ds.attrs.get("case_names", []))
-        names = [n.decode() if isinstance(n, bytes) else str(n) for n in raw]
+        names = read_names(ds, "case_names", path, ds.shape[0], ResultantsError)
         if len(names) != ds.shape[0]:
             raise ResultantsError(f"attribute case_names has {len(names)} names for {ds.shape[0]} cases", path)
     return names
@@ -91,10 +89,8 @@ def _h5_names(path: str, n_cells: int) -> list[str]:
 
 def read_h5_cells(path: str, cells: slice | np.ndarray) -> np.ndarray:
     """(n_steps, ncell, 8) raw values of a cell slice (or increasing cell ids) of an HDF5 ``/resultants`` file."""
-    import h5py
-
-    with h5py.File(path, "r", locking=False) as h5:
-        return h5[H5_DATASET][:, cells, :]
+    with open_h5(path, ResultantsError) as h5:
+        return dataset(h5, H5_DATASET, path, ResultantsError)[:, cells, :]
 
 
 def split_cases(cell_data: Mapping[str, np.ndarray], default: str) -> tuple[dict[str, dict], dict]:

@@ -9,7 +9,7 @@ import numpy as np
 
 from shells.errors import ResultantsError
 
-from bridge.atomic import atomic_path
+from bridge.atomic import atomic_h5
 from bridge.definition.resultants import COMPONENTS, ResultantFields
 from bridge.mesh.shell import ShellMesh
 from bridge.recover.files import H5_DATASET
@@ -45,10 +45,11 @@ def write_resultants_h5(path: str | os.PathLike, case_names: Sequence[str], R: n
     import h5py
 
     R = _check_cases(case_names, R)
-    with atomic_path(path) as tmp, h5py.File(tmp, "w") as h5:
+    with atomic_h5(path) as h5:
         ds = h5.create_dataset(H5_DATASET, data=R, chunks=(1, max(1, min(R.shape[1], H5_CHUNK_CELLS)), 8),
                                compression="gzip", compression_opts=4, shuffle=True)
-        ds.attrs["case_names"] = np.array([str(c) for c in case_names], dtype=h5py.string_dtype())
+        # A dataset, not an attribute: thousands of names exceed HDF5's 64 KiB attribute limit.
+        h5.create_dataset("case_names", data=np.array([str(c) for c in case_names], dtype=h5py.string_dtype()))
         ds.attrs["components"] = np.array(COMPONENTS, dtype=h5py.string_dtype())
 
 

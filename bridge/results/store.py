@@ -67,8 +67,11 @@ def _name_codes(env, cells, case_names) -> None:
     """Attributes ``names`` on the integer-code datasets, so the store explains its own codes."""
     from shells.criteria import CRITERIA
 
+    cases = _strings(case_names)
+    if sum(len(str(c).encode()) + 16 for c in case_names) > 32 * 1024:  # HDF5 attributes stop at 64 KiB
+        cases = env.file["cases"].ref  # an object reference to the /cases dataset instead of a copy
     names = {
-        "case": _strings(case_names),
+        "case": cases,
         "point": _strings(("bottom", "middle", "top")),
         "criterion": _strings([c.name for c in CRITERIA]),
         "mode": json.dumps({c.name: list(c.modes) for c in CRITERIA}),

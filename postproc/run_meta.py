@@ -195,6 +195,7 @@ class RunSummary:
     criteria: tuple[Minimum, ...] = ()
     flagged_cells: int = 0
     flagged_examples: tuple[int, ...] = ()
+    notes: tuple[str, ...] = ()   # about the mesh: duplicate cells, flipped neighbours, cells left out
 
     @classmethod
     def from_result(cls, result: Mapping[str, Any]) -> "RunSummary":
@@ -207,7 +208,7 @@ class RunSummary:
         worst = result.get("worst")
         return cls(HotSpot(**worst) if worst else None, hot, groups("zones"), groups("laminates"),
                    groups("cases"), groups("criteria"), int(result.get("flagged_cells", 0)),
-                   tuple(result.get("flagged_examples", ())))
+                   tuple(result.get("flagged_examples", ())), tuple(result.get("notes", ())))
 
 
 @dataclass(frozen=True)

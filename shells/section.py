@@ -11,7 +11,7 @@ import numpy as np
 from . import params as P
 from .defaults import SHEAR_FACTOR, TRANSVERSE_SHEAR, WRINKLING_COEFFICIENT
 from .errors import LayupError
-from .engineering import flags, flexural_constants, membrane_constants
+from .engineering import engineering_constants, flags, membrane_constants
 from .laminate import Laminate, Ply, SectionProperties, section_properties
 from .sandwich import dimpling_stress, wrinkling_stress
 from .shear import PLY_POINTS, equilibrium_shear_stiffness, factor_shear_stiffness, shear_distribution
@@ -62,8 +62,7 @@ class Section:
             "shear_method": self.shear_method,
             "NT": sp.NT.tolist(), "MT": sp.MT.tolist(),
             "NH": sp.NH.tolist(), "MH": sp.MH.tolist(),
-            "membrane": membrane_constants(sp),
-            "flexural": flexural_constants(sp),
+            **engineering_constants(sp),
             "flags": flags(self.laminate, sp),
         }
 

@@ -62,7 +62,8 @@ def test_example_loads_and_prints_json():
         assert key in skin
     assert np.array(skin["A"]).shape == (3, 3) and np.array(skin["H"]).shape == (2, 2)
     assert len(skin["z"]) == 9 and skin["z"][0] == pytest.approx(-0.5)
-    assert set(skin["membrane"]) >= {"Ex", "Ey", "Gxy", "nuxy"}
+    assert set(skin["membrane"]["restrained"]) >= {"Ex", "Ey", "Gxy", "nuxy"}
+    assert set(skin["flexural"]) == {"restrained", "free"}
     assert skin["flags"]["quasi_isotropic"] and not out["laminates"]["unsym"]["flags"]["symmetric"]
     assert out["laminates"]["sandwich"]["thickness"] == pytest.approx(10.75)
 

@@ -93,6 +93,8 @@ def recover(definition, mesh, resultants, output, store_kind, view, hot_path, as
         click.echo(json.dumps(summary, indent=1))
     else:
         click.echo(summary_lines(summary, units), nl=False)
+    for text in summary.get("notes", []):
+        click.echo(f"note: {text}", err=True)
     if summary["flagged_cells"]:
         click.echo(f"warning: {summary['flagged_cells']} cells had NaN or infinite resultants in some case; "
                    f"they are flagged in /cells/flagged (e.g. {summary['flagged_examples'][:5]})", err=True)

@@ -146,6 +146,14 @@ def prepare(definition: str, mesh_path: str, resultants: Sequence[str]):
     return defn, model, source, plan, criteria_of(defn, model)
 
 
+def run_notes(defn: Definition, model: Model, source: ResultantSource) -> list[str]:
+    """One-line notes of the run (bridge.recover.notes): what was assumed or looks unusual."""
+    from bridge.recover.notes import membrane_only_note, ranges_note
+
+    return [*ranges_note(defn.analysis.check_ranges),
+            *membrane_only_note(model.sections, model.section, model.n_cells, source.read, model.section_names)]
+
+
 def block_context(defn: Definition, tables, source: ResultantSource, plan: CasePlan,
                   store_plies: bool) -> BlockContext:
     """What every block task shares: small arrays and names, no file handles."""
@@ -208,6 +216,7 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
     check_workers(workers, scheduler)
     check_block_cells(block_cells)
     defn, model, source, plan, crit = prepare(definition, mesh_path, resultants)
+    notes = run_notes(defn, model, source)
     tables = model.tables()
     n = model.n_cells
     step = block_cells or block_size(len(source.names), len(plan.cases), tables.max_plies, store_plies)
@@ -236,6 +245,7 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
                 progress(stop, n)
         summary = acc.result(plan.names, zone_names=[z.name for z in defn.zones],
                              laminate_of_zone=[z.laminate for z in defn.zones])
+        summary["notes"] = notes
         _finish(store, summary, crit, tables, model, source, plan, defn, provenance(paths, digests), store_plies)
         partial.complete()
     return summary

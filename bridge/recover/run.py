@@ -150,7 +150,7 @@ def run_notes(defn: Definition, model: Model, source: ResultantSource) -> list[s
     """One-line notes of the run (bridge.recover.notes): what was assumed or looks unusual."""
     from bridge.recover.notes import membrane_only_note, ranges_note
 
-    return [*ranges_note(defn.analysis.check_ranges),
+    return [*ranges_note(defn.analysis.check_ranges), *source.notes,
             *membrane_only_note(model.sections, model.section, model.n_cells, source.read, model.section_names)]
 
 

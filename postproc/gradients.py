@@ -1,0 +1,211 @@
+"""In-plane gradients of the resultant field over a shell mesh, by least squares over edge neighbours.
+
+For each cell c the resultants of c and of its edge neighbours in the same zone (cells sharing two corner nodes
+with c) are rotated into c's laminate axes, and a linear function a + g·d is fitted to them, d being the
+neighbour's centroid offset projected on c's laminate axes. The gradient g of N and M is what
+:mod:`shells.field_shear` turns into transverse shear. A cell whose stencil cannot carry a plane (fewer than two
+neighbours, or all on one line) has no gradient (``valid`` false): the caller falls back to the Q-only method
+there. One-sided stencils (free edges, zone borders) still fit a plane exactly; the fit is first order there.
+
+Arrays in, arrays out: corner connectivity, zones, centroids and frames come from the caller.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Sequence
+
+import numpy as np
+
+#: Most neighbours kept per cell (more only at non-manifold edges).
+MAX_NEIGHBOURS = 8
+
+
+@dataclass(frozen=True)
+class Stencil:
+    """Least-squares gradient stencils of every cell (global cell ids).
+
+    Attributes
+    ----------
+    neighbours : int64 (ncell, K)
+        Edge neighbours in the same zone, −1 padded.
+    weights : float64 (ncell, 2, K + 1)
+        d/dx and d/dy (laminate axes of the cell) weights on [the cell, its neighbours...].
+    angle : float64 (ncell, K + 1)
+        Angle (radians, counter-clockwise about the cell's normal) from the cell's laminate x axis to the
+        element x axis of each stencil member projected on the cell's plane.
+    valid : bool (ncell,)
+        A plane could be fitted.
+    """
+
+    neighbours: np.ndarray
+    weights: np.ndarray
+    angle: np.ndarray
+    valid: np.ndarray
+
+    def halo(self, cells: np.ndarray) -> np.ndarray:
+        """Sorted ids of the cells and of all their neighbours."""
+        nb = self.neighbours[cells]
+        return np.unique(np.concatenate([np.asarray(cells).ravel(), nb[nb >= 0]]))
+
+
+def edge_neighbours(corners: Sequence[np.ndarray], zone: np.ndarray) -> np.ndarray:
+    """(ncell, K) edge neighbours in the same zone, −1 padded; ``corners``: corner connectivity per block."""
+    zone = np.asarray(zone)
+    n = int(zone.size)
+    edges, owner = [], []
+    start = 0
+    for c in corners:
+        c = np.asarray(c, dtype=np.int64)
+        k = c.shape[1]
+        for a in range(k):
+            e = np.sort(np.stack([c[:, a], c[:, (a + 1) % k]], axis=1), axis=1)
+            edges.append(e)
+            owner.append(np.arange(start, start + len(c)))
+        start += len(c)
+    if not edges:
+        return np.full((n, 0), -1, np.int64)
+    e = np.concatenate(edges)
+    o = np.concatenate(owner)
+    _, key = np.unique(e, axis=0, return_inverse=True)
+    key = key.ravel()
+    order = np.argsort(key, kind="stable")
+    key, o = key[order], o[order]
+    bounds = np.flatnonzero(np.diff(key)) + 1
+    pairs = []
+    for group in np.split(o, bounds):
+        if len(group) > 1:
+            g = np.unique(group)
+            a, b = np.meshgrid(g, g, indexing="ij")
+            keep = a != b
+            pairs.append(np.stack([a[keep], b[keep]], axis=1))
+    out = np.full((n, MAX_NEIGHBOURS), -1, np.int64)
+    if not pairs:
+        return out[:, :0]
+    p = np.unique(np.concatenate(pairs), axis=0)
+    p = p[zone[p[:, 0]] == zone[p[:, 1]]]
+    count = np.zeros(n, np.int64)
+    for a, b in p:
+        if count[a] < MAX_NEIGHBOURS:
+            out[a, count[a]] = b
+            count[a] += 1
+    return out[:, :max(1, int(count.max()) if count.size else 1)]
+
+
+def build_stencil(neighbours: np.ndarray, centroids: np.ndarray, frame_x: np.ndarray, frame_y: np.ndarray,
+                  phi_deg: np.ndarray) -> Stencil:
+    """Least-squares weights and frame angles of every cell's stencil (see :class:`Stencil`)."""
+    nb = np.asarray(neighbours, dtype=np.int64)
+    n, K = nb.shape
+    phi = np.radians(np.asarray(phi_deg, dtype=float))
+    c, s = np.cos(phi)[:, None], np.sin(phi)[:, None]
+    ex = c * frame_x + s * frame_y                     # laminate axes of each cell, global components
+    ey = -s * frame_x + c * frame_y
+    members = np.concatenate([np.arange(n)[:, None], nb], axis=1)          # (n, K + 1)
+    present = members >= 0
+    m = np.where(present, members, np.arange(n)[:, None])
+    d = centroids[m] - centroids[:, None, :]
+    dx = np.einsum("nkj,nj->nk", d, ex)
+    dy = np.einsum("nkj,nj->nk", d, ey)
+    X = np.stack([np.ones_like(dx), dx, dy], axis=-1) * present[..., None]    # (n, K + 1, 3)
+    # Normalise the offsets by the stencil size for a well-conditioned solve.
+    size = np.sqrt((dx ** 2 + dy ** 2).max(axis=1))
+    size = np.where(size > 0, size, 1.0)
+    Xs = X / np.stack([np.ones_like(size), size, size], axis=-1)[:, None, :]
+    XtX = np.einsum("nki,nkj->nij", Xs, Xs)
+    eig = np.linalg.eigvalsh(XtX)
+    valid = (present.sum(axis=1) >= 3) & (eig[:, 0] > 1e-8 * np.maximum(eig[:, -1], 1e-300))
+    safe = np.where(valid[:, None, None], XtX, np.eye(3))
+    pinv = np.linalg.solve(safe, np.transpose(Xs, (0, 2, 1)))                 # (n, 3, K + 1)
+    weights = pinv[:, 1:, :] / size[:, None, None]
+    weights = np.where(valid[:, None, None], weights, 0.0)
+    xm = frame_x[m]
+    angle = np.arctan2(np.einsum("nkj,nj->nk", xm, ey), np.einsum("nkj,nj->nk", xm, ex))
+    return Stencil(nb, weights, angle, valid)
+
+
+def _rotate(R: np.ndarray, theta: np.ndarray) -> np.ndarray:
+    """Resultants (..., 8) given in axes at θ from the target axes → target axes (N, M as stresses, Q a vector)."""
+    c, s = np.cos(theta), np.sin(theta)
+    cc, ss, cs = c * c, s * s, c * s
+    out = np.empty_like(R)
+    for o in (0, 3):
+        a, b, t = R[..., o], R[..., o + 1], R[..., o + 2]
+        out[..., o] = cc * a + ss * b - 2 * cs * t
+        out[..., o + 1] = ss * a + cc * b + 2 * cs * t
+        out[..., o + 2] = cs * a - cs * b + (cc - ss) * t
+    out[..., 6] = c * R[..., 6] - s * R[..., 7]
+    out[..., 7] = s * R[..., 6] + c * R[..., 7]
+    return out
+
+
+def fit_gradients(stencil: Stencil, cells: np.ndarray, ids: np.ndarray, R: np.ndarray) -> tuple[np.ndarray, ...]:
+    """Gradients of N and M at ``cells`` from resultants ``R`` of the cells ``ids`` (which hold the stencils).
+
+    Parameters
+    ----------
+    stencil : Stencil
+    cells : int (n,)
+        Global ids of the cells to fit.
+    ids : int (m,), sorted
+        Global ids of the rows of ``R`` (the cells and their neighbours, :meth:`Stencil.halo`).
+    R : float (..., m, 8)
+        Resultants in each cell's element frame (any leading axes: steps or cases).
+
+    Returns
+    -------
+    g : (..., n, 12)
+        Gradients in each cell's laminate axes, order of :data:`shells.field_shear.GRADIENT_COMPONENTS`.
+    q : (..., n, 2)
+        The cell's own (Qx, Qy) rotated into its laminate axes.
+    """
+    cells = np.asarray(cells, dtype=np.int64)
+    members = np.concatenate([cells[:, None], stencil.neighbours[cells]], axis=1)
+    present = members >= 0
+    rows = np.searchsorted(ids, np.where(present, members, cells[:, None]))
+    Rm = np.asarray(R, dtype=float)[..., rows, :]                     # (..., n, K + 1, 8)
+    Rl = _rotate(Rm, stencil.angle[cells])
+    Rl = np.where(present[..., None], Rl, 0.0)
+    w = stencil.weights[cells]                                          # (n, 2, K + 1)
+    grad = np.einsum("ndk,...nkr->...ndr", w, Rl[..., :6])            # (..., n, 2, 6)
+    g = np.concatenate([grad[..., 0, :], grad[..., 1, :]], axis=-1)
+    return g, Rl[..., 0, 6:8]
+
+
+def field_shear(G: np.ndarray, F: np.ndarray, first: np.ndarray, nply: np.ndarray, max_plies: int,
+                cell_sec: np.ndarray, phi_deg: np.ndarray, g: np.ndarray, R: np.ndarray,
+                valid: np.ndarray) -> np.ndarray:
+    """(τxz, τyz) at every ply point, laminate axes: G·g where the cell has a gradient, F·Q elsewhere.
+
+    Parameters
+    ----------
+    G : (nrows, 3, 2, 12)
+        Gradient-to-shear matrices of every ply row (:func:`shells.field_shear.gradient_shear_matrix`).
+    F : (nrows, 3, 2, 2)
+        Q-only distributions (the fallback).
+    first, nply : int (nsec,)
+        Ply rows of each section.
+    max_plies : int
+    cell_sec : int (ncell,), phi_deg : float (ncell,)
+    g : (ncase, ncell, 12)
+        Gradients in laminate axes.
+    R : (ncase, ncell, 8)
+        Resultants in the element frame (for the fallback's Q).
+    valid : bool (ncell,)
+
+    Returns
+    -------
+    ndarray (ncase, ncell, max_plies, 3, 2), NaN past a cell's ply count.
+    """
+    ncase, ncell = g.shape[:2]
+    out = np.full((ncase, ncell, max_plies, 3, 2), np.nan)
+    phi = np.radians(np.asarray(phi_deg, dtype=float))
+    c, s = np.cos(phi), np.sin(phi)
+    q = np.stack([c * R[..., 6] + s * R[..., 7], -s * R[..., 6] + c * R[..., 7]], axis=-1)   # laminate axes
+    for sec in np.unique(cell_sec):
+        cells = np.flatnonzero(cell_sec == sec)
+        rows = slice(first[sec], first[sec] + nply[sec])
+        ok, fb = cells[valid[cells]], cells[~valid[cells]]
+        out[:, ok, :nply[sec]] = np.einsum("kpij,snj->snkpi", G[rows], g[:, ok])
+        out[:, fb, :nply[sec]] = np.einsum("kpij,snj->snkpi", F[rows], q[:, fb])
+    return out

@@ -7,13 +7,13 @@ from typing import Any
 
 from shells.defaults import HOT_SPOTS, SHEAR_FACTOR, TRANSVERSE_SHEAR, WRINKLING_COEFFICIENT
 from shells.errors import DefinitionError
+from shells.section import SHEAR_METHODS
 
 from bridge.definition.schema import expect_table, take
 from bridge.definition.units import UnitSystem
 
 SPEC = {"criteria": "any", "factor_of_safety": "any", "transverse_shear": "str", "shear_factor": "dimensionless",
         "wrinkling_coefficient": "dimensionless", "hot_spots": "int", "check_ranges": "bool"}
-SHEAR_METHODS = ("equilibrium", "factor")
 #: Factor of safety by case kind: 1.5 on limit loads (14 CFR 25.303), 1.0 on ultimate loads.
 DEFAULT_FOS = {"limit": 1.5, "ultimate": 1.0}
 
@@ -29,7 +29,9 @@ class Analysis:
     factor_of_safety : dict
         Case kind → factor of safety.
     transverse_shear : str
-        ``"equilibrium"`` (Rolfes & Rohwer 1997, default) or ``"factor"`` for H.
+        ``"equilibrium"`` (Rolfes & Rohwer 1997, default) or ``"factor"`` for H; ``"field"``: H as
+        ``"equilibrium"``, and τ13, τ23 recovered from the gradients of the resultant field over the mesh
+        (:mod:`bridge.recover.field_shear`).
     shear_factor : float
         Correction factor of the ``"factor"`` method (5/6, common practice).
     wrinkling_coefficient : float

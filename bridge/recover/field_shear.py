@@ -31,7 +31,11 @@ class FieldPlan:
     def block_gradients(self, read_cells, start: int, stop: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """Gradients (nstep, n, 12) and input Q (nstep, n, 2) of cells start … stop − 1, laminate axes, and the
         cells with a stencil (n,). ``read_cells(ids)`` gives the input steps of increasing cell ids."""
-        cells = np.arange(start, stop)
+        return self.gradients(read_cells, np.arange(start, stop))
+
+    def gradients(self, read_cells, cells: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """As :meth:`block_gradients` for any cell ids."""
+        cells = np.asarray(cells, dtype=np.int64)
         ids = self.stencil.halo(cells)
         steps = np.nan_to_num(read_cells(ids))
         g, q = fit_gradients(self.stencil, cells, ids, steps)

@@ -92,34 +92,77 @@ def edge_neighbours(corners: Sequence[np.ndarray], zone: np.ndarray) -> np.ndarr
     return out[:, :max(1, int(count.max()) if count.size else 1)]
 
 
-def build_stencil(neighbours: np.ndarray, centroids: np.ndarray, frame_x: np.ndarray, frame_y: np.ndarray,
-                  phi_deg: np.ndarray) -> Stencil:
-    """Least-squares weights and frame angles of every cell's stencil (see :class:`Stencil`)."""
-    nb = np.asarray(neighbours, dtype=np.int64)
-    n, K = nb.shape
+#: A stencil whose offsets span the plane less than this (smallest over largest eigenvalue of their second
+#: moment) is widened to the neighbours of its neighbours (e.g. a triangle at a zone border whose two
+#: neighbours lie nearly in line with it).
+SPREAD = 0.1
+
+
+def _local_axes(frame_x: np.ndarray, frame_y: np.ndarray, phi_deg: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     phi = np.radians(np.asarray(phi_deg, dtype=float))
     c, s = np.cos(phi)[:, None], np.sin(phi)[:, None]
-    ex = c * frame_x + s * frame_y                     # laminate axes of each cell, global components
-    ey = -s * frame_x + c * frame_y
-    members = np.concatenate([np.arange(n)[:, None], nb], axis=1)          # (n, K + 1)
+    return c * frame_x + s * frame_y, -s * frame_x + c * frame_y          # laminate axes, global components
+
+
+def _fit(nb: np.ndarray, cells: np.ndarray, centroids: np.ndarray, ex: np.ndarray, ey: np.ndarray):
+    """Weights (n, 2, K + 1), validity and spread of the stencils ``nb`` (n, K) of ``cells``."""
+    members = np.concatenate([cells[:, None], nb], axis=1)
     present = members >= 0
-    m = np.where(present, members, np.arange(n)[:, None])
-    d = centroids[m] - centroids[:, None, :]
-    dx = np.einsum("nkj,nj->nk", d, ex)
-    dy = np.einsum("nkj,nj->nk", d, ey)
-    X = np.stack([np.ones_like(dx), dx, dy], axis=-1) * present[..., None]    # (n, K + 1, 3)
-    # Normalise the offsets by the stencil size for a well-conditioned solve.
+    m = np.where(present, members, cells[:, None])
+    d = centroids[m] - centroids[cells][:, None, :]
+    dx = np.einsum("nkj,nj->nk", d, ex[cells]) * present
+    dy = np.einsum("nkj,nj->nk", d, ey[cells]) * present
     size = np.sqrt((dx ** 2 + dy ** 2).max(axis=1))
     size = np.where(size > 0, size, 1.0)
-    Xs = X / np.stack([np.ones_like(size), size, size], axis=-1)[:, None, :]
-    XtX = np.einsum("nki,nkj->nij", Xs, Xs)
-    eig = np.linalg.eigvalsh(XtX)
-    valid = (present.sum(axis=1) >= 3) & (eig[:, 0] > 1e-8 * np.maximum(eig[:, -1], 1e-300))
+    X = np.stack([present.astype(float), dx / size[:, None], dy / size[:, None]], axis=-1)   # (n, K + 1, 3)
+    XtX = np.einsum("nki,nkj->nij", X, X)
+    moment = np.einsum("nki,nkj->nij", X[..., 1:], X[..., 1:])
+    ev = np.linalg.eigvalsh(moment)
+    spread = ev[:, 0] / np.maximum(ev[:, 1], 1e-300)
+    valid = (present.sum(axis=1) >= 3) & (np.linalg.eigvalsh(XtX)[:, 0] > 1e-10)
     safe = np.where(valid[:, None, None], XtX, np.eye(3))
-    pinv = np.linalg.solve(safe, np.transpose(Xs, (0, 2, 1)))                 # (n, 3, K + 1)
-    weights = pinv[:, 1:, :] / size[:, None, None]
-    weights = np.where(valid[:, None, None], weights, 0.0)
-    xm = frame_x[m]
+    weights = np.linalg.solve(safe, np.transpose(X, (0, 2, 1)))[:, 1:, :] / size[:, None, None]
+    return np.where(valid[:, None, None], weights, 0.0), valid, spread
+
+
+def _widened(nb: np.ndarray, cells: np.ndarray) -> np.ndarray:
+    """Neighbours and neighbours' neighbours of ``cells`` (same zone, since ``nb`` is), −1 padded."""
+    rows = []
+    for c in cells:
+        first = nb[c][nb[c] >= 0]
+        second = nb[first].ravel()
+        ring = np.setdiff1d(np.union1d(first, second[second >= 0]), [c])
+        rows.append(ring)
+    out = np.full((len(cells), max([len(r) for r in rows] + [1])), -1, np.int64)
+    for i, r in enumerate(rows):
+        out[i, :len(r)] = r
+    return out
+
+
+def build_stencil(neighbours: np.ndarray, centroids: np.ndarray, frame_x: np.ndarray, frame_y: np.ndarray,
+                  phi_deg: np.ndarray) -> Stencil:
+    """Least-squares weights and frame angles of every cell's stencil (see :class:`Stencil`).
+
+    A stencil spreading too little across the plane (:data:`SPREAD`) is widened once to the second ring.
+    """
+    nb = np.asarray(neighbours, dtype=np.int64)
+    n = nb.shape[0]
+    ex, ey = _local_axes(frame_x, frame_y, phi_deg)
+    cells = np.arange(n)
+    weights, valid, spread = _fit(nb, cells, centroids, ex, ey)
+    thin = np.flatnonzero(spread < SPREAD)
+    if thin.size:
+        wide = _widened(nb, thin)
+        w2, v2, _ = _fit(wide, thin, centroids, ex, ey)
+        K = max(nb.shape[1], wide.shape[1])
+        nb = np.pad(nb, ((0, 0), (0, K - nb.shape[1])), constant_values=-1)
+        weights = np.pad(weights, ((0, 0), (0, 0), (0, K + 1 - weights.shape[2])))
+        nb[thin] = np.pad(wide, ((0, 0), (0, K - wide.shape[1])), constant_values=-1)
+        weights[thin] = np.pad(w2, ((0, 0), (0, 0), (0, K + 1 - w2.shape[2])))
+        valid = valid.copy()
+        valid[thin] = v2
+    members = np.concatenate([cells[:, None], nb], axis=1)
+    xm = frame_x[np.where(members >= 0, members, cells[:, None])]
     angle = np.arctan2(np.einsum("nkj,nj->nk", xm, ey), np.einsum("nkj,nj->nk", xm, ex))
     return Stencil(nb, weights, angle, valid)
 

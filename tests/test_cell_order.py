@@ -127,7 +127,7 @@ def runs(tmp_path_factory):
     out = {}
     for name in ("ordered.h5", "swapped.xdmf"):
         proc = run_cli("recover", tmp / "def.toml", tmp / "m.vtu", tmp / name, "-o", tmp / f"{name}.out.h5",
-                       "--json", "--quiet")
+                       "--json")
         assert proc.returncode == 0, proc.stderr
         with h5py.File(tmp / f"{name}.out.h5") as h5:
             out[name] = (proc, h5["envelope/margin"][()])

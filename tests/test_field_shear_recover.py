@@ -27,7 +27,7 @@ def runs(tmp_path_factory):
         d = tmp / method
         d.mkdir()
         mesh, defn, res = pagano_inputs(d, method)
-        proc = run_cli("recover", defn, mesh, res, "-o", d / "out.h5", "--store", "plies", "--json", "--quiet")
+        proc = run_cli("recover", defn, mesh, res, "-o", d / "out.h5", "--store", "plies", "--json")
         assert proc.returncode == 0, proc.stderr
         with h5py.File(d / "out.h5") as h5:
             out[method] = (json.loads(proc.stdout), proc.stderr, h5["plies/transverse_shear"][0])

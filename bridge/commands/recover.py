@@ -54,7 +54,7 @@ def summary_lines(summary: dict, units: str) -> str:
 @click.option("--hot-spots", "hot_path", type=click.Path(dir_okay=False),
               help="Hot-spot CSV (default: OUTPUT-stem.hotspots.csv).")
 @click.option("--json", "as_json", is_flag=True, help="Print the full summary as JSON instead.")
-@click.option("--quiet", is_flag=True, help="No progress on stderr.")
+@click.option("--quiet", is_flag=True, help="No progress and no notes on stderr (the notes stay in the summary).")
 @click.option("--workers", type=int, default=None,
               help="Compute on a local cluster of N single-threaded worker processes (dask.distributed).")
 @click.option("--scheduler", default=None, metavar="ADDRESS",
@@ -93,8 +93,9 @@ def recover(definition, mesh, resultants, output, store_kind, view, hot_path, as
         click.echo(json.dumps(summary, indent=1))
     else:
         click.echo(summary_lines(summary, units), nl=False)
-    for text in summary.get("notes", []):
-        click.echo(f"note: {text}", err=True)
+    if not quiet:
+        for text in summary.get("notes", []):
+            click.echo(f"note: {text}", err=True)
     if summary["flagged_cells"]:
         click.echo(f"warning: {summary['flagged_cells']} cells had NaN or infinite resultants in some case; "
                    f"they are flagged in /cells/flagged (e.g. {summary['flagged_examples'][:5]})", err=True)

@@ -144,7 +144,7 @@ def compute_block(ctx: BlockContext, spec: BlockSpec) -> BlockResult:
                             combine_steps(ctx.weights, spec.gradients), R, spec.gradient_valid)
     env, cells, plies = recover_cells(tuple(by_name(n) for n in ctx.criteria), ctx.tables, spec.section,
                                       spec.phi, R, spec.dT, ctx.dM, ctx.pres, ctx.fos, ctx.store_plies,
-                                      **({} if shear is None else {"shear": shear}))
+                                      shear=shear)
     return BlockResult(spec.index, spec.start, spec.stop, env, cells, plies)
 
 

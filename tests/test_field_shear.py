@@ -178,3 +178,14 @@ def test_field_method_is_frame_invariant_and_q_only_is_not():
     H0 = equilibrium_shear_stiffness(sp0)
     H1 = equilibrium_shear_stiffness(sp1)
     assert np.abs(H1 - rotate_shear_stiffness(H0, -rot)).max() > 0.05 * np.abs(H0).max()
+
+
+@pytest.mark.parametrize("plies, change", [((0, 90, 90, 0), 0.10), ((0, 45, -45, 90, 90, -45, 45, 0), 0.14),
+                                           ((0, 45, 90), 0.12)])
+def test_q_only_stiffness_depends_on_the_laminate_axes(plies, change):
+    """docs/criteria.md: H of the same stack described from a 0° axis 30° away differs from the rotated H."""
+    kaw = Orthotropic("kaw", E1=181e3, E2=10.3e3, G12=7.17e3, nu12=0.28).validate()     # Kaw (2006) Table 2.1
+    H0 = equilibrium_shear_stiffness(section_properties(Laminate("a", tuple(Ply(kaw, a, 0.125) for a in plies))))
+    H1 = equilibrium_shear_stiffness(section_properties(Laminate("b", tuple(Ply(kaw, a - 30, 0.125) for a in plies))))
+    diff = np.abs(H1 - rotate_shear_stiffness(H0, -30.0)).max() / np.abs(H0).max()
+    assert diff == pytest.approx(change, abs=0.02)

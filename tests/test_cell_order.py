@@ -15,22 +15,13 @@ from bridge.mesh.shell import ShellMesh
 from bridge.recover.cell_order import ASSUMED_NOTE, match_cells
 from bridge.recover.resultants import read_resultants, write_resultants_h5, write_resultants_xdmf
 from shells.errors import ResultantsError
-from tests.common import assert_one_line_error, run_cli
+from tests.common import KAW_PLY_TOML, assert_one_line_error, run_cli
 from tests.meshes import flat_plate, mixed_plate
 
 DEF = """
 units = "N-mm"
 [materials.cf]
-E1 = "181 GPa"
-E2 = "10.3 GPa"
-G12 = "7.17 GPa"
-nu12 = 0.28
-Xt = 1500
-Xc = 1500
-Yt = 40
-Yc = 246
-S12 = 68
-thickness = 0.125
+""" + KAW_PLY_TOML + """thickness = 0.125
 [laminates.qi]
 layup = "[0/45/-45/90]s"
 material = "cf"

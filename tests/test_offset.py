@@ -27,6 +27,7 @@ from shells.laminate import Laminate, Ply, section_properties
 from shells.recovery_reference import ply_states
 from shells.recovery_tables import build_tables
 from shells.section import build_section
+from tests.common import KAW_PLY_TOML
 from tests.meshes import flat_plate
 
 T = 0.125
@@ -34,16 +35,7 @@ H = 4 * T
 DEF = """
 units = "N-mm"
 [materials.cf]
-E1 = "181 GPa"
-E2 = "10.3 GPa"
-G12 = "7.17 GPa"
-nu12 = 0.28
-Xt = 1500
-Xc = 1500
-Yt = 40
-Yc = 246
-S12 = 68
-thickness = 0.125
+""" + KAW_PLY_TOML + """thickness = 0.125
 [laminates.cross]
 layup = "[0/90]s"
 material = "cf"
@@ -54,19 +46,10 @@ material = "cf"
 offset = -0.25
 [analysis]
 criteria = ["max-stress"]
-[[zones]]
-name = "cross-ply"
-laminate = "cross"
-select = { tag = "block", values = [0] }
-[[zones]]
-name = "unidirectional"
-laminate = "ud"
-select = { tag = "block", values = [1] }
-[[zones]]
-name = "cross-ply-zone-offset"
-laminate = "cross"
-offset = 0
-"""
+""" + "".join(f'[[zones]]\nname = "{name}"\nlaminate = "{lam}"\n{rule}\n' for name, lam, rule in (
+    ("cross-ply", "cross", 'select = { tag = "block", values = [0] }'),
+    ("unidirectional", "ud", 'select = { tag = "block", values = [1] }'),
+    ("cross-ply-zone-offset", "cross", "offset = 0")))
 
 
 def _model():

@@ -15,6 +15,7 @@ import h5py
 import numpy as np
 import pytest
 
+from bridge.results.store import StoreReader
 from bridge.recover.pagano_check import PAGANO_DEFINITION, pagano_inputs, plate_shear
 from tests.common import run_cli
 
@@ -31,6 +32,8 @@ def runs(tmp_path_factory):
         assert proc.returncode == 0, proc.stderr
         with h5py.File(d / "out.h5") as h5:
             out[method] = (json.loads(proc.stdout), proc.stderr, h5["plies/transverse_shear"][0])
+        with StoreReader(d / "out.h5") as st:
+            out[method + "-meta"] = st.run
     out["mesh"] = mesh
     return out
 
@@ -43,6 +46,9 @@ def test_field_method_meets_the_thin_limit(runs):
     zone = summary["transverse_shear"]["zones"]["plate"]
     assert zone["mean"] < 5e-3 and zone["max"] < 1e-2 and zone["fallback_cells"] == 0
     assert "transverse shear from the moment field" in stderr
+    check = runs["field-meta"].summary.shear_check
+    assert [c.zone for c in check] == ["plate"] and check[0].max < 1e-2
+    assert runs["field-meta"].analysis.transverse_shear == "field"
 
 
 def test_q_only_method_is_high_in_tau_yz(runs):

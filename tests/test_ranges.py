@@ -21,6 +21,7 @@ from bridge.definition.ranges import RANGES, SI, si_factor
 from bridge.definition.units import SYSTEMS
 from bridge.mesh.formats import write_mesh
 from bridge.recover.resultants import write_resultants_h5
+from bridge.results.store import StoreReader
 from shells.errors import DefinitionError, InputError
 from tests.common import assert_one_line_error, run_cli
 from tests.meshes import flat_plate
@@ -153,9 +154,8 @@ def membrane_runs(tmp_path_factory):
         (tmp / f"{name}.toml").write_text(text)
         out[name] = run_recover(str(tmp / f"{name}.toml"), str(tmp / "m.vtu"), [str(tmp / "r.h5")],
                                 str(tmp / f"{name}.h5"))
-        with h5py.File(tmp / f"{name}.h5") as h5:
-            import json
-            out[name + "-meta"] = json.loads(h5.attrs["analysis"])
+        with StoreReader(tmp / f"{name}.h5") as st:
+            out[name + "-meta"] = st.run
     return out
 
 
@@ -163,14 +163,15 @@ def test_membrane_only_input_on_unsymmetric_section_is_noted(membrane_runs):
     notes = [n for n in membrane_runs["unsym"]["notes"] if "M = 0" in n]
     assert len(notes) == 1 and "'l'" in notes[0]
     assert not any("M = 0" in n for n in membrane_runs["sym"]["notes"])
-    assert membrane_runs["unsym-meta"]["check_ranges"] is True
+    assert membrane_runs["unsym-meta"].analysis.check_ranges is True
+    assert any("M = 0" in n for n in membrane_runs["unsym-meta"].summary.notes)
 
 
 def test_unchecked_ranges_are_noted(membrane_runs):
     notes = membrane_runs["sym"]["notes"]
     assert "material values were not checked against plausible ranges ([analysis] check_ranges = false)" in notes
     assert not any("plausible" in n for n in membrane_runs["unsym"]["notes"])
-    assert membrane_runs["sym-meta"]["check_ranges"] is False
+    assert membrane_runs["sym-meta"].analysis.check_ranges is False
 
 
 def test_every_range_has_a_reason_and_a_typical_value():

@@ -54,7 +54,7 @@ def _error(text: str) -> str:
     ("N-mm", "E1", "181", ("materials.cf.E1 = 181 MPa", "181 read as 181 MPa: did you mean \"181 GPa\"?")),
     ("N-mm", "E1", "26.25e6", ("looks like psi in an N-mm file",)),
     ("N-mm", "Xt", "217600", ("materials.cf.Xt", "looks like psi in an N-mm file")),
-    ("N-m", "Xt", "1500", ("1500 read as 1500 N/m²", "\"1500 MPa\"")),
+    ("N-m", "Xt", "1500", ("1500 read as 1500 Pa", "\"1500 MPa\"")),
     ("N-m", "thickness", "0.125", ("0.125 read as 0.125 m", "\"0.125 mm\"")),
     ("lbf-in", "E1", "181", ("looks like GPa in an lbf-in file",)),
     ("lbf-in", "E1", "26.25", ("26.25 read as 26.25 psi", "\"26.25 Msi\"")),

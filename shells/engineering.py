@@ -38,8 +38,13 @@ def _constants(compliance: np.ndarray, scale: float) -> dict[str, float]:
 
 
 def mid_plane_offset(sp: SectionProperties) -> float:
-    """The offset e of the section: reference surface (z = 0) to the laminate mid-plane."""
-    return float((sp.z[0] + sp.z[-1]) / 2.0)
+    """The offset e of the section: reference surface (z = 0) to the laminate mid-plane.
+
+    From the ply interfaces ``sp.z``, or ``sp.offset`` for an object holding only stiffness (A, B, D, thickness,
+    offset), such as a section read back from a results store.
+    """
+    z = getattr(sp, "z", None)
+    return float((z[0] + z[-1]) / 2.0) if z is not None else float(sp.offset)
 
 
 def mid_plane_stiffness(sp: SectionProperties) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -130,7 +135,8 @@ def polar_moduli(sp: SectionProperties, angles_deg: np.ndarray) -> dict[str, np.
     """Membrane and flexural Young's moduli along directions at ``angles_deg`` from laminate x.
 
     E(θ) = 1 / (h · a'11(θ)) with a' the compliance rotated into the direction θ; restrained constants
-    about the mid-plane (A⁻¹ and D_mid⁻¹, see the module notes).
+    about the mid-plane (A⁻¹ and D_mid⁻¹, see the module notes). ``sp`` needs A, B, D, thickness and either
+    the interfaces z or the offset (:func:`mid_plane_offset`).
     """
     T = stress_rotation(np.asarray(angles_deg, dtype=float))
     first = T[..., :, 0]  # unit stress along θ, expressed in laminate axes

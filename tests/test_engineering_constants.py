@@ -116,3 +116,18 @@ def test_mixed_stacks_stay_below_the_stiffest_ply_direction(plies, offset_ratio)
     bound = max(rotate_plane_stiffness(m.Q(), angles)[:, 0, 0].max() for m, _, _ in plies)
     for key, value in _moduli(sp).items():
         assert 0 < value <= bound * (1 + 1e-4), (key, value, bound)
+
+
+def test_polar_moduli_from_stored_stiffness_match_the_section():
+    """A section read back as A, B, D, thickness and offset (the results store) gives the same polar moduli."""
+    from types import SimpleNamespace
+
+    from shells.engineering import polar_moduli
+
+    sp = section_properties(Laminate("qi", tuple(Ply(KAW, a, 0.125) for a in QI), 0.5))
+    stored = SimpleNamespace(A=sp.A, B=sp.B, D=sp.D, thickness=sp.thickness, offset=0.5)
+    angles = np.linspace(0, 180, 7)
+    a, b = polar_moduli(sp, angles), polar_moduli(stored, angles)
+    np.testing.assert_allclose(b["flexural"], a["flexural"], rtol=1e-12)
+    base = polar_moduli(section_properties(Laminate("qi", tuple(Ply(KAW, x, 0.125) for x in QI))), angles)
+    np.testing.assert_allclose(a["flexural"], base["flexural"], rtol=1e-9)      # offset-free, as constants

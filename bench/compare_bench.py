@@ -46,7 +46,7 @@ def inputs(work: Path, n_cells: int, n_cases: int) -> dict[str, str]:
 
     from bridge.definition.cases import combine_steps
     from bridge.definition.loader import load_definition
-    from bridge.mesh.formats import write_mesh, xdmf
+    from bridge.mesh.formats import write_mesh
     from bridge.model.build import build_model
     from bridge.recover.files import H5_DATASET
     from postproc.compare import reference_values

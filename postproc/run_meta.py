@@ -96,7 +96,11 @@ class PlyInfo:
 
 @dataclass(frozen=True)
 class SectionInfo:
-    """A section (laminate with an offset), laminate axes. Stiffness matrices are datasets of the store."""
+    """A section (laminate with an offset), laminate axes. Stiffness matrices are datasets of the store.
+
+    ``membrane`` and ``flexural`` are the restrained engineering constants about the mid-plane (A⁻¹, D_mid⁻¹),
+    ``membrane_free`` and ``flexural_free`` those of the full mid-plane ABD inverse (docs/fields.md).
+    """
 
     id: int
     name: str
@@ -110,6 +114,8 @@ class SectionInfo:
     membrane: tuple[Named, ...] = ()
     flexural: tuple[Named, ...] = ()
     flags: tuple[str, ...] = ()
+    membrane_free: tuple[Named, ...] = ()
+    flexural_free: tuple[Named, ...] = ()
 
     @property
     def interfaces(self) -> tuple[float, ...]:
@@ -151,6 +157,7 @@ class AnalysisInfo:
     shear_factor: float
     wrinkling_coefficient: float
     hot_spots: int
+    check_ranges: bool = True
 
 
 @dataclass(frozen=True)
@@ -186,6 +193,20 @@ class Minimum:
 
 
 @dataclass(frozen=True)
+class ShearCheck:
+    """Transverse shear from the moment field: how far the input Q is from the fitted field's Q in one zone.
+
+    ``mean`` Σ|Q_field − Q_input| / Σ|Q_input|, ``max`` max|Q_field − Q_input| / max|Q_input| (None without Q);
+    ``fallback_cells`` used the Q-only method.
+    """
+
+    zone: str
+    mean: float | None
+    max: float | None
+    fallback_cells: int = 0
+
+
+@dataclass(frozen=True)
 class RunSummary:
     worst: HotSpot | None = None
     hot_spots: tuple[HotSpot, ...] = ()
@@ -195,7 +216,8 @@ class RunSummary:
     criteria: tuple[Minimum, ...] = ()
     flagged_cells: int = 0
     flagged_examples: tuple[int, ...] = ()
-    notes: tuple[str, ...] = ()   # about the mesh: duplicate cells, flipped neighbours, cells left out
+    notes: tuple[str, ...] = ()   # what the run assumed or found unusual, and about the mesh
+    shear_check: tuple[ShearCheck, ...] = ()
 
     @classmethod
     def from_result(cls, result: Mapping[str, Any]) -> "RunSummary":
@@ -206,9 +228,11 @@ class RunSummary:
 
         hot = tuple(HotSpot(**h) for h in result.get("hot_spots", ()))
         worst = result.get("worst")
+        shear = result.get("transverse_shear", {}).get("zones", {})
         return cls(HotSpot(**worst) if worst else None, hot, groups("zones"), groups("laminates"),
                    groups("cases"), groups("criteria"), int(result.get("flagged_cells", 0)),
-                   tuple(result.get("flagged_examples", ())), tuple(result.get("notes", ())))
+                   tuple(result.get("flagged_examples", ())), tuple(result.get("notes", ())),
+                   tuple(ShearCheck(name, v["mean"], v["max"], int(v["fallback_cells"])) for name, v in shear.items()))
 
 
 @dataclass(frozen=True)

@@ -17,8 +17,9 @@ from shells.recovery_tables import SectionTables
 
 
 def cell_states(criteria: Sequence[type], tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray,
-                R: np.ndarray, dT: np.ndarray, dM: np.ndarray, pres: np.ndarray) -> dict[str, np.ndarray]:
-    """States and strength ratios of the given cells.
+                R: np.ndarray, dT: np.ndarray, dM: np.ndarray, pres: np.ndarray,
+                shear: np.ndarray | None = None) -> dict[str, np.ndarray]:
+    """States and strength ratios of the given cells (``shear``: see :func:`shells.recovery_reference.ply_states`).
 
     Returns
     -------
@@ -27,7 +28,7 @@ def cell_states(criteria: Sequence[type], tables: SectionTables, cell_sec: np.nd
         ``strain`` (ncase, ncell, maxply, 3, 3); ``z`` (ncell, maxply, 3);
         ``ratio`` (ncrit, ncase, ncell, maxply, 3) strength ratios (NaN past a cell's ply count).
     """
-    ref = ply_states(tables, cell_sec, phi_deg, R, dT, dM, pres)
+    ref = ply_states(tables, cell_sec, phi_deg, R, dT, dM, pres, shear)
     n, mp = len(cell_sec), tables.max_plies
     pidx = np.full((n, mp), -1, dtype=np.int64)
     for i, s in enumerate(cell_sec):

@@ -1,9 +1,17 @@
 """Engineering constants and classification flags of a laminate section.
 
-Membrane constants come from A⁻¹ and flexural constants from D⁻¹ (curvature,
-respectively mid-plane strain, restrained): for a symmetric stack they are the
-usual laminate constants; for a coupled stack they are the restrained values
-(common practice), and the ``coupled`` flag says so.
+Engineering constants describe the laminate itself, so they are taken about its
+**mid-plane**, whatever the reference-surface offset of the section (the offset
+moves B and D, never the laminate's moduli). Two sets are given:
+
+- **restrained**: membrane constants from A⁻¹ (curvature held at zero) and
+  flexural constants from D⁻¹ (mid-plane strain held at zero);
+- **free**: from the 3×3 blocks of the full inverse of the mid-plane ABD
+  (the other resultant, M respectively N, is zero and the laminate deforms freely).
+
+For a stack without mid-plane coupling (B_mid = 0, e.g. symmetric) the two are
+equal. Free moduli never exceed restrained ones (common practice: the coupled
+compliance adds a positive semi-definite term).
 """
 
 from __future__ import annotations
@@ -29,14 +37,58 @@ def _constants(compliance: np.ndarray, scale: float) -> dict[str, float]:
     }
 
 
-def membrane_constants(sp: SectionProperties) -> dict[str, float]:
-    """In-plane engineering constants: Ex = 1/(h·a11), Ey = 1/(h·a22), Gxy = 1/(h·a66), νxy = −a12/a11, a = A⁻¹."""
-    return _constants(np.linalg.inv(sp.A), sp.thickness)
+def mid_plane_offset(sp: SectionProperties) -> float:
+    """The offset e of the section: reference surface (z = 0) to the laminate mid-plane.
+
+    From the ply interfaces ``sp.z``, or ``sp.offset`` for an object holding only stiffness (A, B, D, thickness,
+    offset), such as a section read back from a results store.
+    """
+    z = getattr(sp, "z", None)
+    return float((z[0] + z[-1]) / 2.0) if z is not None else float(sp.offset)
 
 
-def flexural_constants(sp: SectionProperties) -> dict[str, float]:
-    """Bending engineering constants: Ex = 12/(h³·d11) etc., d = D⁻¹ (about the reference surface)."""
-    return _constants(np.linalg.inv(sp.D), sp.thickness ** 3 / 12.0)
+def mid_plane_stiffness(sp: SectionProperties) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """A, B, D about the laminate mid-plane (parallel-axis rule: B_mid = B − e·A, D_mid = D − 2e·B + e²·A)."""
+    e = mid_plane_offset(sp)
+    return sp.A, sp.B - e * sp.A, sp.D - 2.0 * e * sp.B + e * e * sp.A
+
+
+def _compliance(sp: SectionProperties, part: str, free: bool) -> np.ndarray:
+    A, B, D = mid_plane_stiffness(sp)
+    if free:
+        full = np.linalg.inv(np.block([[A, B], [B, D]]))
+        return full[:3, :3] if part == "membrane" else full[3:, 3:]
+    return np.linalg.inv(A if part == "membrane" else D)
+
+
+def membrane_constants(sp: SectionProperties, free: bool = False) -> dict[str, float]:
+    """In-plane engineering constants: Ex = 1/(h·a11), Ey = 1/(h·a22), Gxy = 1/(h·a66), νxy = −a12/a11.
+
+    ``a`` is A⁻¹ (restrained, default) or the membrane block of the mid-plane [A B; B D]⁻¹ (``free=True``).
+    Stress unit; ν dimensionless.
+    """
+    return _constants(_compliance(sp, "membrane", free), sp.thickness)
+
+
+def flexural_constants(sp: SectionProperties, free: bool = False) -> dict[str, float]:
+    """Bending engineering constants about the mid-plane: Ex = 12/(h³·d11), Ey, Gxy alike, νxy = −d12/d11.
+
+    ``d`` is D_mid⁻¹ (restrained, default) or the bending block of the mid-plane [A B; B D]⁻¹ (``free=True``).
+    """
+    return _constants(_compliance(sp, "flexural", free), sp.thickness ** 3 / 12.0)
+
+
+def engineering_constants(sp: SectionProperties) -> dict[str, dict[str, dict[str, float]]]:
+    """``{"membrane" | "flexural": {"restrained" | "free": {Ex, Ey, Gxy, nuxy, nuyx}}}``, about the mid-plane."""
+    return {part: {"restrained": fn(sp), "free": fn(sp, free=True)}
+            for part, fn in (("membrane", membrane_constants), ("flexural", flexural_constants))}
+
+
+def mid_plane_coupled(sp: SectionProperties) -> bool:
+    """True when the stack couples extension and bending about its own mid-plane (restrained ≠ free)."""
+    A, B, D = mid_plane_stiffness(sp)
+    scale = float(np.sqrt(np.abs(A).max() * np.abs(D).max()))
+    return not bool(np.all(np.abs(B) <= FLAG_TOLERANCE * scale))
 
 
 def _small(value: float, scale: float) -> bool:
@@ -58,7 +110,8 @@ def flags(lam: Laminate, sp: SectionProperties) -> dict[str, bool]:
     dict
         ``symmetric`` (stack mirror-equal about its mid-plane), ``balanced``
         (A16 = A26 = 0), ``coupled`` (B ≠ 0, extension-bending coupling about the
-        reference surface), ``bending_twist`` (D16 or D26 ≠ 0), ``quasi_isotropic``
+        reference surface, as the solver sees it), ``mid_plane_coupled`` (B_mid ≠ 0:
+        the laminate itself couples, so restrained and free constants differ), ``bending_twist`` (D16 or D26 ≠ 0), ``quasi_isotropic``
         (A11 = A22, A16 = A26 = 0 and A66 = (A11 − A12)/2: in-plane isotropy).
     """
     A, B, D = sp.A, sp.B, sp.D
@@ -70,6 +123,7 @@ def flags(lam: Laminate, sp: SectionProperties) -> dict[str, bool]:
         "symmetric": is_symmetric_stack(lam),
         "balanced": balanced,
         "coupled": not bool(np.all(np.abs(B) <= FLAG_TOLERANCE * b_scale)),
+        "mid_plane_coupled": mid_plane_coupled(sp),
         "bending_twist": not (_small(D[0, 2], d_scale) and _small(D[1, 2], d_scale)),
         "quasi_isotropic": balanced and _small(A[0, 0] - A[1, 1], a_scale)
         and _small(A[2, 2] - (A[0, 0] - A[0, 1]) / 2.0, a_scale),
@@ -80,12 +134,14 @@ def flags(lam: Laminate, sp: SectionProperties) -> dict[str, bool]:
 def polar_moduli(sp: SectionProperties, angles_deg: np.ndarray) -> dict[str, np.ndarray]:
     """Membrane and flexural Young's moduli along directions at ``angles_deg`` from laminate x.
 
-    E(θ) = 1 / (h · a'11(θ)) with a' the compliance rotated into the direction θ.
+    E(θ) = 1 / (h · a'11(θ)) with a' the compliance rotated into the direction θ; restrained constants
+    about the mid-plane (A⁻¹ and D_mid⁻¹, see the module notes). ``sp`` needs A, B, D, thickness and either
+    the interfaces z or the offset (:func:`mid_plane_offset`).
     """
     T = stress_rotation(np.asarray(angles_deg, dtype=float))
     first = T[..., :, 0]  # unit stress along θ, expressed in laminate axes
-    a = np.linalg.inv(sp.A)
-    d = np.linalg.inv(sp.D)
+    a = _compliance(sp, "membrane", False)
+    d = _compliance(sp, "flexural", False)
     h = sp.thickness
     return {
         "membrane": 1.0 / (h * np.einsum("...i,ij,...j->...", first, a, first)),

@@ -170,6 +170,14 @@ class Orthotropic(_Layer):
             raise MaterialError(
                 f"material '{self.name}': |nu12| = {abs(self.nu12):g} must be below sqrt(E1/E2) = {limit:g} "
                 "for a positive-definite compliance; check nu12 and the moduli")
+        if self.nu23 is not None:
+            # Transversely isotropic 3-D compliance (ν13 = ν12, E3 = E2) is positive definite when
+            # (1 + ν23)(1 − ν23 − 2 ν12 ν21) > 0; ν23 > −1 also keeps G23 = E2/(2(1 + ν23)) positive.
+            top = 1.0 - 2.0 * self.nu12 * self.nu21
+            if not -1.0 < self.nu23 < top:
+                raise MaterialError(
+                    f"material '{self.name}': nu23 = {self.nu23:g} must lie in (-1, {top:g}) (1 - 2·nu12·nu21) "
+                    "for a positive-definite 3-D compliance and G23 > 0; check nu23")
         _require_positive(self.name, Xt=self.Xt, Xc=self.Xc, Yt=self.Yt, Yc=self.Yc, S12=self.S12,
                           S13=self.S13, S23=self.S23, e1t=self.e1t, e1c=self.e1c, e2t=self.e2t,
                           e2c=self.e2c, g12u=self.g12u, ilss=self.ilss)

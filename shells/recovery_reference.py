@@ -14,7 +14,8 @@ from .rotation import shear_rotation, stress_rotation
 
 
 def ply_states(tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray, R: np.ndarray,
-               dT: np.ndarray, dM: np.ndarray | None = None, pres: np.ndarray | None = None) -> dict:
+               dT: np.ndarray, dM: np.ndarray | None = None, pres: np.ndarray | None = None,
+               shear: np.ndarray | None = None) -> dict:
     """Material-axis states at the bottom, middle and top of every ply.
 
     Parameters
@@ -30,6 +31,8 @@ def ply_states(tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray,
         Temperature change.
     dM, pres : float (ncase,), optional
         Moisture change and lateral pressure per case.
+    shear : float (ncase, ncell, maxply, 3, 2), optional
+        (τxz, τyz) at every ply point in laminate axes, replacing F·(Qx, Qy) (field transverse shear).
 
     Returns
     -------
@@ -77,7 +80,8 @@ def ply_states(tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray,
                 free_strain = (tables.alpha[row][None, None, :] * dT[:, cells][..., None]
                                + tables.beta[row][None, None, :] * dM[:, None, None])
                 free = np.concatenate([free_strain, np.zeros(free_strain.shape[:-1] + (1,))], axis=-1)
-                tau = (Qs[:, cells] @ tables.F[row, q].T) @ Rt.T
+                lam = Qs[:, cells] @ tables.F[row, q].T if shear is None else shear[:, cells, k, q]
+                tau = lam @ Rt.T
                 mech[:, cells, k, q, :3] = eps_m @ Qm.T
                 mech[:, cells, k, q, 3:5] = tau
                 mech[:, cells, k, q, 5] = -pres[:, None]

@@ -11,10 +11,14 @@ import numpy as np
 from . import params as P
 from .defaults import SHEAR_FACTOR, TRANSVERSE_SHEAR, WRINKLING_COEFFICIENT
 from .errors import LayupError
-from .engineering import flags, flexural_constants, membrane_constants
+from .engineering import engineering_constants, flags, membrane_constants
 from .laminate import Laminate, Ply, SectionProperties, section_properties
 from .sandwich import dimpling_stress, wrinkling_stress
 from .shear import PLY_POINTS, equilibrium_shear_stiffness, factor_shear_stiffness, shear_distribution
+
+
+#: Transverse shear methods: how H is computed and how τ13, τ23 are recovered.
+SHEAR_METHODS = ("equilibrium", "factor", "field")
 
 
 @dataclass(frozen=True)
@@ -29,7 +33,7 @@ class Section:
     H : ndarray (2, 2)
         Transverse shear stiffness, order (xz, yz).
     shear_method : str
-        ``"equilibrium"`` or ``"factor"``.
+        ``"equilibrium"``, ``"factor"`` or ``"field"`` (H as ``"equilibrium"``).
     shear_F : ndarray (nply, 3, 2, 2)
         (τxz, τyz) = F · (Qx, Qy) at the bottom, middle and top of every ply.
     ply_params : ndarray (nply, NPARAM)
@@ -62,8 +66,7 @@ class Section:
             "shear_method": self.shear_method,
             "NT": sp.NT.tolist(), "MT": sp.MT.tolist(),
             "NH": sp.NH.tolist(), "MH": sp.MH.tolist(),
-            "membrane": membrane_constants(sp),
-            "flexural": flexural_constants(sp),
+            **engineering_constants(sp),
             "flags": flags(self.laminate, sp),
         }
 
@@ -109,8 +112,9 @@ def build_section(lam: Laminate, shear_method: str = TRANSVERSE_SHEAR, shear_fac
     Parameters
     ----------
     lam : Laminate
-    shear_method : {"equilibrium", "factor"}
-        How H is obtained: energy-consistent (Rolfes & Rohwer 1997) or k·ΣḠt.
+    shear_method : {"equilibrium", "factor", "field"}
+        How H is obtained: energy-consistent (Rolfes & Rohwer 1997) or k·ΣḠt; ``"field"`` (transverse shear
+        recovered from the resultant field, :mod:`shells.field_shear`) takes H as ``"equilibrium"``.
     shear_factor : float
         k of the ``"factor"`` method.
     wrinkling_coefficient : float
@@ -121,10 +125,12 @@ def build_section(lam: Laminate, shear_method: str = TRANSVERSE_SHEAR, shear_fac
     if not eig.min() > 1e-12 * eig.max():
         raise LayupError(f"laminate '{lam.name}' has a singular stiffness matrix (a core or zero-stiffness layers "
                          "only?); add load-carrying plies")
-    if shear_method == "equilibrium":
-        H = equilibrium_shear_stiffness(sp)
-    else:
+    if shear_method not in SHEAR_METHODS:
+        raise ValueError(f"shear_method {shear_method!r}; use one of {', '.join(SHEAR_METHODS)}")
+    if shear_method == "factor":
         H = factor_shear_stiffness(sp, shear_factor)
+    else:
+        H = equilibrium_shear_stiffness(sp)
     params = np.array([p.material.params() for p in lam.plies])
     _face_allowables(lam, params, wrinkling_coefficient)
     return Section(lam, sp, H, shear_method, shear_distribution(sp, PLY_POINTS), params)

@@ -47,9 +47,22 @@ def equilibrium_shear(sp: SectionProperties, dM_dx: np.ndarray, dM_dy: np.ndarra
     ndarray (nply, m, 2) or (nply, m, 2, k)
         (τxz, τyz) in laminate axes (force/length²).
     """
+    dM_dx, dM_dy = np.asarray(dM_dx, dtype=float), np.asarray(dM_dy, dtype=float)
+    zero = np.zeros_like(dM_dx)
+    return resultant_shear(sp, np.concatenate([zero, dM_dx]), np.concatenate([zero, dM_dy]), fractions)
+
+
+def resultant_shear(sp: SectionProperties, dR_dx: np.ndarray, dR_dy: np.ndarray,
+                    fractions: np.ndarray = PLY_POINTS) -> np.ndarray:
+    """Transverse shear through the thickness from the gradients of all six resultants (N, M).
+
+    As :func:`equilibrium_shear` with ∂(ε⁰, κ) = [A B; B D]⁻¹ ∂(N, M): ``dR_dx``, ``dR_dy`` are (6,) or (6, k)
+    gradients of (Nx, Ny, Nxy, Mx, My, Mxy) about the reference surface, laminate axes. The top face carries
+    τ = −(Nx,x + Nxy,y, Nxy,x + Ny,y): zero only when the membrane gradients are in equilibrium.
+    """
     comp = np.linalg.inv(sp.ABD)
-    gx = comp[:, 3:] @ np.asarray(dM_dx, dtype=float)
-    gy = comp[:, 3:] @ np.asarray(dM_dy, dtype=float)
+    gx = comp @ np.asarray(dR_dx, dtype=float)
+    gy = comp @ np.asarray(dR_dy, dtype=float)
     zb, zt = sp.z[:-1], sp.z[1:]
 
     def partial(z_lo, z_hi, k, g):        # ∫ Q̄ (e + ζ c) dζ over [z_lo, z_hi] in ply k

@@ -28,3 +28,16 @@ def assert_one_line_error(proc: subprocess.CompletedProcess, *needles: str) -> s
     for needle in needles:
         assert needle in lines[0], (needle, lines[0])
     return lines[0]
+
+#: The graphite/epoxy ply of Kaw, Mechanics of Composite Materials, 2nd ed. (2006), Table 2.1, as the body of a
+#: ``[materials.NAME]`` table in N-mm (moduli, ν12 and strengths; add thickness and other keys after it).
+KAW_PLY_TOML = """E1 = "181 GPa"
+E2 = "10.3 GPa"
+G12 = "7.17 GPa"
+nu12 = 0.28
+Xt = 1500
+Xc = 1500
+Yt = 40
+Yc = 246
+S12 = 68
+"""

@@ -62,29 +62,32 @@ def test_example_loads_and_prints_json():
         assert key in skin
     assert np.array(skin["A"]).shape == (3, 3) and np.array(skin["H"]).shape == (2, 2)
     assert len(skin["z"]) == 9 and skin["z"][0] == pytest.approx(-0.5)
-    assert set(skin["membrane"]) >= {"Ex", "Ey", "Gxy", "nuxy"}
+    assert set(skin["membrane"]["restrained"]) >= {"Ex", "Ey", "Gxy", "nuxy"}
+    assert set(skin["flexural"]) == {"restrained", "free"}
     assert skin["flags"]["quasi_isotropic"] and not out["laminates"]["unsym"]["flags"]["symmetric"]
     assert out["laminates"]["sandwich"]["thickness"] == pytest.approx(10.75)
 
 
+# A plausible ply (every value inside the ranges of bridge.definition.ranges).
+MAT = 'units = "N-mm"\n[materials.a]\nE1 = "100 GPa"\nE2 = "10 GPa"\nG12 = "5 GPa"\nnu12 = 0.3\n'
 BAD = [
     ('units = "N-mm"\n[materials.a]\nE1=1\n', "missing key 'E2'"),
     ('units = "N-mm"\n[materials.a]\nE1 = 1\nE2 = 1\nG12 = 1\nnu12 = 0.3\nXtt = 5\n', "did you mean 'Xt'"),
     ('units = "furlongs"\nmaterials = {}\nlaminates = {}\n', "not a known unit system"),
     ('units = "N-mm"\nmaterials = 3\nlaminates = {}\n', "must be a table"),
     ('units = "N-mm"\n[materials.a]\nE1 = "1 mm"\nE2 = 1\nG12 = 1\nnu12 = 0.3\n', "wrong dimension"),
-    ('units = "N-mm"\n[materials.a]\nE1 = 1\nE2 = 100\nG12 = 1\nnu12 = 0.3\n'
+    ('units = "N-mm"\n[materials.a]\nE1 = "10 GPa"\nE2 = "100 GPa"\nG12 = "4 GPa"\nnu12 = 0.5\n'
      '[laminates.l]\nlayup="[0]"\nmaterial="a"\nthickness=1\n', "sqrt(E1/E2)"),
-    ('units = "N-mm"\n[materials.a]\nE1 = 100\nE2 = 10\nG12 = -1\nnu12 = 0.3\n', "G12"),
-    ('units = "N-mm"\n[materials.a]\nE1 = 100\nE2 = 10\nG12 = 5\nnu12 = 0.3\nthickness = -0.1\n', "thickness"),
-    ('units = "N-mm"\n[materials.a]\nE1 = 100\nE2 = 10\nG12 = 5\nnu12 = 0.3\nthickness = 0.1\n'
+    ('units = "N-mm"\n[materials.a]\nE1 = "100 GPa"\nE2 = "10 GPa"\nG12 = -1\nnu12 = 0.3\n', "G12"),
+    (MAT + 'thickness = -0.1\n', "thickness"),
+    (MAT + 'thickness = 0.1\n'
      '[laminates.l]\nlayup = "[0/45"\nmaterial = "a"\n', "layup"),
-    ('units = "N-mm"\n[materials.a]\nE1 = 100\nE2 = 10\nG12 = 5\nnu12 = 0.3\nthickness = 0.1\n'
+    (MAT + 'thickness = 0.1\n'
      '[laminates.l]\nlayup = "[0/45]"\nmaterial = "b"\n', "unknown material 'b'"),
-    ('units = "N-mm"\n[materials.a]\nE1 = 100\nE2 = 10\nG12 = 5\nnu12 = 0.3\n'
+    (MAT +
      '[laminates.l]\nlayup = "[0/45]"\nmaterial = "a"\n', "no thickness"),
     ('units = "N-mm"\n[materials.a\n', "TOML syntax error"),
-    ('units = "N-mm"\n[materials.a]\nE1 = 100\nE2 = 10\nG12 = 5\nnu12 = 0.3\nknockdown = 1.5\n', "knockdown"),
+    (MAT + 'knockdown = 1.5\n', "knockdown"),
 ]
 
 

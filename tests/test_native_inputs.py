@@ -15,7 +15,6 @@ import pytest
 from bridge.definition.result_files import ResultFiles, parse_result_files
 from bridge.definition.resultants import ResultantFields, ResultantSettings, parse_fields
 from bridge.mesh.formats import vtu
-from bridge.mesh.shell import ShellMesh
 from bridge.model.frames import element_frames
 from bridge.recover.resultants import CellAxes, ResultantSource, read_resultants
 from bridge.recover.writers import resultant_arrays

@@ -8,22 +8,13 @@ import pytest
 
 from bridge.mesh.formats import write_mesh
 from bridge.recover.resultants import write_resultants_h5
-from tests.common import assert_one_line_error, run_cli
+from tests.common import KAW_PLY_TOML, assert_one_line_error, run_cli
 from tests.meshes import flat_plate
 
 DEF = """
 units = "N-mm"
 [materials.cf]
-E1 = "181 GPa"
-E2 = "10.3 GPa"
-G12 = "7.17 GPa"
-nu12 = 0.28
-Xt = 1500
-Xc = 1500
-Yt = 40
-Yc = 246
-S12 = 68
-thickness = 1.0
+""" + KAW_PLY_TOML + """thickness = 1.0
 [laminates.one]
 layup = "[60]"
 material = "cf"

@@ -16,7 +16,7 @@ import h5py
 import numpy as np
 import pytest
 
-from tests.common import assert_one_line_error, run_cli
+from tests.common import KAW_PLY_TOML, assert_one_line_error, run_cli
 from tests.meshes import flat_plate
 
 #: The /tmp/run1 definition, with a material named like a script (escaped in the report) and 2 hot spots.
@@ -25,16 +25,7 @@ DEFINITION = f"""units = "N-mm"
 [analysis]
 hot_spots = 2
 [materials."{EVIL}"]
-E1 = "181 GPa"
-E2 = "10.3 GPa"
-G12 = "7.17 GPa"
-nu12 = 0.28
-Xt = 1500
-Xc = 1500
-Yt = 40
-Yc = 246
-S12 = 68
-e1t = 0.0083
+""" + KAW_PLY_TOML + f"""e1t = 0.0083
 e1c = 0.0083
 e2t = 0.0039
 e2c = 0.024

@@ -14,9 +14,9 @@ from shells.errors import DefinitionError, ResultantsError
 BASE = """
 units = "N-mm"
 [materials.a]
-E1 = 100
-E2 = 10
-G12 = 5
+E1 = "100 GPa"
+E2 = "10 GPa"
+G12 = "5 GPa"
 nu12 = 0.3
 thickness = 1
 [laminates.l]

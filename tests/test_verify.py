@@ -1,7 +1,7 @@
-"""The built-in published cases (shells.published.PUBLISHED): the same list ``plybridge verify`` runs.
+"""The built-in published cases (bridge.recover.published.all_cases): the same list ``plybridge verify`` runs.
 
-Every value, its source and its tolerance are in shells/published.py (sources tabulated in
-/work/shared/REFERENCES.md); the test parametrises over that one list.
+Every value, its source and its tolerance are in shells/published.py, shells/published_sections.py and
+bridge/recover/published.py; the test parametrises over that one list.
 """
 
 from __future__ import annotations
@@ -12,7 +12,10 @@ import pytest
 from click.testing import CliRunner
 
 from bridge.cli import main
-from shells.published import PUBLISHED, Published, check
+from bridge.recover.published import all_cases
+from shells.published import Published, check
+
+PUBLISHED = all_cases()
 
 
 @pytest.mark.parametrize("case", PUBLISHED, ids=lambda c: c.case)
@@ -25,8 +28,9 @@ def test_published_case(case: Published):
 def test_cases_are_unique_and_cover_the_sources():
     names = [c.case for c in PUBLISHED]
     assert len(set(names)) == len(names)
-    text = " ".join(c.source for c in PUBLISHED)
-    for source in ("Kaw", "Tsai & Hahn", "Pagano", "Rolfes & Rohwer"):
+    text = " ".join(f"{c.source} {c.quantity}" for c in PUBLISHED)
+    for source in ("Kaw", "Tsai & Hahn", "Pagano", "Rolfes & Rohwer", "lbf-in", "held", "von Mises", "Allen",
+                   "recover"):
         assert source in text
 
 

@@ -36,7 +36,8 @@ def summary_lines(summary: dict, units: str) -> str:
             ("ply", w.get("ply", "")), ("case", w.get("case", "")), ("criterion", w.get("criterion", "")),
             ("mode", w.get("mode", "")), ("point", w.get("point", "")),
             ("strength_ratio", f"{w['strength_ratio']:.6g}" if w else ""),
-            ("flagged_cells", summary["flagged_cells"]), ("units", units)]
+            ("flagged_cells", summary["flagged_cells"]), ("cell_order", summary.get("cell_order", "")),
+            ("units", units)]
     zone = next((z for z, v in summary["zones"].items() if w and v["cell"] == w.get("cell")), "")
     rows.insert(2, ("zone", zone))
     return "".join(f"{k}\t{printable(str(v))}\n" for k, v in rows)
@@ -56,7 +57,7 @@ def summary_lines(summary: dict, units: str) -> str:
 @click.option("--hot-spots", "hot_path", type=click.Path(dir_okay=False),
               help="Hot-spot CSV (default: OUTPUT.hotspots.csv beside the store).")
 @click.option("--json", "as_json", is_flag=True, help="Print the full summary as JSON instead.")
-@click.option("--quiet", is_flag=True, help="No progress on stderr.")
+@click.option("--quiet", is_flag=True, help="No progress on stderr (notes and warnings are still printed).")
 @click.option("--workers", type=int, default=None,
               help="Compute on a local cluster of N single-threaded worker processes (dask.distributed).")
 @click.option("--scheduler", default=None, metavar="ADDRESS",
@@ -93,8 +94,6 @@ def recover(definition, mesh, resultants, output, store_kind, view, hot_path, as
     except KeyboardInterrupt:
         note("interrupted; finished blocks are kept beside the output: run again with --resume to finish")
         raise
-    for text in summary.get("notes", []):
-        note(f"note: {text}")
     write_text(hot_path, hot_spots_csv(summary))
     if view:
         write_view(output, view)
@@ -106,6 +105,8 @@ def recover(definition, mesh, resultants, output, store_kind, view, hot_path, as
         click.echo(json.dumps(summary, indent=1))
     else:
         click.echo(summary_lines(summary, units), nl=False)
+    for text in summary.get("notes", []):
+        note(f"note: {text}")
     if summary["flagged_cells"]:
         click.echo(f"warning: {summary['flagged_cells']} cells had NaN or infinite resultants in some case; "
                    f"they are flagged in /cells/flagged (e.g. {summary['flagged_examples'][:5]})", err=True)

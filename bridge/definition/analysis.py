@@ -7,6 +7,7 @@ from typing import Any
 
 from shells.defaults import HOT_SPOTS, SHEAR_FACTOR, TRANSVERSE_SHEAR, WRINKLING_COEFFICIENT
 from shells.errors import DefinitionError
+from shells.section import SHEAR_METHODS
 
 from bridge.definition.schema import expect_table, take
 from bridge.definition.units import UnitSystem
@@ -15,8 +16,7 @@ from bridge.definition.units import UnitSystem
 #: would turn every margin into -1).
 MAX_FOS = 10.0
 SPEC = {"criteria": "any", "factor_of_safety": "any", "transverse_shear": "str", "shear_factor": "dimensionless",
-        "wrinkling_coefficient": "dimensionless", "hot_spots": "int"}
-SHEAR_METHODS = ("equilibrium", "factor")
+        "wrinkling_coefficient": "dimensionless", "hot_spots": "int", "check_ranges": "bool"}
 #: Factor of safety by case kind: 1.5 on limit loads (14 CFR 25.303), 1.0 on ultimate loads.
 DEFAULT_FOS = {"limit": 1.5, "ultimate": 1.0}
 
@@ -32,13 +32,18 @@ class Analysis:
     factor_of_safety : dict
         Case kind → factor of safety.
     transverse_shear : str
-        ``"equilibrium"`` (Rolfes & Rohwer 1997, default) or ``"factor"`` for H.
+        ``"equilibrium"`` (Rolfes & Rohwer 1997, default) or ``"factor"`` for H; ``"field"``: H as
+        ``"equilibrium"``, and τ13, τ23 recovered from the gradients of the resultant field over the mesh
+        (:mod:`bridge.recover.field_shear`).
     shear_factor : float
         Correction factor of the ``"factor"`` method (5/6, common practice).
     wrinkling_coefficient : float
         k in σ_wr = k (Ef Ec Gc)^(1/3) (0.5, design value after Hoff & Mautner).
     hot_spots : int
         Rows in the hot-spot table.
+    check_ranges : bool
+        Refuse material values outside plausible ranges (``bridge.definition.ranges``); false accepts exotic
+        data and the run metadata says ranges were not checked.
     """
 
     criteria: tuple[str, ...] = ("max-stress", "max-strain", "tsai-wu", "hashin")
@@ -47,6 +52,7 @@ class Analysis:
     shear_factor: float = SHEAR_FACTOR
     wrinkling_coefficient: float = WRINKLING_COEFFICIENT
     hot_spots: int = HOT_SPOTS
+    check_ranges: bool = True
 
     def fos(self, kind: str) -> float:
         return dict(self.factor_of_safety)[kind]
@@ -83,4 +89,5 @@ def parse_analysis(table: Any, units: UnitSystem) -> Analysis:
     if not 1 <= hot <= 100000:
         raise DefinitionError(f"analysis.hot_spots = {hot} must lie between 1 and 100000")
     return Analysis(tuple(dict.fromkeys(criteria)), tuple(fos.items()), method, k,
-                    values.get("wrinkling_coefficient", WRINKLING_COEFFICIENT), hot)
+                    values.get("wrinkling_coefficient", WRINKLING_COEFFICIENT), hot,
+                    values.get("check_ranges", True))

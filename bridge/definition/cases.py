@@ -120,11 +120,23 @@ def _check_kind(values: dict, where: str) -> None:
         raise DefinitionError(f"{where}.kind = {kind!r}{suggest(kind, KINDS)}; use limit or ultimate")
 
 
+def _refuse_duplicates(names: list) -> None:
+    """Case and combination names must differ by more than letter case and surrounding spaces."""
+    seen: dict[str, str] = {}
+    for name in names:
+        key = str(name).strip().casefold()
+        if key in seen:
+            raise DefinitionError(f"case names {seen[key]!r} and {name!r} differ only in letter case or spaces; "
+                                  "rename one so that results and reports name each case once")
+        seen[key] = str(name)
+
+
 def parse_cases(cases: Any, combinations: Any, units: UnitSystem) -> Cases:
     cases = expect_table(cases, "[cases]")
     combinations = expect_table(combinations, "[combinations]")
     if len(cases) + len(combinations) > MAX_CASES:
         raise DefinitionError(f"more than {MAX_CASES} cases and combinations; split the run")
+    _refuse_duplicates([*cases, *combinations])
     parsed: dict[str, dict] = {}
     for name, table in cases.items():
         where = f"cases.{check_name(name, '[cases]')}"

@@ -15,7 +15,7 @@ from typing import Any, Mapping
 from shells.errors import DefinitionError, LayupError
 from shells.laminate import Laminate, Ply
 from shells.materials import Material
-from shells.stacking import parse_layup
+from shells.stacking import MAX_ANGLE, parse_layup
 
 from bridge.definition.schema import check_name, expect_table, suggest, take
 from bridge.definition.units import UnitSystem
@@ -69,6 +69,9 @@ def parse_laminate(name: str, table: Mapping[str, Any], materials: Mapping[str, 
         for k, entry in enumerate(entries, start=1):
             at = f"{where}.plies[{k}]"
             ply = take(expect_table(entry, at), PLY_SPEC, at, units, required=("angle",))
+            if not abs(ply["angle"]) <= MAX_ANGLE:
+                raise DefinitionError(f"{at}.angle = {ply['angle']:g}° is more than {MAX_ANGLE:g} degrees; "
+                                      "give the ply angle in degrees between -360 and 360")
             mat = _material(ply.get("material", default_material), materials, at)
             plies.append(Ply(mat, ply["angle"], _thickness(ply.get("thickness"), default_t, mat, at)))
     return Laminate(name, tuple(plies), values.get("offset", 0.0), values.get("layup"))

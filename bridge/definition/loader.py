@@ -23,6 +23,7 @@ from bridge.definition.cases import Cases, parse_cases
 from bridge.definition.frames import FrameSettings, parse_frames
 from bridge.definition.laminates import parse_laminates
 from bridge.definition.materials import parse_materials
+from bridge.definition.ranges import check_laminates_and_cases
 from bridge.definition.result_files import ResultFiles, parse_result_files
 from bridge.definition.resultants import ResultantFields, ResultantSettings, parse_fields, parse_resultant_settings
 from bridge.definition.schema import check_keys, clean_document
@@ -93,17 +94,20 @@ def parse_definition(doc: Mapping[str, Any], source: str = "<definition>", sha25
         doc = clean_document(doc)  # names and strings: NFC, bounded, no control characters (docs/scale.md)
         check_keys(doc, TOP_LEVEL, "top level", required=("units", "materials", "laminates"))
         units = system(doc["units"], source)
-        materials = parse_materials(doc["materials"], units)
+        analysis = parse_analysis(doc.get("analysis", {}), units)
+        materials = parse_materials(doc["materials"], units, analysis.check_ranges)
         laminates = parse_laminates(doc["laminates"], materials, units)
         title = doc.get("title", Path(source).stem)
         if not isinstance(title, str):
             raise DefinitionError("title must be a string")
+        cases = parse_cases(doc.get("cases", {}), doc.get("combinations", {}), units)
+        if analysis.check_ranges:
+            check_laminates_and_cases(laminates, cases, units)
         return Definition(
             source=source, sha256=sha256, units=units, title=title,
-            materials=materials, laminates=laminates,
-            analysis=parse_analysis(doc.get("analysis", {}), units),
+            materials=materials, laminates=laminates, analysis=analysis,
             zones=parse_zones(doc.get("zones", []), laminates, units),
-            cases=parse_cases(doc.get("cases", {}), doc.get("combinations", {}), units),
+            cases=cases,
             frames=parse_frames(doc.get("frames", {})),
             fields=parse_fields(doc.get("fields", {})),
             resultants=parse_resultant_settings(doc.get("resultants", {}), units),

@@ -7,6 +7,7 @@ from typing import Any, Mapping
 from shells.errors import DefinitionError, MaterialError
 from shells.materials import Core, Isotropic, Material, Orthotropic
 
+from bridge.definition.ranges import check_material_values
 from bridge.definition.schema import check_name, expect_table, suggest, take
 from bridge.definition.units import UnitSystem
 
@@ -57,7 +58,7 @@ def _knockdown(value: Any, where: str) -> tuple[float, tuple[tuple[str, float], 
     return product, tuple((key, float(factor)) for key, factor in table.items())
 
 
-def parse_material(name: str, table: Mapping[str, Any], units: UnitSystem) -> Material:
+def parse_material(name: str, table: Mapping[str, Any], units: UnitSystem, check_ranges: bool = True) -> Material:
     where = f"materials.{name}"
     table = expect_table(table, f"[{where}]")
     kind = table.get("kind", "ply")
@@ -65,6 +66,8 @@ def parse_material(name: str, table: Mapping[str, Any], units: UnitSystem) -> Ma
         raise DefinitionError(f"[{where}]: kind = {kind!r} is not known{suggest(kind, SPECS)}; "
                               f"use one of {', '.join(SPECS)}")
     values = take(table, SPECS[kind], where, units, REQUIRED[kind])
+    if check_ranges:
+        check_material_values(where, kind, values, units)
     values.pop("kind", None)
     if "knockdown" in values:
         values["knockdown"], values["knockdown_factors"] = _knockdown(values["knockdown"], f"{where}.knockdown")
@@ -77,8 +80,9 @@ def parse_material(name: str, table: Mapping[str, Any], units: UnitSystem) -> Ma
         raise MaterialError(f"[{where}]: {err.detail}") from None
 
 
-def parse_materials(tables: Any, units: UnitSystem) -> dict[str, Material]:
+def parse_materials(tables: Any, units: UnitSystem, check_ranges: bool = True) -> dict[str, Material]:
     tables = expect_table(tables, "[materials]")
     if not tables:
         raise DefinitionError("[materials] is empty; define at least one material")
-    return {check_name(name, "[materials]"): parse_material(name, table, units) for name, table in tables.items()}
+    return {check_name(name, "[materials]"): parse_material(name, table, units, check_ranges)
+            for name, table in tables.items()}

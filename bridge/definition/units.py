@@ -2,7 +2,8 @@
 
 A definition declares one consistent force–length system. A bare number is
 taken in that system; a string carries its own unit ("181 GPa", "0.125 mm",
-"1.6 g/cm^3") and is converted once, on load. Mass is in the consistent unit
+"1.6 g/cm^3", "26 Msi", "0.058 lb/in^3"; a weight density such as "0.058 lbf/in^3" is divided by
+standard gravity) and is converted once, on load. Mass is in the consistent unit
 force·time²/length (tonne in N-mm, kg in N-m, lbf·s²/in in lbf-in), so that
 areal mass times acceleration is a pressure in the same system.
 """
@@ -84,12 +85,34 @@ SYSTEMS = {
 }
 
 
+#: Spellings of the trade pint does not know: million psi, pound mass.
+EXTRA_UNITS = ("Msi = 1e6 * psi", "msi = Msi", "lbm = pound")
+
+#: An example entry of each quantity kind in each system, for error messages.
+EXAMPLES = {
+    "N-mm": {"stress": "181 GPa", "length": "0.125 mm", "density": "1.6 g/cm^3", "expansion": "22.5e-6 /degC",
+             "temperature": "-155 degC"},
+    "N-m": {"stress": "181 GPa", "length": "0.125 mm", "density": "1600 kg/m^3", "expansion": "22.5e-6 /degC",
+            "temperature": "-155 degC"},
+    "lbf-in": {"stress": "26.3 Msi", "length": "0.005 in", "density": "0.058 lb/in^3",
+               "expansion": "12.5e-6 /degF", "temperature": "-280 degF"},
+}
+
+
+def example(kind: str, units: UnitSystem) -> str:
+    """A quantity string of ``kind`` that fits the unit system, e.g. '26.3 Msi' in lbf-in."""
+    return EXAMPLES[units.name].get(kind, EXAMPLES[units.name]["stress"])
+
+
 @functools.lru_cache(maxsize=1)
 def registry():
-    """The pint unit registry (built once per process; pint is imported lazily)."""
+    """The pint unit registry (built once per process; pint is imported lazily), with :data:`EXTRA_UNITS`."""
     import pint
 
-    return pint.UnitRegistry()
+    ureg = pint.UnitRegistry()
+    for line in EXTRA_UNITS:
+        ureg.define(line)
+    return ureg
 
 
 def system(name: object, source: str) -> UnitSystem:
@@ -112,7 +135,8 @@ def convert(value: object, kind: str, units: UnitSystem, where: str) -> float:
         The entry, e.g. ``"materials.cf-ud.E1"``, named in error messages.
     """
     if isinstance(value, bool):
-        raise DefinitionError(f"{where} = {value!r}: expected a number or a quantity string such as '181 GPa'")
+        raise DefinitionError(f"{where} = {value!r}: expected a number or a quantity string such as "
+                              f"'{example(kind, units)}'")
     if isinstance(value, (int, float)):
         out = float(value)
     elif isinstance(value, str):
@@ -121,7 +145,7 @@ def convert(value: object, kind: str, units: UnitSystem, where: str) -> float:
         out = _parse_quantity(value, kind, units, where)
     else:
         raise DefinitionError(
-            f"{where} = {value!r}: expected a number or a quantity string such as '181 GPa', "
+            f"{where} = {value!r}: expected a number or a quantity string such as '{example(kind, units)}', "
             f"got {type(value).__name__}")
     if not math.isfinite(out):
         raise DefinitionError(f"{where} = {value!r} is not finite; give a finite number")
@@ -142,12 +166,15 @@ def _parse_quantity(text: str, kind: str, units: UnitSystem, where: str) -> floa
             if "delta_" + absolute not in text:
                 text = text.replace(absolute, delta)
     try:
-        return float(ureg.Quantity(text).to(target).magnitude)
+        quantity = ureg.Quantity(text)
+        if kind == "density" and quantity.check("[force]/[length]**3"):
+            quantity = quantity / ureg.Quantity(1.0, "g_0")   # a weight density such as lbf/in^3
+        return float(quantity.to(target).magnitude)
     except pint.DimensionalityError:
         raise DefinitionError(
             f"{where} = {text!r} has the wrong dimension; expected a {kind.replace('_', ' ')} "
-            f"(for example in {ureg.Unit(target):~})") from None
+            f"such as '{example(kind, units)}'") from None
     except Exception:  # pint's parser raises many kinds (tokenize errors, assertions) on odd text
         raise DefinitionError(
-            f"{where} = {text!r} is not a quantity pint understands; write e.g. '181 GPa' or a plain number"
-        ) from None
+            f"{where} = {text!r} is not a quantity pint understands; write e.g. '{example(kind, units)}' or a "
+            "plain number") from None

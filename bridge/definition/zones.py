@@ -37,8 +37,9 @@ class Zone:
         Tag values (int) or tag names (str) selected.
     orientation : object
         A rule of :mod:`bridge.model.orientation` (``Vector``, ``Axis`` or ``Field``).
-    offset : float
-        Reference surface to mid-plane distance along the normal (length).
+    offset : float or None
+        Reference surface to mid-plane distance along the normal (length); None when the zone gives none
+        (the laminate's own ``offset`` then applies, see :func:`bridge.model.sections.zone_offset`).
     """
 
     name: str
@@ -46,7 +47,7 @@ class Zone:
     tag: str | None
     values: tuple
     orientation: Any
-    offset: float = 0.0
+    offset: float | None = None
 
 
 def vector3(value: Any, where: str) -> tuple[float, float, float]:
@@ -115,6 +116,6 @@ def parse_zones(entries: Any, laminates: Mapping[str, Laminate], units: UnitSyst
             tag_values = tuple(tag_values)
         zones.append(Zone(values.get("name", f"zone-{k}"), lam, tag, tag_values,
                           parse_orientation(values.get("orientation"), f"{where}.orientation"),
-                          values.get("offset", 0.0)))
+                          values.get("offset")))
     check_names([z.name for z in zones], "zones (names)")
     return tuple(zones)

@@ -30,7 +30,7 @@ from bridge.definition.loader import Definition
 from bridge.mesh.shell import ShellMesh
 from bridge.model.build import build_model
 from bridge.recover.resultants import to_element_frame
-from bridge.model.sections import section_of
+from bridge.model.sections import section_of, zone_offset
 from shells.navier import plate_fields, resultants
 
 from bridge.demo.geometry import Panel, panel_of_cells, panels
@@ -143,7 +143,7 @@ def panel_resultants(defn: Definition, panel: Panel, x: np.ndarray, y: np.ndarra
         summed once for q = 1 and scaled (the plate is linear).
     """
     zone = next(z for z in defn.zones if z.name == panel.zone)
-    sec = section_of(defn, zone.laminate, zone.offset)
+    sec = section_of(defn, zone.laminate, zone_offset(defn, zone))
     unit = plate_fields(sec.props.D, sec.H, panel.a, panel.b, x, y, q0=1.0)
     return np.stack([resultants({k: q * v for k, v in unit.items()}, membrane) for q, membrane in loads])
 

@@ -1,7 +1,9 @@
 """A definition tied to a mesh: per-cell zone, section, frame and material angle.
 
 Sections are built once per distinct (laminate, offset) pair of the zones, in
-zone order; a cell's section id is the position in :attr:`Model.sections`.
+zone order; a cell's section id is the position in :attr:`Model.sections`. A
+zone's offset is its own ``offset``, else its laminate's, else 0
+(:func:`bridge.model.sections.zone_offset`).
 The definition's ``[frames]`` settings give the element-frame reference
 vector (default global X) or name a per-cell vector array of the mesh that
 then rules.
@@ -22,7 +24,7 @@ from bridge.definition.loader import Definition
 from bridge.model.frames import element_frames
 from bridge.mesh.shell import ShellMesh
 from bridge.model.orientation import material_angle
-from bridge.model.sections import section_of
+from bridge.model.sections import section_of, zone_offset
 from bridge.model.zones import assign_zones
 
 
@@ -42,7 +44,7 @@ class Model:
         Element frame in global coordinates.
     sections : tuple of Section
     section_names : tuple of str
-        ``laminate`` or ``laminate@offset`` for each section.
+        ``laminate`` (the laminate's own offset) or ``laminate@offset`` (a zone's offset) for each section.
     """
 
     defn: Definition
@@ -91,9 +93,9 @@ def build_model(defn: Definition, mesh: ShellMesh) -> Model:
                 phi[cells] = material_angle(z.orientation, mesh, (x, y, n), cells=np.flatnonzero(cells))
             except InputError as err:
                 raise InputError(f"zones[{k + 1}].orientation: {err.detail}", err.source or mesh.source) from None
-        section_of_zone.append(keys.setdefault((z.laminate, z.offset), len(keys)))
+        section_of_zone.append(keys.setdefault((z.laminate, zone_offset(defn, z)), len(keys)))
     sections = tuple(section_of(defn, lam, off) for lam, off in keys)
-    names = tuple(lam if off == 0 else f"{lam}@{off:g}" for lam, off in keys)
+    names = tuple(lam if off == defn.laminates[lam].offset else f"{lam}@{off:g}" for lam, off in keys)
     return Model(defn, mesh, zone, np.asarray(section_of_zone, dtype=np.int64)[zone], phi, x, y, n,
                  sections, names)
 

@@ -31,8 +31,12 @@ def format_sections(summaries: dict[str, dict], units: UnitSystem) -> str:
                      + "  ".join(f"{v:.6g}" for v in s["NT"]))
         lines.append(f"  MT per unit temperature rise [{F}/{units.label('temperature')}]: "
                      + "  ".join(f"{v:.6g}" for v in s["MT"]))
+        lines.append("  engineering constants about the mid-plane"
+                     + ("" if s["flags"]["mid_plane_coupled"] else " (no coupling: restrained = free)"))
+        variants = ("restrained", "free") if s["flags"]["mid_plane_coupled"] else ("restrained",)
         for kind in ("membrane", "flexural"):
-            c = s[kind]
-            lines.append(f"  {kind:<9} Ex {c['Ex']:.6g}  Ey {c['Ey']:.6g}  Gxy {c['Gxy']:.6g} "
-                         f"[{units.label('stress')}]  nuxy {c['nuxy']:.5g}")
+            for variant in variants:
+                c = s[kind][variant]
+                lines.append(f"  {kind:<9} {variant:<10} Ex {c['Ex']:.6g}  Ey {c['Ey']:.6g}  Gxy {c['Gxy']:.6g} "
+                             f"[{units.label('stress')}]  nuxy {c['nuxy']:.5g}")
     return "\n".join(lines) + "\n"

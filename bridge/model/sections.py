@@ -1,4 +1,9 @@
-"""Sections of a definition's laminates (and, per zone, with the zone's offset)."""
+"""Sections of a definition's laminates (and, per zone, with the zone's offset).
+
+One precedence rule for the reference-surface offset of a zone's section: the zone's ``offset``, else
+the laminate's ``offset``, else 0 (:func:`zone_offset`). ``section``, ``assign`` and ``recover`` all
+build their sections through it.
+"""
 
 from __future__ import annotations
 
@@ -21,8 +26,18 @@ def select_laminates(defn: Definition, names: Iterable[str]) -> tuple[str, ...]:
     return names
 
 
+def zone_offset(defn: Definition, zone) -> float:
+    """The offset of a zone's section: the zone's ``offset``, else its laminate's ``offset`` (default 0)."""
+    if zone.offset is not None:
+        return float(zone.offset)
+    return float(defn.laminates[zone.laminate].offset)
+
+
 def section_of(defn: Definition, name: str, offset: float | None = None) -> Section:
-    """Build the section of laminate ``name`` with the definition's analysis settings."""
+    """Build the section of laminate ``name`` with the definition's analysis settings.
+
+    ``offset`` replaces the laminate's own offset when given (see :func:`zone_offset`).
+    """
     lam = defn.laminates[name]
     if offset is not None:
         lam = lam.with_offset(offset)

@@ -92,11 +92,14 @@ def profile_figure_of(st: StoreReader, cell: int | None = None, case: str | None
 
 @dataclass(frozen=True)
 class StoredStiffness:
-    """A section's stiffness as stored: what :func:`shells.engineering.polar_moduli` reads."""
+    """A section's stiffness as stored: what :func:`shells.engineering.polar_moduli` reads (about the reference
+    surface, moved to the mid-plane there by the offset)."""
 
     A: np.ndarray
+    B: np.ndarray
     D: np.ndarray
     thickness: float
+    offset: float
 
 
 def _polar(st: StoreReader, laminate: str | None):
@@ -110,8 +113,8 @@ def _polar(st: StoreReader, laminate: str | None):
         raise FieldError(f"--laminate {laminate!r} is not in the store; use one of: {', '.join(dict.fromkeys(names))}",
                          st.path)
     sec = sections[names.index(laminate)]
-    # polar_moduli reads A, D and the thickness only: the stored stiffness, nothing rebuilt.
-    stiffness = StoredStiffness(st.section_matrix("A", sec.id), st.section_matrix("D", sec.id), sec.thickness)
+    # polar_moduli reads A, B, D, the thickness and the offset only: the stored stiffness, nothing rebuilt.
+    stiffness = StoredStiffness(*(st.section_matrix(k, sec.id) for k in "ABD"), sec.thickness, sec.offset)
     angles = np.linspace(0.0, 360.0, 361)
     e = polar_moduli(stiffness, angles)
     return polar_figure(angles, e["membrane"], e["flexural"], title=f"Laminate {laminate}", unit=_stress_unit(st))

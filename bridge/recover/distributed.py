@@ -29,7 +29,7 @@ from typing import Iterable, Iterator
 
 import numpy as np
 
-from shells.errors import InputError, ResultantsError
+from shells.errors import InputError
 from shells.recovery_tables import SectionTables
 
 from bridge.definition.cases import combine_steps
@@ -59,6 +59,9 @@ class BlockContext:
     store_plies : bool
     reader : H5Steps or None
         The resultants file each task reads its cells from by path (None: blocks carry their steps).
+    field_G : float64 (nrows, 3, 2, 12) or None
+        Gradient-to-shear matrices of every ply row, when transverse shear comes from the resultant field
+        (:mod:`bridge.recover.field_shear`).
     """
 
     criteria: tuple[str, ...]
@@ -69,6 +72,7 @@ class BlockContext:
     fos: np.ndarray
     store_plies: bool = False
     reader: H5Steps | None = None
+    field_G: np.ndarray | None = None
 
     def compute(self, spec: "BlockSpec") -> "BlockResult":
         """The block task of a recovery run (:func:`compute_block`)."""
@@ -90,6 +94,10 @@ class BlockSpec:
     steps : float64 (nstep, ncell, 8) or None
         Input steps in the element frame and definition units; None when the
         task reads them through ``BlockContext.reader``.
+    gradients : float64 (nstep, ncell, 12) or None
+        Gradients of N and M of every input step, laminate axes (field transverse shear only).
+    gradient_valid : bool (ncell,) or None
+        Cells with a gradient stencil (the others use the Q-only distribution).
     """
 
     index: int
@@ -99,6 +107,8 @@ class BlockSpec:
     phi: np.ndarray
     dT: np.ndarray
     steps: np.ndarray | None = None
+    gradients: np.ndarray | None = None
+    gradient_valid: np.ndarray | None = None
 
 
 @dataclass(frozen=True)
@@ -126,8 +136,16 @@ def compute_block(ctx: BlockContext, spec: BlockSpec) -> BlockResult:
                                                                       CellAxes(spec.phi))
     with np.errstate(over="ignore", invalid="ignore"):  # an overflow gives inf: the cell-case is flagged
         R = combine_steps(ctx.weights, steps)
+    shear = None
+    if spec.gradients is not None:
+        from postproc.gradients import field_shear
+
+        t = ctx.tables
+        shear = field_shear(ctx.field_G, t.F, t.first, t.nply, t.max_plies, spec.section, spec.phi,
+                            combine_steps(ctx.weights, spec.gradients), R, spec.gradient_valid)
     env, cells, plies = recover_cells(tuple(by_name(n) for n in ctx.criteria), ctx.tables, spec.section,
-                                      spec.phi, R, spec.dT, ctx.dM, ctx.pres, ctx.fos, ctx.store_plies)
+                                      spec.phi, R, spec.dT, ctx.dM, ctx.pres, ctx.fos, ctx.store_plies,
+                                      shear=shear)
     return BlockResult(spec.index, spec.start, spec.stop, env, cells, plies)
 
 

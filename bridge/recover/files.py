@@ -52,6 +52,8 @@ class StepFiles:
         Cell arrays that belong to no step (e.g. per-cell axes vectors), from every file.
     steps : tuple of dict
         The cell arrays of each step (empty for HDF5).
+    notes : tuple of str
+        What was done about the files' cell order (:mod:`bridge.recover.cell_order`), for the run summary.
     """
 
     names: tuple[str, ...]
@@ -59,6 +61,7 @@ class StepFiles:
     h5_path: str | None = None
     extra: Mapping[str, np.ndarray] = field(default_factory=dict)
     steps: tuple = field(default=(), repr=False)
+    notes: tuple[str, ...] = ()
 
     def __post_init__(self):
         # Step names become case names printed on stdout and stored: names' rules (docs/scale.md).
@@ -112,19 +115,30 @@ def _check_cells(n_found: int, n_cells: int, src: str) -> None:
                               "use the result file of this mesh", src)
 
 
+def _ordered(file_mesh: ShellMesh, n_cells: int, path: str, mesh: ShellMesh | None, notes: list):
+    """The cell order of a file with its own cells against the model mesh (``bridge.recover.cell_order``)."""
+    from bridge.recover.cell_order import CellOrder, match_cells
+
+    _check_cells(file_mesh.n_cells, n_cells, path)
+    order = CellOrder() if mesh is None else match_cells(mesh, file_mesh, path)
+    if order.note and order.note not in notes:
+        notes.append(order.note)
+    return order
+
+
 def _file_cases(path: str, head: bytes, n_cells: int, options: ResultFiles,
-                mesh: ShellMesh | None) -> tuple[dict[str, dict], dict]:
-    """One non-HDF5 file: ({case: cell arrays}, arrays of no case)."""
+                mesh: ShellMesh | None, notes: list) -> tuple[dict[str, dict], dict]:
+    """One non-HDF5 file: ({case: cell arrays}, arrays of no case), in the model mesh's cell order."""
     from bridge.mesh.formats import read_mesh, xdmf
     from bridge.recover.clouds import cloud_to_cells
 
     default = Path(path).parent.name if options.case_names == "folder" else Path(path).stem
     if xdmf.sniff(head):
         grid_mesh, steps = xdmf.read_series(path, lazy=True)
-        _check_cells(grid_mesh.n_cells, n_cells, path)
+        order = _ordered(grid_mesh, n_cells, path, mesh, notes)
         if len(steps) == 1:
-            return split_cases(steps[0].cell_data, default)
-        return {s.name: dict(s.cell_data) for s in steps}, dict(steps[0].cell_data)
+            return split_cases(order.apply(steps[0].cell_data), default)
+        return {s.name: order.apply(s.cell_data) for s in steps}, order.apply(steps[0].cell_data)
     from bridge.mesh.cloud import is_point_cloud, read_point_cloud
 
     found = None
@@ -136,8 +150,7 @@ def _file_cases(path: str, head: bytes, n_cells: int, options: ResultFiles,
                 raise
     if found is None:
         return split_cases(cloud_to_cells(read_point_cloud(path), n_cells, options, mesh), default)
-    _check_cells(found.n_cells, n_cells, path)
-    return split_cases(found.cell_data, default)
+    return split_cases(_ordered(found, n_cells, path, mesh, notes).apply(found.cell_data), default)
 
 
 def open_step_files(path_or_paths: str | Sequence[str], n_cells: int, options: ResultFiles = ResultFiles(),
@@ -153,7 +166,9 @@ def open_step_files(path_or_paths: str | Sequence[str], n_cells: int, options: R
     options : ResultFiles
         The definition's ``[result_files]``.
     mesh : ShellMesh, optional
-        The model mesh (cell ids and centroids, for point clouds).
+        The model mesh (cell ids and centroids, for point clouds). A file with its own cells is matched to it and
+        its arrays come back in the mesh's cell order, or the file is refused (:mod:`bridge.recover.cell_order`);
+        :attr:`StepFiles.notes` says what was mapped or assumed.
     """
     paths = [str(p) for p in path_or_paths] if isinstance(path_or_paths, (list, tuple)) else [str(path_or_paths)]
     label = ", ".join(paths)
@@ -167,12 +182,16 @@ def open_step_files(path_or_paths: str | Sequence[str], n_cells: int, options: R
     if any(h.startswith(HDF5_SIGNATURE) for h in heads):
         if len(paths) != 1:
             raise ResultantsError("an HDF5 /resultants file holds every case; give it alone", label)
-        return StepFiles(tuple(_h5_names(paths[0], n_cells)), label, paths[0])
+        from bridge.recover.cell_order import ASSUMED_NOTE
+
+        return StepFiles(tuple(_h5_names(paths[0], n_cells)), label, paths[0],
+                         notes=(ASSUMED_NOTE,) if mesh is not None else ())
+    notes: list[str] = []
     merged: dict[str, dict] = {}
     origin: dict[tuple[str, str], str] = {}
     extra: dict[str, np.ndarray] = {}
     for p, head in zip(paths, heads):
-        cases, plain = _file_cases(p, head, n_cells, options, mesh)
+        cases, plain = _file_cases(p, head, n_cells, options, mesh, notes)
         extra.update(plain)
         for case, arrays in cases.items():
             into = merged.setdefault(case, {})
@@ -184,4 +203,4 @@ def open_step_files(path_or_paths: str | Sequence[str], n_cells: int, options: R
                 into[name] = arr
         if len(cases) == 1 and not plain:
             extra.update(next(iter(cases.values())))
-    return StepFiles(tuple(merged), label, None, extra, tuple(merged.values()))
+    return StepFiles(tuple(merged), label, None, extra, tuple(merged.values()), tuple(notes))

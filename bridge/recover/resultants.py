@@ -239,12 +239,17 @@ class ResultantSource:
     fields, settings : ResultantFields, ResultantSettings
     axes : CellAxes
         Material angles and element frames of every cell (for laminate axes and per-cell vectors).
+    options : ResultFiles
+    mesh : ShellMesh, optional
+        The model mesh: point clouds are reduced onto it, and a file's own cells are checked against it
+        (:mod:`bridge.recover.cell_order`); what was mapped or assumed is in :attr:`notes`.
     """
 
     def __init__(self, path_or_paths, n_cells: int, fields: ResultantFields = ResultantFields(),
                  settings: ResultantSettings = ResultantSettings(), axes: CellAxes = CellAxes(),
                  options: ResultFiles = ResultFiles(), mesh=None):
         self.files: StepFiles = open_step_files(path_or_paths, n_cells, options, mesh)
+        self.notes = list(self.files.notes)
         self.options = options
         self.names = self.files.names
         self.settings = settings
@@ -309,7 +314,8 @@ class ResultantSource:
 def read_resultants(path_or_paths, n_cells: int, fields: ResultantFields = ResultantFields(),
                     settings: ResultantSettings = ResultantSettings(), *, cases: Sequence[str] | None = None,
                     material_angle_deg: np.ndarray | None = None, frames: Sequence[np.ndarray] | None = None,
-                    allow_nonfinite: bool = False) -> tuple[tuple[str, ...], np.ndarray]:
+                    allow_nonfinite: bool = False, mesh=None,
+                    notes: list | None = None) -> tuple[tuple[str, ...], np.ndarray]:
     """Read every cell of the load cases' resultants, in definition units and the element frame.
 
     Parameters
@@ -330,6 +336,10 @@ def read_resultants(path_or_paths, n_cells: int, fields: ResultantFields = Resul
         Element frames, for ``settings.frame == "vectors"``.
     allow_nonfinite : bool
         Keep NaN/inf values (flag them with :func:`nonfinite_mask`) instead of raising.
+    mesh : ShellMesh, optional
+        The model mesh: a file with its own cells is mapped onto its cell order or refused.
+    notes : list, optional
+        Receives one-line notes: cells mapped, or (HDF5) order assumed.
 
     Returns
     -------
@@ -344,7 +354,9 @@ def read_resultants(path_or_paths, n_cells: int, fields: ResultantFields = Resul
         unknown case names, duplicate case names.
     """
     source = ResultantSource(path_or_paths, n_cells, fields, settings,
-                             CellAxes(material_angle_deg, None if frames is None else tuple(frames)))
+                             CellAxes(material_angle_deg, None if frames is None else tuple(frames)), mesh=mesh)
+    if notes is not None:
+        notes.extend(source.notes)
     names = source.names
     try:
         pick = list(range(len(names)))

@@ -29,6 +29,7 @@ from bridge.results.partial import companions
 from bridge.results.store import CHUNK_CELLS, LAYOUT_VERSION, StoreLayout, mesh_group
 from bridge.recover.distributed import BlockContext, BlockSpec
 from bridge.recover.resultants import ResultantSource
+from bridge.recover.field_shear import METHOD as FIELD_METHOD, ShearCheck, check_note, field_plan
 
 #: Target size of the resultants of one block (bytes): bounds the memory of a run.
 BLOCK_BYTES = 32 * 2 ** 20
@@ -115,9 +116,11 @@ def check_run_memory(n_cells: int, n_steps: int, n_cases: int, cells: int = 256,
                  "split the cases into several runs")
 
 
-def block_size(n_steps: int, n_cases: int, max_plies: int, store_plies: bool) -> int:
+def block_size(n_steps: int, n_cases: int, max_plies: int, store_plies: bool, field: bool = False) -> int:
     """Cells per block: about BLOCK_BYTES of block arrays, a whole number of store chunks."""
     per_cell = 8 * 8 * (n_steps + n_cases) + (max_plies * 3 * 8 * 8 * n_cases if store_plies else 0)
+    if field:       # step gradients and case shear at every ply point
+        per_cell += 8 * 12 * (n_steps + n_cases) + 8 * 6 * max_plies * n_cases
     cells = int(max(256, min(65536, BLOCK_BYTES // max(per_cell, 1))))
     return cells // CHUNK_CELLS * CHUNK_CELLS if cells >= CHUNK_CELLS else cells
 
@@ -165,23 +168,47 @@ def prepare(definition: str, mesh_path: str, resultants: Sequence[str]):
     return defn, model, source, plan, criteria_of(defn, model)
 
 
+def run_notes(defn: Definition, model: Model, source: ResultantSource) -> list[str]:
+    """One-line notes of the run (bridge.recover.notes): what was assumed or looks unusual."""
+    from bridge.recover.cell_order import ASSUMED_NOTE
+    from bridge.recover.notes import membrane_only_note, ranges_note
+
+    return [*ranges_note(defn.analysis.check_ranges), *(n for n in source.notes if n != ASSUMED_NOTE),
+            *membrane_only_note(model.sections, model.section, model.n_cells, source.read, model.section_names)]
+
+
+def cell_order(source: ResultantSource) -> str:
+    """How the resultants' cells were tied to the mesh: ``assumed`` (HDF5, no topology) or ``checked``."""
+    from bridge.recover.cell_order import ASSUMED_NOTE
+
+    return "assumed" if ASSUMED_NOTE in source.notes else "checked"
+
+
 def block_context(defn: Definition, tables, source: ResultantSource, plan: CasePlan,
-                  store_plies: bool) -> BlockContext:
+                  store_plies: bool, field=None) -> BlockContext:
     """What every block task shares: small arrays and names, no file handles."""
     return BlockContext(tuple(defn.analysis.criteria), tables, plan.weights, plan.dM, plan.pres, plan.fos,
-                        store_plies, source.reader)
+                        store_plies, source.reader, None if field is None else field.G)
 
 
 def block_specs(model: Model, source: ResultantSource, plan: CasePlan, step: int,
-                skip: set[int] = frozenset()) -> Iterator[BlockSpec]:
-    """The blocks not in ``skip``, in order, built lazily (one block's inputs at a time)."""
+                skip: set[int] = frozenset(), field=None, check=None) -> Iterator[BlockSpec]:
+    """The blocks not in ``skip``, in order, built lazily (one block's inputs at a time).
+
+    With a field-shear plan, the gradients of each block are fitted here (the block's neighbours may lie in
+    other blocks) and compared with the input Q in ``check`` (every block, also those skipped on resume).
+    """
     n = model.n_cells
     for index, start in enumerate(range(0, n, step)):
+        stop = min(n, start + step)
+        g = valid = None
+        if field is not None:
+            g, q, valid = field.block_gradients(source.read_cells, start, stop)
+            check.add(start, stop, plan.weights, g, q, valid)
         if index in skip:
             continue
-        stop = min(n, start + step)
         yield BlockSpec(index, start, stop, model.section[start:stop], model.phi[start:stop],
-                        plan.delta_T(model, start, stop), source.block_steps(start, stop))
+                        plan.delta_T(model, start, stop), source.block_steps(start, stop), g, valid)
 
 
 def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], output: str,
@@ -232,10 +259,14 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
     store_plies = bool(store_plies if store_plies is not None else remembered.get("store_plies", False))
     check_block_cells(block_cells)
     defn, model, source, plan, crit = prepare(definition, mesh_path, resultants)
-    notes = [*model.mesh.notes, *mesh_notes(model.mesh)]
+    notes = [*model.mesh.notes, *mesh_notes(model.mesh), *run_notes(defn, model, source)]
     tables = model.tables()
+    field, check = None, None
+    if defn.analysis.transverse_shear == FIELD_METHOD:
+        field, check = field_plan(model), ShearCheck(model.zone, len(defn.zones))
     n = model.n_cells
-    step = block_cells or block_size(len(source.names), len(plan.cases), tables.max_plies, store_plies)
+    step = block_cells or block_size(len(source.names), len(plan.cases), tables.max_plies, store_plies,
+                                     field is not None)
     check_run_memory(n, len(source.names), len(plan.cases), step,
                      tables.max_plies * 3 * 8 * 8 * len(plan.cases) if store_plies else 0)
     layout = StoreLayout(n, tables.max_plies, plan.names, store_plies, len(CRITERIA), chunk_cells=step)
@@ -250,7 +281,8 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
         partial = stack.enter_context(PartialStore(output, fingerprint, layout, resume, note, step))
         store, done = partial.writer, set(partial.done)
         results = stack.enter_context(contextlib.closing(runner.map(
-            block_context(defn, tables, source, plan, store_plies), block_specs(model, source, plan, step, done))))
+            block_context(defn, tables, source, plan, store_plies, field),
+            block_specs(model, source, plan, step, done, field, check))))
         for index, start in enumerate(range(0, n, step)):
             stop = min(n, start + step)
             if index in done:
@@ -263,20 +295,27 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
                 progress(stop, n)
         summary = acc.result(plan.names, zone_names=[z.name for z in defn.zones],
                              laminate_of_zone=[z.laminate for z in defn.zones])
+        if check is not None:
+            summary["transverse_shear"] = check.result([z.name for z in defn.zones])
+            notes = notes + check_note(summary["transverse_shear"])
         summary["notes"] = notes
-        _finish(store, summary, crit, tables, model, source, plan, defn, provenance(paths, digests), store_plies)
+        summary["cell_order"] = cell_order(source)
+        _finish(store, summary, crit, tables, model, source, plan, defn, provenance(paths, digests), store_plies,
+                field)
         partial.complete()
     return summary
 
 
-def _finish(store, summary, crit, tables, model, source, plan, defn, prov, store_plies) -> None:
+def _finish(store, summary, crit, tables, model, source, plan, defn, prov, store_plies,
+            field=None) -> None:
     """The datasets and the run metadata written once, after every block."""
     from bridge.results.meta import run_meta
     from bridge.results.store import material_tables, section_tables
 
     hot = sorted({h["cell"] for h in summary["hot_spots"]} | {z["cell"] for z in summary["zones"].values()
                                                                 if z["cell"] >= 0})
-    store.write_static("hotspots", states_of_cells(np.array(hot, dtype=np.int64), crit, tables, model, source, plan))
+    store.write_static("hotspots", states_of_cells(np.array(hot, dtype=np.int64), crit, tables, model, source, plan,
+                                                       field))
     store.write_static("mesh", mesh_group(model.mesh.points, model.mesh.blocks))
     store.write_static("model", {"zone": model.zone.astype(np.int32), "section": model.section.astype(np.int32),
                                  "material_angle": model.phi, "normal": model.normal, "frame_x": model.frame_x})
@@ -285,16 +324,23 @@ def _finish(store, summary, crit, tables, model, source, plan, defn, prov, store
     store.write_meta(run_meta(defn, model, plan, source.names, summary, store_plies, prov))
 
 
-def states_of_cells(ids: np.ndarray, crit, tables, model: Model, source: ResultantSource, plan: CasePlan) -> dict:
+def states_of_cells(ids: np.ndarray, crit, tables, model: Model, source: ResultantSource, plan: CasePlan,
+                    field=None) -> dict:
     """Through-thickness states of a few cells, every case (docs/results.md, /hotspots)."""
+    from postproc.gradients import field_shear
     from postproc.states import cell_states
 
     if ids.size == 0:
         return {"cell": ids}
     R = combine_steps(plan.weights, source.read_cells(ids))
     dT = np.stack([plan.delta_T(model, i, i + 1)[:, 0] for i in ids], axis=1)
+    shear = None
+    if field is not None:
+        g, _, valid = field.gradients(source.read_cells, ids)
+        shear = field_shear(field.G, tables.F, tables.first, tables.nply, tables.max_plies, model.section[ids],
+                            model.phi[ids], combine_steps(plan.weights, g), np.nan_to_num(R), valid)
     states = cell_states(crit, tables, model.section[ids], model.phi[ids], np.nan_to_num(R), dT, plan.dM,
-                         plan.pres)
+                         plan.pres, shear)
     return {"cell": ids, "resultants": R, "delta_T": dT, **states,
             "criteria": np.array([c.name for c in crit], dtype=object).astype("S")}
 

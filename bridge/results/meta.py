@@ -54,8 +54,10 @@ def section_info(i: int, name: str, sec) -> SectionInfo:
         plies=tuple(PlyInfo(p.material.name, float(p.angle), float(p.thickness)) for p in lam.plies),
         thickness=float(s["thickness"]), offset=float(lam.offset), areal_mass=float(s["areal_mass"]),
         layup=lam.notation, shear_method=sec.shear_method,
-        membrane=tuple(Named(k, float(v)) for k, v in s["membrane"].items()),
-        flexural=tuple(Named(k, float(v)) for k, v in s["flexural"].items()),
+        membrane=tuple(Named(k, float(v)) for k, v in s["membrane"]["restrained"].items()),
+        flexural=tuple(Named(k, float(v)) for k, v in s["flexural"]["restrained"].items()),
+        membrane_free=tuple(Named(k, float(v)) for k, v in s["membrane"]["free"].items()),
+        flexural_free=tuple(Named(k, float(v)) for k, v in s["flexural"]["free"].items()),
         flags=tuple(k for k, v in s["flags"].items() if v))
 
 
@@ -103,7 +105,7 @@ def run_meta(defn, model, plan, step_names: Sequence[str], summary: Mapping, sto
         provenance=Provenance(provenance["tool"], provenance["tool_version"], provenance["created"], inputs),
         analysis=AnalysisInfo(tuple(a.criteria), tuple(Named(k, float(v)) for k, v in a.factor_of_safety),
                               a.transverse_shear, float(a.shear_factor), float(a.wrinkling_coefficient),
-                              int(a.hot_spots)),
+                              int(a.hot_spots), bool(a.check_ranges)),
         materials=tuple(material_info(m) for m in defn.materials.values()),
         sections=tuple(section_info(i, n, s) for i, (n, s) in enumerate(zip(model.section_names, model.sections))),
         zones=tuple(ZoneInfo(z.name, z.laminate, section_of_zone[k], int(counts[k])) for k, z in enumerate(defn.zones)),

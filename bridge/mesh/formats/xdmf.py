@@ -34,7 +34,7 @@ import numpy as np
 from bridge.atomic import atomic_h5, atomic_path
 from bridge.mesh import h5_rules
 from bridge.mesh.lazy import LazyH5
-from bridge.mesh.mixed import MIXED_ID, split_mixed as _split_mixed
+from bridge.mesh.mixed import split_mixed as _split_mixed
 from bridge.mesh.shell import NODES_PER_CELL, ShellMesh, flatten_cell_data, shell_mesh_from_blocks
 from shells.errors import MeshError
 

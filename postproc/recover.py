@@ -17,7 +17,7 @@ from shells.criteria import CRITERIA, code
 from shells.errors import ResultantsError
 from shells.recovery import recover_block
 from shells.recovery_args import NO_SHEAR, BlockInputs, Envelope, PlyStates, Selection
-from shells.recovery_tables import SectionTables
+from shells.recovery_tables import ROUNDOFF, SectionTables
 
 __all__ = ["Envelope", "cell_summary", "recover_cells", "recover_into", "selection"]
 
@@ -54,7 +54,9 @@ def _shear_field(shear: np.ndarray | None, ncase: int, ncell: int, max_plies: in
     if shear.shape != (ncase, ncell, max_plies, 3, 2):
         raise ResultantsError(f"transverse shear field of shape {shear.shape}; expected "
                               f"({ncase}, {ncell}, {max_plies}, 3, 2) (cases, cells, plies, points, xz/yz)")
-    return shear
+    # Round-off (free faces): below ROUNDOFF of the largest |τ| of the same cell and case (docs/criteria.md).
+    scale = np.abs(np.nan_to_num(shear)).max(axis=(2, 3, 4), keepdims=True) if shear.size else 0.0
+    return np.ascontiguousarray(np.where(np.abs(shear) <= ROUNDOFF * scale, 0.0, shear))
 
 
 def recover_into(env: Envelope, criteria: Sequence[type], tables: SectionTables, cell_sec: np.ndarray,

@@ -24,8 +24,27 @@ from numba import njit, prange
 
 from .criteria.dispatch import ratio_by_code
 from .numba_cache import configure
+from .recovery_tables import ROUNDOFF
 
 configure()  # again before the kernel is defined (see shells.numba_cache)
+
+
+@njit(cache=True, inline="always")
+def drop_roundoff(e, zmax):
+    """Set to zero the mid-plane strains and curvatures ``e`` (6,) that are round-off (in place).
+
+    A component is round-off when the strain it produces through the section (|ε⁰ₐ|, or |κₐ|·zmax) is
+    within ROUNDOFF of the largest such strain of the state.
+    """
+    scale = 0.0
+    for a in range(3):
+        scale = max(scale, abs(e[a]), abs(e[a + 3]) * zmax)
+    tol = ROUNDOFF * scale
+    for a in range(3):
+        if abs(e[a]) <= tol:
+            e[a] = 0.0
+        if abs(e[a + 3]) * zmax <= tol:
+            e[a + 3] = 0.0
 
 
 @njit(cache=True, parallel=True)
@@ -75,6 +94,7 @@ def recover_block(sel, sec, blk, env, out):
         cc, ss, cx = c * c, sn * sn, c * sn
         p0 = first[s]
         n = nply[s]
+        zmax = max(abs(z[p0, 0]), abs(z[p0 + n - 1, 2]))
         for j in range(ncase):
             if skip[j, i]:
                 continue
@@ -99,6 +119,8 @@ def recover_block(sel, sec, blk, env, out):
                     af += comp[s, a, b] * gf[b]
                 em[a] = am
                 ef[a] = af
+            drop_roundoff(em, zmax)
+            drop_roundoff(ef, zmax)
             scale_case = 1.0 / fos[j]
             pres = pressure[j]
             cj = case0 + j

@@ -9,8 +9,14 @@ from __future__ import annotations
 
 import numpy as np
 
-from .recovery_tables import SectionTables
+from .recovery_tables import ROUNDOFF, SectionTables
 from .rotation import shear_rotation, stress_rotation
+
+
+def _drop_roundoff(e: np.ndarray, zmax: float) -> np.ndarray:
+    """Mid-plane strains and curvatures (…, 6) with round-off components set to zero (docs/criteria.md)."""
+    size = np.abs(e) * np.array([1.0, 1.0, 1.0, zmax, zmax, zmax])
+    return np.where(size <= ROUNDOFF * size.max(axis=-1, keepdims=True), 0.0, e)
 
 
 def ply_states(tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray, R: np.ndarray,
@@ -62,8 +68,9 @@ def ply_states(tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray,
         gen_m = np.concatenate([N[:, cells], M[:, cells]], axis=-1)
         t = dT[:, cells][..., None]
         gen_f = np.concatenate([f[0] * t + f[2] * dM[:, None, None], f[1] * t + f[3] * dM[:, None, None]], axis=-1)
-        em = gen_m @ comp.T
-        ef = gen_f @ comp.T
+        zmax = max(abs(tables.z[tables.first[s], 0]), abs(tables.z[tables.first[s] + tables.nply[s] - 1, 2]))
+        em = _drop_roundoff(gen_m @ comp.T, zmax)
+        ef = _drop_roundoff(gen_f @ comp.T, zmax)
         for k in range(tables.nply[s]):
             row = tables.first[s] + k
             theta = np.degrees(np.arctan2(tables.cs[row, 1], tables.cs[row, 0]))

@@ -15,6 +15,24 @@ import numpy as np
 from .recovery_args import SectionArrays
 from .section import Section
 
+#: Relative size below which a part of a state is round-off and taken as exactly zero: ply-point z within
+#: ROUNDOFF·h of the reference surface, transverse shear per unit Q within ROUNDOFF of the section's largest
+#: (free faces), and in the kernels each mid-plane strain or curvature component within ROUNDOFF of the largest
+#: strain it produces through the section (docs/criteria.md, "Round-off").
+ROUNDOFF = 1e-12
+
+
+def _without_roundoff(sec: Section) -> tuple[np.ndarray, np.ndarray]:
+    """z (nply, 3) and F (nply, 3, 2, 2) of a section with round-off values set to exactly zero (copies)."""
+    zb, zt = sec.props.z[:-1], sec.props.z[1:]
+    z = np.stack([zb, (zb + zt) / 2.0, zt], axis=1)
+    z[np.abs(z) <= ROUNDOFF * sec.props.thickness] = 0.0
+    F = np.array(sec.shear_F, dtype=np.float64)
+    for j in range(2):                         # per load state: unit Qx, unit Qy
+        col = F[..., j]
+        col[np.abs(col) <= ROUNDOFF * np.abs(col).max()] = 0.0
+    return z, F
+
 
 @dataclass(frozen=True)
 class SectionTables:
@@ -50,8 +68,8 @@ def build_tables(sections: Sequence[Section], names: Sequence[str] = ()) -> Sect
         first.append(row)
         nply.append(sec.n_plies)
         row += sec.n_plies
-        zb, zt = sp.z[:-1], sp.z[1:]
-        rows["z"].append(np.stack([zb, (zb + zt) / 2.0, zt], axis=1))
+        z, F = _without_roundoff(sec)
+        rows["z"].append(z)
         for ply in sec.laminate.plies:
             Q = ply.material.Q()
             rows["Q"].append([Q[0, 0], Q[0, 1], Q[1, 1], Q[2, 2]])
@@ -60,7 +78,7 @@ def build_tables(sections: Sequence[Section], names: Sequence[str] = ()) -> Sect
             rows["alpha"].append(ply.material.alpha()[:2])
             rows["beta"].append(ply.material.beta()[:2])
             rows["knockdown"].append(ply.material.knockdown)
-        rows["F"].append(sec.shear_F)
+        rows["F"].append(F)
         rows["params"].append(sec.ply_params)
 
     def arr(x, dtype=np.float64):

@@ -205,3 +205,29 @@ def test_precomputed_transverse_shear_replaces_the_q_distribution():
                                atol=1e-12)
     with pytest.raises(Exception, match="transverse shear field"):
         recover_cells(crit, tables, cell_sec, phi, R, dT, dM, pres, fos, shear=field[:, :3])
+
+
+def test_round_off_states_give_infinite_ratio():
+    # Free faces carry no transverse shear (τ = 0 at z = ±h/2 by the boundary condition), and under pure bending
+    # of a symmetric laminate the mid-plane carries no in-plane stress. Computed through the thickness these come
+    # out as round-off (1e-16 of the peak), which gave strength ratios near 1e17; they are exactly zero now
+    # (docs/criteria.md, "Round-off"), so the ratio is inf with no mode.
+    lam = Laminate("q", tuple(Ply(KAW, a, 0.13) for a in (0, 45, -45, 90, 90, -45, 45, 0)))
+    sec = build_section(lam)
+    tables = build_tables([sec])
+    assert np.all(tables.F[0, 0] == 0.0) and np.all(tables.F[-1, 2] == 0.0)
+    assert tables.z[3, 2] == 0.0 and tables.z[4, 0] == 0.0          # the mid-plane, exactly
+    from postproc.states import cell_states
+    inter, stress = by_name("interlaminar"), by_name("max-stress")
+    R = np.array([[[0, 0, 0, 0, 0, 0, 10.0, -4.0]]])
+    st = cell_states((inter,), tables, np.array([0]), np.array([0.0]), R, np.zeros((1, 1)), np.zeros(1), np.zeros(1))
+    ratio = st["ratio"][0, 0, 0]                                     # (ply, point)
+    assert ratio[0, 0] == np.inf and ratio[-1, 2] == np.inf and np.all(np.isfinite(ratio[1:-1][:, [0, 2]]))
+    env, _, plies = _one_cell(lam, R[0, 0], (inter,))
+    assert np.all(plies["transverse_shear"][0, 0, 0, 0] == 0.0) and np.all(plies["transverse_shear"][0, 0, -1, 2] == 0)
+    M = np.array([[[0, 0, 0, 25.0, -8.0, 3.0, 0, 0]]])
+    st = cell_states((stress,), tables, np.array([0]), np.array([0.0]), M, np.zeros((1, 1)), np.zeros(1), np.zeros(1))
+    assert st["ratio"][0, 0, 0, 3, 2] == np.inf and st["ratio"][0, 0, 0, 4, 0] == np.inf
+    assert np.all(st["mech"][0, 0, 3, 2] == 0.0)
+    env, _, _ = _one_cell(lam, M[0, 0], (stress,))
+    assert np.isfinite(env["strength_ratio"][0, 3])                # the ply's outer face still governs

@@ -31,7 +31,30 @@ KIND, E1, E2, G12, NU12, G13, G23, EZ, XT, XC, YT, YC, S12, S13, S23, ZC, \
     P_CPL, ALPHA0, YT_IS, S12_IS, WRINKLING, DIMPLING, ILSS = range(len(NAMES))
 
 NPARAM = len(NAMES)
+
+#: The allowables: strengths, strain limits and the face, core and interlaminar allowables. A material's
+#: knockdown multiplies these (and nothing else: moduli, Poisson ratios and criterion parameters stay).
+ALLOWABLES = (XT, XC, YT, YC, S12, S13, S23, ZC, E1T, E1C, E2T, E2C, G12U, YIELD, CORE_S13, CORE_S23,
+              YT_IS, S12_IS, WRINKLING, DIMPLING, ILSS)
 INDEX = {name: i for i, name in enumerate(NAMES)}
 
 KIND_PLY, KIND_ISOTROPIC, KIND_CORE = 0, 1, 2
 KIND_NAMES = ("ply", "isotropic", "core")
+
+
+def knocked_down(params, knockdown):
+    """Property vectors with every allowable multiplied by the knockdown (a copy).
+
+    Parameters
+    ----------
+    params : float64 (..., NPARAM)
+        Property vectors (NaN where undefined: stays NaN).
+    knockdown : float or float64 (...)
+        Fraction of strength retained, one per vector (environment × damage × other factors).
+    """
+    import numpy as np
+
+    out = np.array(params, dtype=np.float64)
+    k = np.asarray(knockdown, dtype=np.float64)
+    out[..., list(ALLOWABLES)] *= k[..., None]
+    return out

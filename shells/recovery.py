@@ -73,7 +73,7 @@ def recover_block(sel, sec, blk, env, out):
     cell_sec, cell_cos, cell_sin, field_shear, case0 = blk.section, blk.cos_phi, blk.sin_phi, blk.shear, blk.case0
     codes, masks = sel.codes, sel.masks
     comp, fixed, first, nply, z, Q, cs = sec.compliance, sec.fixed, sec.first, sec.nply, sec.z, sec.Q, sec.cs
-    alpha, beta, F, params, kd = sec.alpha, sec.beta, sec.F, sec.params, sec.knockdown
+    alpha, beta, F, params = sec.alpha, sec.beta, sec.F, sec.params
     env_ms, env_sr, env_case, env_point = env.margin, env.strength_ratio, env.case, env.point
     env_crit, env_mode, case_ms, crit_ms = env.criterion, env.mode, env.case_margin, env.criterion_margin
     out_stress, out_strain, out_shear = out.stress, out.strain, out.shear
@@ -121,7 +121,7 @@ def recover_block(sel, sec, blk, env, out):
                 ef[a] = af
             drop_roundoff(em, zmax)
             drop_roundoff(ef, zmax)
-            scale_case = 1.0 / fos[j]
+            inv_fos = 1.0 / fos[j]
             pres = pressure[j]
             cj = case0 + j
             for k in range(n):
@@ -132,7 +132,6 @@ def recover_block(sel, sec, blk, env, out):
                 fx = alpha[row, 0] * t + beta[row, 0] * h
                 fy = alpha[row, 1] * t + beta[row, 1] * h
                 pr = params[row]
-                scale = kd[row] * scale_case
                 for q in range(3):
                     zz = z[row, q]
                     exm = em[0] + zz * em[3]
@@ -181,7 +180,7 @@ def recover_block(sel, sec, blk, env, out):
                             continue
                         cm = codes[m]
                         sr, mode = ratio_by_code(cm, sm, sf, pr)
-                        ms = sr * scale - 1.0
+                        ms = sr * inv_fos - 1.0
                         if ms < case_ms[i, cj]:
                             case_ms[i, cj] = ms
                         if ms < crit_ms[i, cm]:

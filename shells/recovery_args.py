@@ -55,9 +55,8 @@ class SectionArrays(NamedTuple):
     F : float64 (nrows, 3, 2, 2)
         (τxz, τyz) per unit (Qx, Qy) at the three points, laminate axes.
     params : float64 (nrows, NPARAM)
-        Criterion property vectors.
-    knockdown : float64 (nrows,)
-        Fraction of strength retained, per ply.
+        Criterion property vectors, allowables already multiplied by the ply's knockdown
+        (:func:`shells.params.knocked_down`).
     """
 
     compliance: np.ndarray
@@ -71,7 +70,6 @@ class SectionArrays(NamedTuple):
     beta: np.ndarray
     F: np.ndarray
     params: np.ndarray
-    knockdown: np.ndarray
 
 
 class BlockInputs(NamedTuple):

@@ -39,7 +39,7 @@ class SectionTables:
     """Kernel view of a set of sections: the arrays and the section names.
 
     The arrays (``compliance``, ``fixed``, ``first``, ``nply``, ``z``, ``Q``, ``cs``,
-    ``alpha``, ``beta``, ``F``, ``params``, ``knockdown``) are those of
+    ``alpha``, ``beta``, ``F``, ``params``) are those of
     :class:`shells.recovery_args.SectionArrays`, read here as attributes.
     """
 
@@ -59,7 +59,7 @@ class SectionTables:
 def build_tables(sections: Sequence[Section], names: Sequence[str] = ()) -> SectionTables:
     """Flatten sections (in the order given: section ids are positions in this list)."""
     comp, fixed, first, nply = [], [], [], []
-    rows: dict[str, list] = {k: [] for k in ("z", "Q", "cs", "alpha", "beta", "F", "params", "knockdown")}
+    rows: dict[str, list] = {k: [] for k in ("z", "Q", "cs", "alpha", "beta", "F", "params")}
     row = 0
     for sec in sections:
         sp = sec.props
@@ -77,7 +77,6 @@ def build_tables(sections: Sequence[Section], names: Sequence[str] = ()) -> Sect
             rows["cs"].append([np.cos(t), np.sin(t)])
             rows["alpha"].append(ply.material.alpha()[:2])
             rows["beta"].append(ply.material.beta()[:2])
-            rows["knockdown"].append(ply.material.knockdown)
         rows["F"].append(F)
         rows["params"].append(sec.ply_params)
 
@@ -87,6 +86,6 @@ def build_tables(sections: Sequence[Section], names: Sequence[str] = ()) -> Sect
     return SectionTables(SectionArrays(
         compliance=arr(comp), fixed=arr(fixed), first=arr(first, np.int64), nply=arr(nply, np.int64),
         z=arr(np.concatenate(rows["z"])), Q=arr(rows["Q"]), cs=arr(rows["cs"]), alpha=arr(rows["alpha"]),
-        beta=arr(rows["beta"]), F=arr(np.concatenate(rows["F"])), params=arr(np.concatenate(rows["params"])),
-        knockdown=arr(rows["knockdown"]),
+        beta=arr(rows["beta"]), F=arr(np.concatenate(rows["F"])),
+        params=arr(np.concatenate(rows["params"])),
     ), tuple(names))

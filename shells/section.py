@@ -37,7 +37,8 @@ class Section:
     shear_F : ndarray (nply, 3, 2, 2)
         (τxz, τyz) = F · (Qx, Qy) at the bottom, middle and top of every ply.
     ply_params : ndarray (nply, NPARAM)
-        Kernel property vectors (materials plus face allowables).
+        Kernel property vectors (materials plus face allowables), every allowable multiplied by the
+        ply material's knockdown (:data:`shells.params.ALLOWABLES`).
     """
 
     laminate: Laminate
@@ -133,4 +134,5 @@ def build_section(lam: Laminate, shear_method: str = TRANSVERSE_SHEAR, shear_fac
         H = equilibrium_shear_stiffness(sp)
     params = np.array([p.material.params() for p in lam.plies])
     _face_allowables(lam, params, wrinkling_coefficient)
+    params = P.knocked_down(params, np.array([p.material.knockdown for p in lam.plies]))
     return Section(lam, sp, H, shear_method, shear_distribution(sp, PLY_POINTS), params)

@@ -39,12 +39,14 @@ def cell_summary(env: Envelope) -> dict[str, np.ndarray]:
 
 
 def selection(criteria: Sequence[type]) -> Selection:
-    """Registry codes and point masks of the chosen criteria, for the kernel."""
-    codes = np.array([code(c.name) for c in criteria], dtype=np.int64)
-    masks = np.zeros((len(criteria), 3), dtype=np.bool_)
-    for s, c in enumerate(criteria):
+    """Registry codes and point masks of the chosen point-level criteria and codes of the face-level ones."""
+    point = [c for c in criteria if c.level == "point"]
+    codes = np.array([code(c.name) for c in point], dtype=np.int64)
+    masks = np.zeros((len(point), 3), dtype=np.bool_)
+    for s, c in enumerate(point):
         masks[s, list(c.points)] = True
-    return Selection(codes, masks)
+    faces = np.array([code(c.name) for c in criteria if c.level == "face"], dtype=np.int64)
+    return Selection(codes, masks, faces)
 
 
 def _shear_field(shear: np.ndarray | None, ncase: int, ncell: int, max_plies: int) -> np.ndarray:

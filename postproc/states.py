@@ -3,6 +3,9 @@
 The envelope keeps only the governing values; for the cells a reviewer will
 look at, the store also keeps every ply's mechanical and fixed stress state at
 the three points of every case, and each chosen criterion's strength ratio there.
+Face-level criteria (wrinkling, dimpling) are evaluated on each sandwich face's
+mean stress, as in the kernel, and their ratio is shown at every point of the
+face's plies.
 """
 
 from __future__ import annotations
@@ -14,6 +17,38 @@ import numpy as np
 from shells.criteria import evaluate
 from shells.recovery_reference import ply_states
 from shells.recovery_tables import SectionTables
+from shells.rotation import stress_rotation
+
+
+def face_states(tables: SectionTables, cell_sec: np.ndarray, ref: dict) -> tuple[np.ndarray, ...]:
+    """Mean stress of every sandwich face of the given cells, from reference ply states.
+
+    Returns
+    -------
+    mech, fixed : float64 (ncell, ncase, maxface, 3, 6)
+        The face's mean (σx, σy, τxy) in laminate axes in slots 0-2 (the same at the three points), zero elsewhere.
+    fidx : int64 (ncell, maxface)
+        Row of ``tables.face_params`` of each face, −1 past a cell's face count.
+    """
+    n, ncase = len(cell_sec), ref["mech"].shape[0]
+    maxface = int(max(1, tables.face_count.max(initial=0)))
+    out = [np.zeros((n, ncase, maxface, 3, 6)) for _ in range(2)]
+    fidx = np.full((n, maxface), -1, dtype=np.int64)
+    for i, s in enumerate(cell_sec):
+        for g in range(tables.face_count[s]):
+            f = tables.face_first[s] + g
+            fidx[i, g] = f
+            row0, count = tables.face_rows[f]
+            rows = np.arange(row0, row0 + count)
+            local = rows - tables.first[s]
+            w = tables.z[rows, 2] - tables.z[rows, 0]
+            theta = np.degrees(np.arctan2(tables.cs[rows, 1], tables.cs[rows, 0]))
+            T = stress_rotation(theta)                                        # (count, 3, 3): material → laminate
+            for dst, key in zip(out, ("mech", "fixed")):
+                mid = ref[key][:, i, local, 1, :3]                            # (ncase, count, 3)
+                lam = np.einsum("kab,jkb->jka", T, mid)
+                dst[i, :, g, :, :3] = (np.einsum("k,jka->ja", w, lam) / w.sum())[:, None, :]
+    return out[0], out[1], fidx
 
 
 def cell_states(criteria: Sequence[type], tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray,
@@ -35,5 +70,22 @@ def cell_states(criteria: Sequence[type], tables: SectionTables, cell_sec: np.nd
         pidx[i, :tables.nply[s]] = tables.first[s] + np.arange(tables.nply[s])
     mech = np.ascontiguousarray(np.nan_to_num(ref["mech"]).transpose(1, 0, 2, 3, 4))
     fixed = np.ascontiguousarray(np.nan_to_num(ref["fixed"]).transpose(1, 0, 2, 3, 4))
-    ratios = np.stack([evaluate(c, mech, fixed, pidx, tables.params)[0].transpose(1, 0, 2, 3) for c in criteria])
-    return {"mech": ref["mech"], "fixed": ref["fixed"], "strain": ref["strain"], "z": ref["z"], "ratio": ratios}
+    faces = None
+    ratios = []
+    for c in criteria:
+        if c.level == "point":
+            ratios.append(evaluate(c, mech, fixed, pidx, tables.params)[0].transpose(1, 0, 2, 3))
+            continue
+        if faces is None:
+            faces = face_states(tables, cell_sec, ref)
+        fm, ff, fidx = faces
+        sr = evaluate(c, fm, ff, fidx, tables.face_params)[0] if fidx.max() >= 0 else np.zeros(fm.shape[:4])
+        out = np.where(pidx[:, None, :, None] >= 0, np.inf, np.nan) * np.ones((n, mech.shape[1], mp, 3))
+        for i, s in enumerate(cell_sec):
+            for g in range(tables.face_count[s]):
+                row0, count = tables.face_rows[tables.face_first[s] + g]
+                local = np.arange(row0, row0 + count) - tables.first[s]
+                out[i, :, local] = sr[i, :, g][:, None, :].transpose(1, 0, 2)
+        ratios.append(out.transpose(1, 0, 2, 3))
+    return {"mech": ref["mech"], "fixed": ref["fixed"], "strain": ref["strain"], "z": ref["z"],
+            "ratio": np.stack(ratios)}

@@ -8,8 +8,9 @@ ply form the material-axis stresses (σ1, σ2, τ12) from classical lamination,
 (τ13, τ23) from the equilibrium distribution of Qx, Qy (or a precomputed
 transverse shear field), and σ3 = −pressure; then evaluate the chosen failure
 criteria and keep, per cell and ply, the lowest margin of safety with its
-strength ratio, case, point, criterion and mode. Stresses are never stored
-unless asked.
+strength ratio, case, point, criterion and mode. Face-level criteria (sandwich
+wrinkling and dimpling) are evaluated once per face on the face's mean stress
+and recorded on each of its plies. Stresses are never stored unless asked.
 
 The arguments are the named tuples of :mod:`shells.recovery_args`.
 Conventions: docs/conventions.md. Resultants order Nx, Ny, Nxy, Mx, My, Mxy,
@@ -47,6 +48,45 @@ def drop_roundoff(e, zmax):
             e[a + 3] = 0.0
 
 
+@njit(cache=True)
+def face_mean_stress(em, ef, row0, n, z, Q, cs, alpha, beta, t, h, sm, sf):
+    """Mean in-plane stress of a sandwich face, mechanical ``sm`` and fixed ``sf`` (written in place).
+
+    The face resultant over the face thickness, in LAMINATE axes (σx, σy, τxy in slots 0, 1, 2; the others
+    zero): the stress is linear through each ply, so its mean over a ply is the value at the ply's middle.
+    """
+    for a in range(6):
+        sm[a] = 0.0
+        sf[a] = 0.0
+    total = 0.0
+    for row in range(row0, row0 + n):
+        zz = z[row, 1]
+        w = z[row, 2] - z[row, 0]
+        total += w
+        c, s = cs[row, 0], cs[row, 1]
+        cc, ss, cx = c * c, s * s, c * s
+        for part in range(2):
+            e = em if part == 0 else ef
+            ex, ey, gxy = e[0] + zz * e[3], e[1] + zz * e[4], e[2] + zz * e[5]
+            e1 = cc * ex + ss * ey + cx * gxy
+            e2 = ss * ex + cc * ey - cx * gxy
+            g12 = -2.0 * cx * ex + 2.0 * cx * ey + (cc - ss) * gxy
+            if part == 1:
+                e1 -= alpha[row, 0] * t + beta[row, 0] * h
+                e2 -= alpha[row, 1] * t + beta[row, 1] * h
+            s1 = Q[row, 0] * e1 + Q[row, 1] * e2
+            s2 = Q[row, 1] * e1 + Q[row, 2] * e2
+            s6 = Q[row, 3] * g12
+            # Material → laminate axes: σ_xy = T(θ) σ_12.
+            out = sm if part == 0 else sf
+            out[0] += w * (cc * s1 + ss * s2 - 2.0 * cx * s6)
+            out[1] += w * (ss * s1 + cc * s2 + 2.0 * cx * s6)
+            out[2] += w * (cx * s1 - cx * s2 + (cc - ss) * s6)
+    for a in range(3):
+        sm[a] /= total
+        sf[a] /= total
+
+
 @njit(cache=True, parallel=True)
 def recover_block(sel, sec, blk, env, out):
     """Recover plies of a block of cells × cases and merge into the envelope (in place).
@@ -71,7 +111,8 @@ def recover_block(sel, sec, blk, env, out):
     # writes made through a named tuple's field (numba issues 5872 and 7135).
     R, dT, dM, pressure, fos, skip = blk.resultants, blk.delta_T, blk.delta_M, blk.pressure, blk.fos, blk.skip
     cell_sec, cell_cos, cell_sin, field_shear, case0 = blk.section, blk.cos_phi, blk.sin_phi, blk.shear, blk.case0
-    codes, masks = sel.codes, sel.masks
+    codes, masks, face_codes = sel.codes, sel.masks, sel.face_codes
+    face_first, face_count, face_rows, face_params = sec.face_first, sec.face_count, sec.face_rows, sec.face_params
     comp, fixed, first, nply, z, Q, cs = sec.compliance, sec.fixed, sec.first, sec.nply, sec.z, sec.Q, sec.cs
     alpha, beta, F, params = sec.alpha, sec.beta, sec.F, sec.params
     env_ms, env_sr, env_case, env_point = env.margin, env.strength_ratio, env.case, env.point
@@ -124,6 +165,25 @@ def recover_block(sel, sec, blk, env, out):
             inv_fos = 1.0 / fos[j]
             pres = pressure[j]
             cj = case0 + j
+            if face_codes.shape[0] > 0:
+                for f in range(face_first[s], face_first[s] + face_count[s]):
+                    face_mean_stress(em, ef, face_rows[f, 0], face_rows[f, 1], z, Q, cs, alpha, beta, t, h, sm, sf)
+                    for m in range(face_codes.shape[0]):
+                        cm = face_codes[m]
+                        sr, mode = ratio_by_code(cm, sm, sf, face_params[f])
+                        ms = sr * inv_fos - 1.0
+                        if ms < case_ms[i, cj]:
+                            case_ms[i, cj] = ms
+                        if ms < crit_ms[i, cm]:
+                            crit_ms[i, cm] = ms
+                        for k in range(face_rows[f, 0] - p0, face_rows[f, 0] - p0 + face_rows[f, 1]):
+                            if ms < env_ms[i, k]:
+                                env_ms[i, k] = ms
+                                env_sr[i, k] = sr
+                                env_case[i, k] = cj
+                                env_point[i, k] = 1
+                                env_crit[i, k] = cm
+                                env_mode[i, k] = mode
             for k in range(n):
                 row = p0 + k
                 ct, st = cs[row, 0], cs[row, 1]

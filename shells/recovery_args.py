@@ -27,10 +27,14 @@ class Selection(NamedTuple):
         Registry codes (``shells.criteria.code``).
     masks : bool (ncrit, 3)
         Whether each criterion applies at the bottom, middle and top points.
+    face_codes : int64 (nface_crit,)
+        Registry codes of the chosen face-level criteria (``Criterion.level == "face"``), evaluated once per
+        sandwich face on its mean stress; not in ``codes``.
     """
 
     codes: np.ndarray
     masks: np.ndarray
+    face_codes: np.ndarray
 
 
 class SectionArrays(NamedTuple):
@@ -57,6 +61,12 @@ class SectionArrays(NamedTuple):
     params : float64 (nrows, NPARAM)
         Criterion property vectors, allowables already multiplied by the ply's knockdown
         (:func:`shells.params.knocked_down`).
+    face_first, face_count : int64 (nsec,)
+        First face row and number of sandwich faces of each section.
+    face_rows : int64 (nface, 2)
+        First ply row and ply count of each face (its plies are consecutive).
+    face_params : float64 (nface, NPARAM)
+        Property vector of each face (``shells.section.Section.face_params``).
     """
 
     compliance: np.ndarray
@@ -70,6 +80,10 @@ class SectionArrays(NamedTuple):
     beta: np.ndarray
     F: np.ndarray
     params: np.ndarray
+    face_first: np.ndarray
+    face_count: np.ndarray
+    face_rows: np.ndarray
+    face_params: np.ndarray
 
 
 class BlockInputs(NamedTuple):

@@ -12,6 +12,7 @@ from typing import Sequence
 
 import numpy as np
 
+from . import params as P
 from .recovery_args import SectionArrays
 from .section import Section
 
@@ -39,7 +40,7 @@ class SectionTables:
     """Kernel view of a set of sections: the arrays and the section names.
 
     The arrays (``compliance``, ``fixed``, ``first``, ``nply``, ``z``, ``Q``, ``cs``,
-    ``alpha``, ``beta``, ``F``, ``params``) are those of
+    ``alpha``, ``beta``, ``F``, ``params`` and the face tables) are those of
     :class:`shells.recovery_args.SectionArrays`, read here as attributes.
     """
 
@@ -59,6 +60,7 @@ class SectionTables:
 def build_tables(sections: Sequence[Section], names: Sequence[str] = ()) -> SectionTables:
     """Flatten sections (in the order given: section ids are positions in this list)."""
     comp, fixed, first, nply = [], [], [], []
+    face_first, face_count, face_rows, face_params = [], [], [], [np.zeros((0, P.NPARAM))]
     rows: dict[str, list] = {k: [] for k in ("z", "Q", "cs", "alpha", "beta", "F", "params")}
     row = 0
     for sec in sections:
@@ -67,6 +69,10 @@ def build_tables(sections: Sequence[Section], names: Sequence[str] = ()) -> Sect
         fixed.append(np.stack([sp.NT, sp.MT, sp.NH, sp.MH]))
         first.append(row)
         nply.append(sec.n_plies)
+        face_first.append(len(face_rows))
+        face_count.append(len(sec.faces))
+        face_rows.extend([row + run[0], len(run)] for run in sec.faces)
+        face_params.append(sec.face_params)
         row += sec.n_plies
         z, F = _without_roundoff(sec)
         rows["z"].append(z)
@@ -87,5 +93,7 @@ def build_tables(sections: Sequence[Section], names: Sequence[str] = ()) -> Sect
         compliance=arr(comp), fixed=arr(fixed), first=arr(first, np.int64), nply=arr(nply, np.int64),
         z=arr(np.concatenate(rows["z"])), Q=arr(rows["Q"]), cs=arr(rows["cs"]), alpha=arr(rows["alpha"]),
         beta=arr(rows["beta"]), F=arr(np.concatenate(rows["F"])),
-        params=arr(np.concatenate(rows["params"])),
+        params=arr(np.concatenate(rows["params"])), face_first=arr(face_first, np.int64),
+        face_count=arr(face_count, np.int64), face_rows=arr(np.reshape(face_rows, (-1, 2)), np.int64),
+        face_params=arr(np.concatenate(face_params)),
     ), tuple(names))

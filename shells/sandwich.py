@@ -106,3 +106,46 @@ def core_shear_stress(Q, d):
     """
     (dd,) = _positive(d=d)
     return np.asarray(Q, dtype=np.float64) / dd
+
+
+def weakest_membrane_modulus(A, thickness):
+    """Smallest in-plane Young's modulus of a (face) laminate over all directions, and its Poisson ratio there.
+
+    E(θ) = 1 / (h · vᵀ A⁻¹ v) with v = (cos²θ, sin²θ, cos θ sin θ) (engineering shear), ν(θ) = −wᵀ A⁻¹ v /
+    vᵀ A⁻¹ v with w the direction θ + 90°. The minimum over θ does not depend on the laminate axes, so an
+    allowable built on it is the same whatever the 0° direction (a conservative face modulus for wrinkling and
+    dimpling, common practice).
+
+    Parameters
+    ----------
+    A : array (3, 3)
+        Membrane stiffness of the face (force/length), order x, y, xy.
+    thickness : float
+        Face thickness (length).
+
+    Returns
+    -------
+    (E_min, nu) : float, float
+    """
+    a = np.linalg.inv(np.asarray(A, dtype=np.float64))
+
+    def compliance(theta):
+        c, s = np.cos(theta), np.sin(theta)
+        v = np.stack([c * c, s * s, c * s])
+        return np.einsum("i...,ij,j...->...", v, a, v)
+
+    grid = np.linspace(0.0, np.pi, 721)
+    k = int(np.argmax(compliance(grid)))
+    lo, hi = grid[k] - np.pi / 720, grid[k] + np.pi / 720
+    gold = 0.5 * (np.sqrt(5.0) - 1.0)
+    for _ in range(80):                           # golden section on the bracketing interval
+        x1, x2 = hi - gold * (hi - lo), lo + gold * (hi - lo)
+        if compliance(x1) >= compliance(x2):
+            hi = x2
+        else:
+            lo = x1
+    theta = 0.5 * (lo + hi)
+    c, s = np.cos(theta), np.sin(theta)
+    v, w = np.array([c * c, s * s, c * s]), np.array([s * s, c * c, -c * s])
+    q = float(v @ a @ v)
+    return 1.0 / (thickness * q), float(-(w @ a @ v) / q)

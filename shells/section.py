@@ -11,9 +11,9 @@ import numpy as np
 from . import params as P
 from .defaults import SHEAR_FACTOR, TRANSVERSE_SHEAR, WRINKLING_COEFFICIENT
 from .errors import LayupError
-from .engineering import engineering_constants, flags, membrane_constants
+from .engineering import engineering_constants, flags
 from .laminate import Laminate, Ply, SectionProperties, section_properties
-from .sandwich import dimpling_stress, wrinkling_stress
+from .sandwich import dimpling_stress, weakest_membrane_modulus, wrinkling_stress
 from .shear import PLY_POINTS, equilibrium_shear_stiffness, factor_shear_stiffness, shear_distribution
 
 
@@ -39,6 +39,11 @@ class Section:
     ply_params : ndarray (nply, NPARAM)
         Kernel property vectors (materials plus face allowables), every allowable multiplied by the
         ply material's knockdown (:data:`shells.params.ALLOWABLES`).
+    faces : tuple of tuple of int
+        Sandwich faces: the ply indices (bottom to top) of each run of non-core plies next to a core.
+    face_params : ndarray (nface, NPARAM)
+        Property vector of each face for the face-level checks (wrinkling, dimpling): the face's first ply
+        with the face allowables, knocked down by the smallest knockdown of the face's plies.
     """
 
     laminate: Laminate
@@ -47,6 +52,8 @@ class Section:
     shear_method: str
     shear_F: np.ndarray = field(repr=False)
     ply_params: np.ndarray = field(repr=False)
+    faces: tuple[tuple[int, ...], ...] = ()
+    face_params: np.ndarray = field(default_factory=lambda: np.zeros((0, P.NPARAM)), repr=False)
 
     @property
     def n_plies(self) -> int:
@@ -72,10 +79,10 @@ class Section:
         }
 
 
-def _faces(plies: tuple[Ply, ...]) -> list[tuple[list[int], int]]:
-    """Runs of non-core plies that touch a core: (ply indices of the face, index of the core)."""
+def _faces(plies: tuple[Ply, ...]) -> dict[tuple[int, ...], list[int]]:
+    """Runs of non-core plies that touch a core: ply indices of the face → indices of the cores it touches."""
     is_core = [p.material.kind == "core" for p in plies]
-    out = []
+    out: dict[tuple[int, ...], list[int]] = {}
     for c, core in enumerate(is_core):
         if not core:
             continue
@@ -85,25 +92,36 @@ def _faces(plies: tuple[Ply, ...]) -> list[tuple[list[int], int]]:
                 run.append(k)
                 k += step
             if run:
-                out.append((sorted(run), c))
+                out.setdefault(tuple(sorted(run)), []).append(c)
     return out
 
 
-def _face_allowables(lam: Laminate, params: np.ndarray, k_wrinkle: float) -> None:
-    """Set wrinkling and dimpling allowables on the plies of every sandwich face (in place, own array).
+def _face_allowables(lam: Laminate, params: np.ndarray,
+                     k_wrinkle: float) -> tuple[tuple[tuple[int, ...], ...], np.ndarray]:
+    """Faces and their allowables; also sets them on the face plies' vectors (in place, own array).
 
-    Face modulus: the smaller of the face sub-laminate's membrane Ex, Ey; core
-    moduli: Ez and the smaller of G13, G23 (conservative choices, common practice).
+    Face modulus: the smallest in-plane modulus of the face sub-laminate over all directions (and its Poisson
+    ratio there), so the allowable does not depend on the laminate axes; core moduli: Ez and the smaller of
+    G13, G23 (conservative choices, common practice). A face touching two cores takes the smaller allowables.
     """
-    for run, c in _faces(lam.plies):
-        core = lam.plies[c].material
+    faces = _faces(lam.plies)
+    face_params = np.zeros((len(faces), P.NPARAM))
+    for f, (run, cores) in enumerate(faces.items()):
         face = Laminate(f"{lam.name}-face", tuple(lam.plies[k] for k in run))
-        mc = membrane_constants(section_properties(face))
-        ef = min(mc["Ex"], mc["Ey"])
-        if getattr(core, "Ez", None):
-            params[run, P.WRINKLING] = wrinkling_stress(ef, core.Ez, min(core.G13, core.G23), k_wrinkle)
-        if getattr(core, "cell_size", None):
-            params[run, P.DIMPLING] = dimpling_stress(ef, mc["nuxy"], face.thickness, core.cell_size)
+        ef, nuf = weakest_membrane_modulus(section_properties(face).A, face.thickness)
+        face_params[f] = params[run[0]]
+        face_params[f, [P.WRINKLING, P.DIMPLING]] = np.nan
+        for c in cores:
+            core = lam.plies[c].material
+            if getattr(core, "Ez", None):
+                face_params[f, P.WRINKLING] = np.fmin(face_params[f, P.WRINKLING], wrinkling_stress(
+                    ef, core.Ez, min(core.G13, core.G23), k_wrinkle))
+            if getattr(core, "cell_size", None):
+                face_params[f, P.DIMPLING] = np.fmin(face_params[f, P.DIMPLING], dimpling_stress(
+                    ef, nuf, face.thickness, core.cell_size))
+        params[list(run), P.WRINKLING] = face_params[f, P.WRINKLING]
+        params[list(run), P.DIMPLING] = face_params[f, P.DIMPLING]
+    return tuple(faces), face_params
 
 
 def build_section(lam: Laminate, shear_method: str = TRANSVERSE_SHEAR, shear_factor: float = SHEAR_FACTOR,
@@ -133,6 +151,8 @@ def build_section(lam: Laminate, shear_method: str = TRANSVERSE_SHEAR, shear_fac
     else:
         H = equilibrium_shear_stiffness(sp)
     params = np.array([p.material.params() for p in lam.plies])
-    _face_allowables(lam, params, wrinkling_coefficient)
-    params = P.knocked_down(params, np.array([p.material.knockdown for p in lam.plies]))
-    return Section(lam, sp, H, shear_method, shear_distribution(sp, PLY_POINTS), params)
+    faces, face_params = _face_allowables(lam, params, wrinkling_coefficient)
+    knockdown = np.array([p.material.knockdown for p in lam.plies])
+    params = P.knocked_down(params, knockdown)
+    face_params = P.knocked_down(face_params, np.array([knockdown[list(run)].min() for run in faces]))
+    return Section(lam, sp, H, shear_method, shear_distribution(sp, PLY_POINTS), params, faces, face_params)

@@ -204,13 +204,14 @@ HELD = [  # (criterion, p, sf, sm, R by hand, mode)
     ("puck", PUCK_PLY, state(s1=500.0), state(s1=100.0), (XT - 500.0) / 100.0, "fibre tension"),
     ("larc03", LARC_PLY, state(s1=500.0), state(s1=100.0), (XT - 500.0) / 100.0, "fibre tension"),
     # σvm² = (50R)² + 3·100² = 300².
-    ("von-mises", FULL_ISO, state(t12=100.0), state(s1=50.0), math.sqrt(300.0 ** 2 - 3e4) / 50.0, "yield"),
+    ("von-mises", FULL_ISO, state(t12=100.0), state(s1=50.0), math.sqrt(300.0 ** 2 - 3e4) / 50.0,
+     "equivalent stress"),
     # (0.5/1)² + (0.5R/0.6)² = 1.
     ("core-shear", FULL_CORE, state(t13=0.5), state(t23=0.5), 0.6 * math.sqrt(0.75) / 0.5,
      "transverse shear (23)"),
     ("core-crushing", FULL_CORE, state(s3=-1.0), state(s3=-0.5), (3.0 - 1.0) / 0.5, "flatwise compression"),
-    # S13 undefined ⇒ ILSS = 60: (10 + 5R)/60 = 1.
-    ("interlaminar", FULL_ISO, state(t13=10.0), state(t13=5.0), 10.0, "interlaminar shear 13"),
+    # S13 undefined ⇒ ILSS = 60: (10 + 5R)/60 = 1; an isotropic layer: the resultant transverse shear.
+    ("interlaminar", FULL_ISO, state(t13=10.0), state(t13=5.0), 10.0, "transverse shear"),
     # λmin = −50 − sqrt(50² + (50R)²) = −400 ⇒ R = sqrt(48).
     ("wrinkling", with_face_allowables(PLY, wrinkling=400.0), state(s1=-100.0), state(t12=50.0),
      math.sqrt(48.0), "face wrinkling"),

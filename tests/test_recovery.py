@@ -66,19 +66,16 @@ def test_kernel_matches_numpy_reference():
     for name in ("stress", "strain"):
         np.testing.assert_allclose(plies[name], ref[name], rtol=1e-9, atol=1e-9 * np.nanmax(np.abs(ref[name])))
     np.testing.assert_allclose(plies["transverse_shear"], ref["shear"], rtol=1e-9, atol=1e-12)
-    # Reference envelope: every criterion through the block driver, margins by case.
-    mech, fixed = (np.ascontiguousarray(ref[k].transpose(1, 0, 2, 3, 4)) for k in ("mech", "fixed"))
-    mech, fixed = np.nan_to_num(mech), np.nan_to_num(fixed)
+    # Reference envelope: every criterion on the reference states (postproc.states: the block driver per point,
+    # face means for the face-level criteria), margins by case.
+    from postproc.states import cell_states
     n, mp = len(cell_sec), tables.max_plies
     pidx = np.full((n, mp), -1)
     for i, s in enumerate(cell_sec):
         pidx[i, :tables.nply[s]] = tables.first[s] + np.arange(tables.nply[s])
-    best = np.full((n, mp), np.inf)
-    for c in crit:
-        sr, _ = evaluate(c, mech, fixed, pidx, tables.params)      # allowables knocked down in the tables
-        ms = sr / fos[None, :, None, None] - 1.0
-        ms = np.where(np.isnan(ms), np.inf, ms).min(axis=(1, 3))
-        best = np.minimum(best, ms)
+    ratio = cell_states(crit, tables, cell_sec, phi, R, dT, dM, pres)["ratio"]   # (ncrit, ncase, ncell, mp, 3)
+    ms = ratio / fos[None, :, None, None, None] - 1.0
+    best = np.where(np.isnan(ms), np.inf, ms).min(axis=(0, 1, 4))
     valid = pidx >= 0
     np.testing.assert_allclose(env["margin"][valid], best[valid], rtol=1e-9)
     assert np.all(np.isnan(env["margin"][~valid]))

@@ -38,6 +38,10 @@ class Criterion:
         satisfied when either property is defined.
     points : tuple of int
         Through-thickness points it applies at (0 bottom, 1 middle, 2 top).
+    level : str
+        ``"point"``: evaluated on the state at each ply point; ``"face"``: evaluated once per sandwich face
+        on the face's mean stress (face resultant / face thickness, laminate axes in slots σ1, σ2, τ12)
+        with the face's property vector, and recorded on every ply of the face at the middle point.
     """
 
     name: str = ""
@@ -45,12 +49,15 @@ class Criterion:
     modes: tuple = ()
     requires = MappingProxyType({})
     points: tuple = (0, 1, 2)
+    level: str = "point"
     ratio = None
 
     def __init_subclass__(cls, **kwargs):
         super().__init_subclass__(**kwargs)
         if not cls.name or not cls.modes or cls.ratio is None:
             raise TypeError(f"criterion class {cls.__name__} must set name, modes and ratio")
+        if cls.level not in ("point", "face"):
+            raise TypeError(f"criterion {cls.name!r}: level must be 'point' or 'face'")
         if not set(cls.points) <= {0, 1, 2} or not cls.points:
             raise TypeError(f"criterion {cls.name!r}: points must be a non-empty subset of (0, 1, 2)")
         for kind, keys in cls.requires.items():

@@ -1,10 +1,10 @@
 """Sandwich intracell dimpling: the face's most compressive principal stress against its dimpling allowable.
 
 Statement (common practice; allowable from :func:`shells.sandwich.dimpling_stress`,
-σ_dim = 2·Ef/(1 − νf²)·(tf/s)²): failure when the most compressive in-plane
-principal stress reaches ``−σ_dim``, σ_dim = p[DIMPLING], set per ply by the
-section builder (NaN for plies not next to a honeycomb core: not applicable,
-sr = inf). Solved exactly as for wrinkling.
+σ_dim = 2·Ef/(1 − νf²)·(tf/s)²): a face-level check, as wrinkling. The most
+compressive principal stress of the face's mean stress reaches ``−σ_dim``,
+σ_dim = p[DIMPLING] of the face (NaN where the core has no cell size: not
+applicable, sr = inf). Solved exactly as for wrinkling.
 """
 
 from __future__ import annotations
@@ -13,8 +13,8 @@ from numba import njit
 
 from .. import params as P
 from .base import Criterion
+from .principal import compressive_principal_ratio
 from .state import INF
-from .wrinkling import compressive_principal_ratio
 
 
 class Dimpling(Criterion):
@@ -22,6 +22,7 @@ class Dimpling(Criterion):
     title = "Intracell dimpling"
     modes = ("intracell dimpling",)
     requires = {P.KIND_PLY: (), P.KIND_ISOTROPIC: ()}
+    level = "face"
 
     @staticmethod
     @njit(cache=True)

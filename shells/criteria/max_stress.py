@@ -4,8 +4,14 @@ Statement (common practice; e.g. Kaw, *Mechanics of Composite Materials*,
 2nd ed., 2006, sec. 2.8): failure when σ1 ≥ Xt or −σ1 ≥ Xc, σ2 ≥ Yt or
 −σ2 ≥ Yc, or |τ12| ≥ S12. Linear in the load factor, so solved exactly.
 Transverse shear and σ3 are checked by ``interlaminar`` and
-``core-crushing``. An isotropic layer uses Xt, Xc for both directions
-(its property vector carries Yt = Xt, Yc = Xc).
+``core-crushing``.
+
+An isotropic layer has no preferred axes, so it is checked on invariants
+(common practice for metals): the largest in-plane principal stress against
+Xt, the smallest against −Xc, and the largest shear stress of the plane-stress
+state, max(|σI − σII|, |σI|, |σII|)/2 with σ3 = 0 (Tresca), against S12; modes
+tension, compression, shear. Each bound is a quadratic in the load factor,
+solved exactly (:mod:`shells.criteria.principal`).
 """
 
 from __future__ import annotations
@@ -14,8 +20,9 @@ from numba import njit
 
 from .. import params as P
 from .base import Criterion
+from .principal import max_shear_ratio, principal_ratio
 from .roots import linear_ratio
-from .state import FC, FT, INF, MC, MT, PLY_MODES, S1, S2, SH, T12
+from .state import FC, FT, INF, ISOTROPIC_MODES, MC, MT, PLY_MODES, S1, S2, SH, T12
 
 
 @njit(cache=True, inline="always")
@@ -38,10 +45,29 @@ def limits_ratio(m1, f1, m2, f2, m6, f6, x_t, x_c, y_t, y_c, s):
     return r6, SH
 
 
+#: Mode indices of an isotropic layer (after the ply modes).
+ISO_TENSION, ISO_COMPRESSION, ISO_SHEAR = range(len(PLY_MODES), len(PLY_MODES) + len(ISOTROPIC_MODES))
+
+
+@njit(cache=True, inline="always")
+def isotropic_ratio(sm, sf, x_t, x_c, s):
+    """Exact R of the invariant maximum-stress check of an isotropic layer; mode ISO_* or -1."""
+    rt = principal_ratio(sm, sf, x_t, 1.0)
+    rc = principal_ratio(sm, sf, x_c, -1.0)
+    rs = max_shear_ratio(sm, sf, s)
+    if rt == INF and rc == INF and rs == INF:
+        return INF, -1
+    if rt <= rc and rt <= rs:
+        return rt, ISO_TENSION
+    if rc <= rs:
+        return rc, ISO_COMPRESSION
+    return rs, ISO_SHEAR
+
+
 class MaxStress(Criterion):
     name = "max-stress"
     title = "Maximum stress"
-    modes = PLY_MODES
+    modes = PLY_MODES + ISOTROPIC_MODES
     requires = {P.KIND_PLY: ("Xt", "Xc", "Yt", "Yc", "S12"),
                 P.KIND_ISOTROPIC: ("Xt", "Xc", "S12")}
 
@@ -49,7 +75,9 @@ class MaxStress(Criterion):
     @njit(cache=True)
     def ratio(sm, sf, p):
         kind = p[P.KIND]
-        if kind != P.KIND_PLY and kind != P.KIND_ISOTROPIC:
+        if kind == P.KIND_ISOTROPIC:
+            return isotropic_ratio(sm, sf, p[P.XT], p[P.XC], p[P.S12])
+        if kind != P.KIND_PLY:
             return INF, -1
         return limits_ratio(sm[S1], sf[S1], sm[S2], sf[S2], sm[T12], sf[T12],
                             p[P.XT], p[P.XC], p[P.YT], p[P.YC], p[P.S12])

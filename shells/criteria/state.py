@@ -28,6 +28,9 @@ INF = np.inf
 PLY_MODES = ("fibre tension", "fibre compression", "matrix tension", "matrix compression", "in-plane shear")
 FT, FC, MT, MC, SH = range(5)
 
+#: Modes of an isotropic layer (no fibre or matrix): principal stresses and shear.
+ISOTROPIC_MODES = ("tension", "compression", "shear")
+
 
 def failure_index(sr):
     """Failure index 1/R of strength ratios ``sr`` (project-wide definition).

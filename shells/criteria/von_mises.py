@@ -33,7 +33,7 @@ def _vm_square_coeffs(sm, sf):
 class VonMises(Criterion):
     name = "von-mises"
     title = "Von Mises equivalent stress"
-    modes = ("yield",)
+    modes = ("equivalent stress",)
     requires = {P.KIND_ISOTROPIC: ("yield_strength",)}
 
     @staticmethod

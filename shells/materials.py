@@ -20,7 +20,9 @@ from dataclasses import dataclass, fields
 import numpy as np
 
 from . import params as P
+from . import ply_defaults as defaults
 from .errors import MaterialError
+from .ply_defaults import StrainLimits
 
 
 def _require_positive(material: str, **values: float | None) -> None:
@@ -78,7 +80,6 @@ class _Layer:
 
 _ELASTIC = {"E1", "E2", "G12", "nu12", "G13", "G23", "Ez"}
 
-
 @dataclass(frozen=True)
 class Orthotropic(_Layer):
     """A unidirectional or woven ply characterised in its material axes.
@@ -93,10 +94,19 @@ class Orthotropic(_Layer):
         E2 / (2 (1 + nu23)) when ``nu23`` is given, else to G12 (common practice).
     Xt, Xc, Yt, Yc, S12, S13, S23 : float, optional
         Strengths, all positive (compressive ones as magnitudes).
-    e1t, e1c, e2t, e2c, g12u : float, optional
-        Strain allowables (magnitudes; ``g12u`` engineering shear).
+    strain_limits : StrainLimits
+        Strain limits; those not given default to strength / modulus.
     alpha1, alpha2, beta1, beta2 : float
         Expansion per unit temperature / moisture change along 1 and 2.
+    fibre : {"carbon", "glass"} or None
+        Fibre family, for the default Puck inclinations (:data:`PUCK_INCLINATIONS`).
+    p_tpl, p_cpl : float, optional
+        Puck's p⊥∥⁺, p⊥∥⁻; default by fibre family.
+    G_Ic, G_IIc : float, optional
+        Mode I and mode II fracture toughness (force/length), for the in-situ strengths of thin plies.
+    insitu : bool
+        LaRC03 with in-situ transverse tensile and shear strengths, by ply position
+        (:mod:`shells.insitu`).
     """
 
     E1: float = 0.0
@@ -117,16 +127,15 @@ class Orthotropic(_Layer):
     S12: float | None = None
     S13: float | None = None
     S23: float | None = None
-    e1t: float | None = None
-    e1c: float | None = None
-    e2t: float | None = None
-    e2c: float | None = None
-    g12u: float | None = None
+    strain_limits: StrainLimits = StrainLimits()
     ilss: float | None = None
     F12star: float = -0.5
-    p_tpl: float = 0.30
-    p_cpl: float = 0.25
+    fibre: str | None = None
+    p_tpl: float | None = None
+    p_cpl: float | None = None
     alpha0_deg: float = 53.0
+    G_Ic: float | None = None
+    G_IIc: float | None = None
     insitu: bool = False
     kind = "ply"
 
@@ -145,6 +154,22 @@ class Orthotropic(_Layer):
         if self.nu23 is not None:
             return self.E2 / (2.0 * (1.0 + self.nu23))
         return self.G12
+
+    def strain_limit_values(self) -> tuple[dict[str, float | None], tuple[str, ...]]:
+        """The strain limits in use (given, else strength / modulus) and the names of those derived."""
+        return defaults.strain_limit_values(self)
+
+    def puck_inclinations(self) -> tuple[float, float]:
+        """(p⊥∥⁺, p⊥∥⁻): as given, else by fibre family, else the glass values."""
+        return defaults.puck_inclinations(self)
+
+    def transverse_shear_strength(self) -> float | None:
+        """S_T of Hashin's matrix modes: S23 when given, else from the fracture plane (Dávila et al. 2005)."""
+        return self.S23 if self.S23 is not None else defaults.fracture_plane_shear_strength(self.Yc, self.alpha0_deg)
+
+    def defaults_used(self) -> dict[str, str]:
+        """Criterion name → a one-line note on each default this material relies on for that criterion."""
+        return defaults.defaults_used(self)
 
     def Q(self) -> np.ndarray:
         """Plane-stress reduced stiffness in material axes, order (1, 2, 12)."""
@@ -179,21 +204,30 @@ class Orthotropic(_Layer):
                     f"material '{self.name}': nu23 = {self.nu23:g} must lie in (-1, {top:g}) (1 - 2·nu12·nu21) "
                     "for a positive-definite 3-D compliance and G23 > 0; check nu23")
         _require_positive(self.name, Xt=self.Xt, Xc=self.Xc, Yt=self.Yt, Yc=self.Yc, S12=self.S12,
-                          S13=self.S13, S23=self.S23, e1t=self.e1t, e1c=self.e1c, e2t=self.e2t,
-                          e2c=self.e2c, g12u=self.g12u, ilss=self.ilss)
+                          S13=self.S13, S23=self.S23, ilss=self.ilss, G_Ic=self.G_Ic, G_IIc=self.G_IIc)
+        _require_positive(self.name, **{f"strain_limits.{k}": v for k, v in vars(self.strain_limits).items()})
         if not -1.0 <= self.F12star <= 1.0:
             raise MaterialError(f"material '{self.name}': F12star = {self.F12star} must lie in [-1, 1]")
+        if self.fibre is not None and self.fibre not in defaults.PUCK_INCLINATIONS:
+            raise MaterialError(f"material '{self.name}': fibre = {self.fibre!r} is not a known family; use "
+                                f"{' or '.join(defaults.PUCK_INCLINATIONS)}, or leave it out and give p_tpl "
+                                "and p_cpl")
+        _require_positive(self.name, p_tpl=self.p_tpl, p_cpl=self.p_cpl)
         return self
 
     def params(self) -> np.ndarray:
+        """Property vector; the in-situ strengths are those of a thick embedded ply until the section builder
+        sets them by ply position (:func:`shells.insitu.insitu_strengths`)."""
         vec = self._base_params(P.KIND_PLY)
+        limits, _ = self.strain_limit_values()
+        p_tpl, p_cpl = self.puck_inclinations()
         _fill(vec, E1=self.E1, E2=self.E2, G12=self.G12, nu12=self.nu12, G13=self.g13, G23=self.g23,
               Xt=self.Xt, Xc=self.Xc, Yt=self.Yt, Yc=self.Yc, S12=self.S12, S13=self.S13, S23=self.S23,
-              e1t=self.e1t, e1c=self.e1c, e2t=self.e2t, e2c=self.e2c, g12u=self.g12u,
-              F12star=self.F12star, p_tpl=self.p_tpl, p_cpl=self.p_cpl,
-              alpha0=math.radians(self.alpha0_deg), ilss=self.ilss)
-        # In-situ strengths of a thick embedded ply (Davila, Camanho & Rose 2005, eqs. for thick plies).
-        scale_t, scale_s = (1.12 * math.sqrt(2.0), math.sqrt(2.0)) if self.insitu else (1.0, 1.0)
+              **{f"strain_{k}": v for k, v in limits.items()},
+              F12star=self.F12star, p_tpl=p_tpl, p_cpl=p_cpl,
+              alpha0=math.radians(self.alpha0_deg), ilss=self.ilss, S_T=self.transverse_shear_strength())
+        # In-situ strengths of a thick embedded ply (Camanho et al. 2006; Davila, Camanho & Rose 2005).
+        scale_t, scale_s = (defaults.THICK_TENSION, defaults.THICK_SHEAR) if self.insitu else (1.0, 1.0)
         _fill(vec, YT_is=None if self.Yt is None else scale_t * self.Yt,
               S12_is=None if self.S12 is None else scale_s * self.S12)
         return vec

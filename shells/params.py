@@ -15,7 +15,9 @@ NAMES = (
     "kind",      # 0 ply (orthotropic lamina), 1 isotropic layer, 2 core
     "E1", "E2", "G12", "nu12", "G13", "G23", "Ez",
     "Xt", "Xc", "Yt", "Yc", "S12", "S13", "S23", "Zc",
-    "e1t", "e1c", "e2t", "e2c", "g12u",
+    # strain limits (magnitudes; shear engineering): definition table strain_limits = {fibre_tension = …}
+    "strain_fibre_tension", "strain_fibre_compression", "strain_matrix_tension", "strain_matrix_compression",
+    "strain_shear",
     "yield_strength",
     "core_S13", "core_S23",
     "F12star",
@@ -24,18 +26,19 @@ NAMES = (
     "YT_is", "S12_is",         # in-situ strengths (LaRC03 option); equal to Yt, S12 when off
     "wrinkling", "dimpling",   # sandwich face allowables (compressive stress), set per ply
     "ilss",                    # interlaminar shear strength at this ply's faces
+    "S_T",                     # transverse shear strength of Hashin's matrix modes: S23, else the fracture-plane value
 )
 
 KIND, E1, E2, G12, NU12, G13, G23, EZ, XT, XC, YT, YC, S12, S13, S23, ZC, \
-    E1T, E1C, E2T, E2C, G12U, YIELD, CORE_S13, CORE_S23, F12STAR, P_TPL, \
-    P_CPL, ALPHA0, YT_IS, S12_IS, WRINKLING, DIMPLING, ILSS = range(len(NAMES))
+    STRAIN_FT, STRAIN_FC, STRAIN_MT, STRAIN_MC, STRAIN_SH, YIELD, CORE_S13, CORE_S23, F12STAR, P_TPL, \
+    P_CPL, ALPHA0, YT_IS, S12_IS, WRINKLING, DIMPLING, ILSS, S_T = range(len(NAMES))
 
 NPARAM = len(NAMES)
 
 #: The allowables: strengths, strain limits and the face, core and interlaminar allowables. A material's
 #: knockdown multiplies these (and nothing else: moduli, Poisson ratios and criterion parameters stay).
-ALLOWABLES = (XT, XC, YT, YC, S12, S13, S23, ZC, E1T, E1C, E2T, E2C, G12U, YIELD, CORE_S13, CORE_S23,
-              YT_IS, S12_IS, WRINKLING, DIMPLING, ILSS)
+ALLOWABLES = (XT, XC, YT, YC, S12, S13, S23, ZC, STRAIN_FT, STRAIN_FC, STRAIN_MT, STRAIN_MC, STRAIN_SH, YIELD,
+              CORE_S13, CORE_S23, YT_IS, S12_IS, WRINKLING, DIMPLING, ILSS, S_T)
 INDEX = {name: i for i, name in enumerate(NAMES)}
 
 KIND_PLY, KIND_ISOTROPIC, KIND_CORE = 0, 1, 2

@@ -20,6 +20,7 @@ from .engineering import membrane_constants
 from .laminate import Laminate, Ply, section_properties
 from .materials import Orthotropic
 from .navier import plate_fields, resultants
+from .ply_defaults import StrainLimits
 from .recovery_reference import ply_states
 from .recovery_tables import build_tables
 from .rotation import rotate_plane_stiffness, stress_to_rotated
@@ -62,8 +63,8 @@ class Published:
 def kaw_material() -> Orthotropic:
     """Graphite/epoxy of Kaw (2006), Table 2.1, MPa; strain allowables strength/modulus as Kaw takes them."""
     return Orthotropic("kaw-table-2.1", E1=181e3, E2=10.3e3, G12=7.17e3, nu12=0.28, Xt=1500, Xc=1500, Yt=40,
-                       Yc=246, S12=68, e1t=1500 / 181e3, e1c=1500 / 181e3, e2t=40 / 10.3e3, e2c=246 / 10.3e3,
-                       g12u=68 / 7.17e3).validate()
+                       Yc=246, S12=68, strain_limits=StrainLimits(1500 / 181e3, 1500 / 181e3, 40 / 10.3e3,
+                                                                246 / 10.3e3, 68 / 7.17e3)).validate()
 
 
 def pagano_material() -> Orthotropic:

@@ -12,6 +12,7 @@ from . import params as P
 from .defaults import SHEAR_FACTOR, TRANSVERSE_SHEAR, WRINKLING_COEFFICIENT
 from .errors import LayupError
 from .engineering import engineering_constants, flags
+from .insitu import insitu_strengths
 from .laminate import Laminate, Ply, SectionProperties, section_properties
 from .sandwich import dimpling_stress, weakest_membrane_modulus, wrinkling_stress
 from .shear import PLY_POINTS, equilibrium_shear_stiffness, factor_shear_stiffness, shear_distribution
@@ -151,6 +152,8 @@ def build_section(lam: Laminate, shear_method: str = TRANSVERSE_SHEAR, shear_fac
     else:
         H = equilibrium_shear_stiffness(sp)
     params = np.array([p.material.params() for p in lam.plies])
+    for k, (yt, s12) in insitu_strengths(lam.plies).items():
+        params[k, [P.YT_IS, P.S12_IS]] = yt, s12
     faces, face_params = _face_allowables(lam, params, wrinkling_coefficient)
     knockdown = np.array([p.material.knockdown for p in lam.plies])
     params = P.knocked_down(params, knockdown)

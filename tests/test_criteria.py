@@ -21,6 +21,7 @@ from shells.criteria import (CRITERIA, DEFAULT, Hashin, LaRC03, MaxStrain, MaxSt
 from shells.criteria.puck import inter_fibre_constants
 from shells.errors import DefinitionError, MaterialError
 from shells.materials import Core, Isotropic, Orthotropic
+from shells.ply_defaults import StrainLimits
 
 # Kaw (2006) Table 2.1 graphite/epoxy; Kaw takes the ultimate strains as strength/modulus.
 E1, E2, G12, NU12 = 181e3, 10.3e3, 7.17e3, 0.28
@@ -30,7 +31,7 @@ YT, YC, S = 40.0, 246.0, 68.0
 
 def kaw(**extra):
     return Orthotropic(name="kaw", E1=E1, E2=E2, G12=G12, nu12=NU12, Xt=XT, Xc=XC, Yt=YT, Yc=YC, S12=S,
-                       e1t=XT / E1, e1c=XC / E1, e2t=YT / E2, e2c=YC / E2, g12u=S / G12,
+                       strain_limits=StrainLimits(XT / E1, XC / E1, YT / E2, YC / E2, S / G12),
                        **extra).validate().params()
 
 
@@ -79,15 +80,34 @@ def test_kaw_strength_ratios(crit, want, mode):
 
 # ---------------------------------------------------------------- Hashin, Puck, LaRC03 simple states
 
+# Default transverse shear strength: the fracture-plane value of Dávila, Camanho & Rose, J. Composite Materials
+# 39 (2005) 323, S_T = Yc·cos α0·(sin α0 + cos α0/tan 2α0) at α0 = 53° (≈ 0.377·Yc).
+A0 = math.radians(53.0)
+S_T = YC * math.cos(A0) * (math.sin(A0) + math.cos(A0) / math.tan(2 * A0))
+
+
+def _hashin_compression(s23):
+    """R of Hashin's matrix compression under σ2 = −1: [(Yc/2S23)² − 1]σ2/Yc + σ2²/(4 S23²) = 1, s = −σ2 > 0."""
+    k = ((YC / (2 * s23)) ** 2 - 1.0) / YC
+    a = 1.0 / (4 * s23 ** 2)
+    return (k + math.sqrt(k * k + 4 * a)) / (2 * a)
+
+
 CASES = [  # (state, expected R, expected mode), each derived from the criterion's statement
     (state(s1=100.0), XT / 100.0, "fibre tension"),          # (σ1/Xt)² = 1
     (state(s1=-100.0), XC / 100.0, "fibre compression"),     # −σ1 = Xc
     (state(s2=10.0), YT / 10.0, "matrix tension"),           # (σ2/Yt)² = 1
-    (state(s2=-10.0), YC / 10.0, "matrix compression"),      # S23 = Yc/2 ⇒ (σ2/Yc)² = 1
+    (state(s2=-1.0), _hashin_compression(S_T), "matrix compression"),
     (state(t12=10.0), S / 10.0, "matrix tension"),           # σ1 ≡ 0: only the matrix mode, τ12²/S² = 1
     (state(t13=10.0), S / 10.0, "matrix tension"),           # τ13 enters with S12 (transverse isotropy)
-    (state(t23=10.0), YC / 2 / 10.0, "matrix tension"),      # τ23²/S23² = 1 with S23 = Yc/2 (common practice)
+    (state(t23=10.0), S_T / 10.0, "matrix tension"),         # τ23²/S_T² = 1
 ]
+
+
+def test_hashin_default_transverse_shear_strength():
+    np.testing.assert_allclose(S_T, 0.3768 * YC, rtol=1e-4)
+    assert PLY[P.S_T] == pytest.approx(S_T, rel=1e-14)
+    assert "fracture plane" in Orthotropic("k", E1=E1, E2=E2, G12=G12, nu12=NU12, Yc=YC).defaults_used()["hashin"]
 
 
 @pytest.mark.parametrize("sm, want, mode", CASES)
@@ -100,9 +120,7 @@ def test_hashin_simple_states(sm, want, mode):
 def test_hashin_explicit_s23():
     p = kaw(S23=50.0)
     # matrix compression with S23 = 50: [(Yc/2S23)² − 1]σ2/Yc + σ2²/(4 S23²) = 1, quadratic in σ2 < 0.
-    k = ((YC / 100.0) ** 2 - 1.0) / YC
-    a, b = 1.0 / (4 * 50.0 ** 2), -k          # in s = −σ2 > 0: a s² − k s − 1 = 0
-    s = (-b + math.sqrt(b * b + 4 * a)) / (2 * a)
+    s = _hashin_compression(50.0)
     sr, m = Hashin.ratio(state(s2=-1.0), ZERO, p)
     assert rel(sr, s) < 1e-12 and Hashin.modes[m] == "matrix compression"
 

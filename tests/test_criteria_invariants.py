@@ -19,7 +19,9 @@ from shells.errors import DefinitionError, MaterialError
 VALUES = {
     P.KIND_PLY: dict(E1=181e3, E2=10.3e3, G12=7.17e3, nu12=0.28, G13=7.17e3, G23=3.5e3, Ez=10.3e3,
                      Xt=1500.0, Xc=1500.0, Yt=40.0, Yc=246.0, S12=68.0, S13=68.0, S23=60.0, Zc=246.0,
-                     e1t=1500 / 181e3, e1c=1500 / 181e3, e2t=40 / 10.3e3, e2c=246 / 10.3e3, g12u=68 / 7.17e3,
+                     strain_fibre_tension=1500 / 181e3, strain_fibre_compression=1500 / 181e3,
+                     strain_matrix_tension=40 / 10.3e3, strain_matrix_compression=246 / 10.3e3,
+                     strain_shear=68 / 7.17e3, S_T=60.0,
                      yield_strength=300.0, core_S13=1.0, core_S23=0.6, F12star=-0.5, p_tpl=0.35,
                      p_cpl=0.30, alpha0=np.radians(53.0), YT_is=40.0, S12_is=68.0, wrinkling=400.0,
                      dimpling=500.0, ilss=80.0),

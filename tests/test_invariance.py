@@ -19,12 +19,13 @@ from shells import params as P
 from shells.criteria import CRITERIA
 from shells.laminate import Laminate, Ply
 from shells.materials import Core, Isotropic, Orthotropic
+from shells.ply_defaults import StrainLimits
 from shells.recovery_tables import build_tables
 from shells.rotation import shear_rotation, stress_rotation
 from shells.section import build_section
 
 PLY = Orthotropic("ply", E1=181e3, E2=10.3e3, G12=7.17e3, nu12=0.28, G23=3.5e3, Xt=1500, Xc=1500, Yt=40, Yc=246,
-                  S12=68, S13=68, S23=45, ilss=60, e1t=0.008, e1c=0.008, e2t=0.004, e2c=0.02, g12u=0.01,
+                  S12=68, S13=68, S23=45, ilss=60, strain_limits=StrainLimits(0.008, 0.008, 0.004, 0.02, 0.01),
                   alpha1=0.02e-6, alpha2=22.5e-6, p_tpl=0.35, p_cpl=0.30).validate()
 ISO = Isotropic("iso", E=70e3, nu=0.33, cte=23e-6, yield_strength=300, Xt=420, Xc=400, S12=250,
                 ilss=40).validate()

@@ -127,3 +127,22 @@ def test_temperature_field_equals_uniform_delta_T(tmp_path, write_definition):
         cm = h5["cells/case_margin"][()]
     np.testing.assert_array_equal(cm[:, 0], cm[:, 1])
     assert np.all(np.isfinite(cm))
+
+
+def test_the_example_definition_recovers_without_edits(tmp_path):
+    # examples/definition.toml as shipped: strain limits derived from the strengths (noted), every zone used.
+    import json
+
+    from tests.common import EXAMPLE
+
+    mesh = flat_plate(4, 4)
+    n = mesh.n_cells
+    write_mesh(tmp_path / "m.vtu", mesh, {"zone": (np.arange(n) % 4 + 1).astype(np.int32)})
+    rng = np.random.default_rng(5)
+    R = rng.normal(size=(2, n, 8)) * np.array([20.0, 20.0, 10.0, 2.0, 2.0, 1.0, 1.0, 1.0])
+    write_resultants_h5(tmp_path / "r.h5", ["p", "h"], R)
+    proc = run_cli("recover", EXAMPLE, tmp_path / "m.vtu", tmp_path / "r.h5", "-o", tmp_path / "o.h5", "--json")
+    assert proc.returncode == 0, proc.stderr
+    summary = json.loads(proc.stdout)
+    assert "derived as strength / modulus" in summary["defaults"]["cf-ud"]["max-strain"]
+    assert "strain limits" in proc.stderr and summary["worst"] is not None

@@ -6,10 +6,11 @@ import numpy as np
 import pytest
 
 from postproc.recover import Envelope, recover_cells, recover_into
-from shells.criteria import CRITERIA, by_name, code, evaluate
+from shells.criteria import CRITERIA, by_name, code
 from shells.criteria.dispatch import ratio_by_code
 from shells.laminate import Laminate, Ply
 from shells.materials import Core, Isotropic, Orthotropic
+from shells.ply_defaults import StrainLimits
 from shells.recovery_reference import ply_states
 from shells.recovery_tables import build_tables
 from shells.section import build_section
@@ -17,9 +18,9 @@ from shells.section import build_section
 # Kaw, Mechanics of Composite Materials, 2nd ed. (2006), Table 2.1 graphite/epoxy, MPa; strain allowables are
 # the strengths over the moduli (common practice for a linear lamina), thermal data of the same table.
 KAW = Orthotropic("kaw", E1=181e3, E2=10.3e3, G12=7.17e3, nu12=0.28, G23=3.5e3, Xt=1500, Xc=1500, Yt=40,
-                  Yc=246, S12=68, S13=68, S23=40, e1t=1500 / 181e3, e1c=1500 / 181e3, e2t=40 / 10.3e3,
-                  e2c=246 / 10.3e3, g12u=68 / 7.17e3, alpha1=0.02e-6, alpha2=22.5e-6, ilss=60,
-                  knockdown=0.8).validate()
+                  Yc=246, S12=68, S13=68, S23=40,
+                  strain_limits=StrainLimits(1500 / 181e3, 1500 / 181e3, 40 / 10.3e3, 246 / 10.3e3, 68 / 7.17e3),
+                  alpha1=0.02e-6, alpha2=22.5e-6, ilss=60, knockdown=0.8).validate()
 AL = Isotropic("al", E=70e3, nu=0.33, cte=23e-6, yield_strength=300.0, Xt=300, Xc=300, S12=170).validate()
 CORE = Core("hc", G13=40.0, G23=25.0, Ez=140.0, S13=1.2, S23=0.7, Zc=2.4, cell_size=3.2).validate()
 

@@ -25,14 +25,15 @@ DEFINITION = f"""units = "N-mm"
 [analysis]
 hot_spots = 2
 [materials."{EVIL}"]
-""" + KAW_PLY_TOML + f"""e1t = 0.0083
-e1c = 0.0083
-e2t = 0.0039
-e2c = 0.024
-g12u = 0.0095
-thickness = 1.0
+""" + KAW_PLY_TOML + f"""thickness = 1.0
 alpha1 = "0.02e-6/degC"
 alpha2 = "22.5e-6/degC"
+[materials."{EVIL}".strain_limits]
+fibre_tension = 0.0083
+fibre_compression = 0.0083
+matrix_tension = 0.0039
+matrix_compression = 0.024
+shear = 0.0095
 [laminates.one]
 layup = "[60]"
 material = "{EVIL}"

@@ -2,10 +2,12 @@
 
 from __future__ import annotations
 
+from dataclasses import fields
 from typing import Any, Mapping
 
 from shells.errors import DefinitionError, MaterialError
 from shells.materials import Core, Isotropic, Material, Orthotropic
+from shells.ply_defaults import StrainLimits
 
 from bridge.definition.ranges import check_material_values
 from bridge.definition.schema import check_name, expect_table, suggest, take
@@ -22,7 +24,7 @@ SPECS: dict[str, dict[str, str]] = {
         "E1": S, "E2": S, "G12": S, "nu12": D, "G13": S, "G23": S, "nu23": D,
         "alpha1": "expansion", "alpha2": "expansion", "beta1": D, "beta2": D,
         "Xt": S, "Xc": S, "Yt": S, "Yc": S, "S12": S, "S13": S, "S23": S, "ilss": S,
-        "e1t": D, "e1c": D, "e2t": D, "e2c": D, "g12u": D,
+        "strain_limits": "any", "fibre": "str", "G_Ic": "force_per_length", "G_IIc": "force_per_length",
         "F12star": D, "p_tpl": D, "p_cpl": D, "alpha0": "angle", "insitu": "bool",
     },
     "isotropic": {
@@ -38,6 +40,13 @@ REQUIRED = {"ply": ("E1", "E2", "G12", "nu12"), "isotropic": ("E", "nu"), "core"
 _RENAME = {"isotropic": {"alpha": "cte", "beta": "cme"}, "ply": {"alpha0": "alpha0_deg"}}
 _CLASSES = {"ply": Orthotropic, "isotropic": Isotropic, "core": Core}
 KNOCKDOWN_KEYS = ("environment", "damage", "other")
+#: Strain-limit keys of earlier versions, refused with a pointer to the strain_limits table.
+OLD_STRAIN_KEYS = ("e1t", "e1c", "e2t", "e2c", "g12u")
+
+
+def _strain_limits(value: Any, where: str, units: UnitSystem) -> StrainLimits:
+    names = tuple(f.name for f in fields(StrainLimits))
+    return StrainLimits(**take(expect_table(value, where), dict.fromkeys(names, D), where, units))
 
 
 def _knockdown(value: Any, where: str) -> tuple[float, tuple[tuple[str, float], ...]]:
@@ -65,9 +74,18 @@ def parse_material(name: str, table: Mapping[str, Any], units: UnitSystem, check
     if kind not in SPECS:
         raise DefinitionError(f"[{where}]: kind = {kind!r} is not known{suggest(kind, SPECS)}; "
                               f"use one of {', '.join(SPECS)}")
+    old = [key for key in OLD_STRAIN_KEYS if key in table]
+    if old:
+        raise DefinitionError(f"[{where}]: '{old[0]}' is not a key; give strain limits as a table, strain_limits = "
+                              "{ fibre_tension = …, fibre_compression = …, matrix_tension = …, matrix_compression = "
+                              "…, shear = … } (docs/definition.md)")
     values = take(table, SPECS[kind], where, units, REQUIRED[kind])
+    if "strain_limits" in values:
+        values["strain_limits"] = _strain_limits(values["strain_limits"], f"{where}.strain_limits", units)
     if check_ranges:
-        check_material_values(where, kind, values, units)
+        limits = vars(values.get("strain_limits", StrainLimits()))
+        check_material_values(where, kind, {**values, **{f"strain_limits.{k}": v for k, v in limits.items()}},
+                              units)
     values.pop("kind", None)
     if "knockdown" in values:
         values["knockdown"], values["knockdown_factors"] = _knockdown(values["knockdown"], f"{where}.knockdown")

@@ -72,6 +72,7 @@ _MATERIALS = '''
 # ---------------------------------------------------------------- materials
 [materials.cf-ud]            # graphite/epoxy (T300/5208) of Kaw, Mechanics of Composite Materials (2006), Table 2.1
 kind = "ply"
+fibre = "carbon"
 E1 = "181 GPa"
 E2 = "10.3 GPa"
 G12 = "7.17 GPa"

@@ -88,6 +88,14 @@ def plan_cases(defn: Definition, model: Model, step_names: tuple[str, ...]) -> C
                     np.array([defn.analysis.fos(c.kind) for c in cases]))
 
 
+def defaults_of(model: Model, crit) -> dict[str, dict[str, str]]:
+    """Material → {criterion: note} of the defaults the chosen criteria rely on (derived strain limits, ...)."""
+    from shells.ply_defaults import notes_for
+
+    materials = {p.material.name: p.material for s in model.sections for p in s.laminate.plies}
+    return notes_for(materials.values(), {c.name for c in crit})
+
+
 def criteria_of(defn: Definition, model: Model) -> tuple[type, ...]:
     crit = tuple(by_name(n) for n in defn.analysis.criteria)
     materials = {p.material.name: p.material.params() for s in model.sections for p in s.laminate.plies}
@@ -300,6 +308,11 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
             notes = notes + check_note(summary["transverse_shear"])
         summary["notes"] = notes
         summary["cell_order"] = cell_order(source)
+        summary["defaults"] = defaults_of(model, crit)
+        if progress is not None and note is not None:          # on stderr unless --quiet
+            for mat, texts in summary["defaults"].items():
+                for name, text in texts.items():
+                    note(f"material '{mat}', {name}: {text}")
         _finish(store, summary, crit, tables, model, source, plan, defn, provenance(paths, digests), store_plies,
                 field)
         partial.complete()

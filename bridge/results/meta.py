@@ -39,6 +39,10 @@ def material_info(m) -> MaterialInfo:
         if f.name in _NOT_PROPERTIES or value is None:
             continue
         key = _definition_key(m.kind, f.name)
+        if dataclasses.is_dataclass(value):           # a table of the definition (strain_limits)
+            props.extend(Property(f"{key}.{g.name}", float(getattr(value, g.name)), "dimensionless")
+                         for g in dataclasses.fields(value) if getattr(value, g.name) is not None)
+            continue
         kind = spec.get(key, "dimensionless")
         kind = "dimensionless" if kind in ("any", "str", "int", "bool") else kind
         props.append(Property(key, value if isinstance(value, (bool, str)) else float(value), kind))

@@ -10,16 +10,18 @@ for σ3 = 0 (plane-stress CLT) is the form of the brief:
 - matrix compression, σ2 + σ3 < 0: ``[(Yc/2S23)² − 1](σ2+σ3)/Yc
   + (σ2+σ3)²/(4·S23²) + (τ23² − σ2σ3)/S23² + (τ12² + τ13²)/S12² = 1``.
 
-S12 serves τ13 too (transverse isotropy). S23 (transverse shear strength)
-defaults to Yc/2 when not defined: common practice. Each mode is quadratic in
+S12 serves τ13 too (transverse isotropy). The transverse shear strength S_T is
+the material's S23 when given, else the fracture-plane value of Dávila,
+Camanho & Rose (J. Composite Materials 39 (2005) 323–345):
+``S_T = Yc·cos α0·(sin α0 + cos α0/tan 2α0)`` with the fracture angle of pure
+transverse compression α0 (53° by default), about 0.377·Yc, set once per
+material in p[S_T] (:meth:`shells.materials.Orthotropic.transverse_shear_strength`). Each mode is quadratic in
 the load factor on the part of the ray where its sign condition holds, so R is
 exact: the ray is cut where σ1 (resp. σ2 + σ3) changes sign. With σ1 ≡ 0 no
 fibre mode applies (pure shear is matrix governed).
 """
 
 from __future__ import annotations
-
-import math
 
 from numba import njit
 
@@ -91,9 +93,7 @@ class Hashin(Criterion):
     def ratio(sm, sf, p):
         if p[P.KIND] != P.KIND_PLY:
             return INF, -1
-        s23 = p[P.S23]
-        if math.isnan(s23):
-            s23 = 0.5 * p[P.YC]
+        s23 = p[P.S_T]
         bf = break_point(sf[S1], sm[S1])
         r, m = _fibre(sm, sf, p, 0.0, bf)
         if r == INF:

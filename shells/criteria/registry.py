@@ -40,7 +40,11 @@ NAMES = tuple(c.name for c in CRITERIA)
 
 # Property-vector names whose definition-file key differs (for the fix in error messages).
 _DEFINITION_KEY = {"core_S13": "S13", "core_S23": "S23", "alpha0": "alpha0",
-                   "YT_is": "Yt", "S12_is": "S12"}
+                   "YT_is": "Yt", "S12_is": "S12",
+                   **{f"strain_{name}": f"{strength} (or strain_limits.{name})"
+                      for name, strength in (("fibre_tension", "Xt"), ("fibre_compression", "Xc"),
+                                             ("matrix_tension", "Yt"), ("matrix_compression", "Yc"),
+                                             ("shear", "S12"))}}
 
 
 def by_name(name: str) -> type[Criterion]:

@@ -16,7 +16,7 @@ import numpy as np
 from shells.criteria import CRITERIA, code
 from shells.errors import ResultantsError
 from shells.recovery import recover_block
-from shells.recovery_args import NO_SHEAR, BlockInputs, Envelope, PlyStates, Selection
+from shells.recovery_args import NO_HELD, NO_SHEAR, BlockInputs, Envelope, PlyStates, Selection
 from shells.recovery_tables import ROUNDOFF, SectionTables
 
 __all__ = ["Envelope", "cell_summary", "recover_cells", "recover_into", "selection"]
@@ -64,7 +64,8 @@ def _shear_field(shear: np.ndarray | None, ncase: int, ncell: int, max_plies: in
 def recover_into(env: Envelope, criteria: Sequence[type], tables: SectionTables, cell_sec: np.ndarray,
                  phi_deg: np.ndarray, R: np.ndarray, dT: np.ndarray, dM: np.ndarray, pres: np.ndarray,
                  fos: np.ndarray, skip: np.ndarray | None = None, case0: int = 0,
-                 store: PlyStates | None = None, shear: np.ndarray | None = None) -> None:
+                 store: PlyStates | None = None, shear: np.ndarray | None = None, held: np.ndarray | None = None,
+                 held_pressure: np.ndarray | None = None, held_shear: np.ndarray | None = None) -> None:
     """Recover one block of cells × cases and merge it into ``env`` (rows of the same cells).
 
     Parameters
@@ -89,20 +90,36 @@ def recover_into(env: Envelope, criteria: Sequence[type], tables: SectionTables,
     shear : float (ncase, ncell, maxply, 3, 2), optional
         Precomputed transverse shear (τxz, τyz) in laminate axes, replacing F·(Qx, Qy)
         (see :class:`shells.recovery_args.BlockInputs`).
+    held : float (ncase, ncell, 8), optional
+        Resultants of held cases (element frame): part of the fixed state, not scaled by R.
+    held_pressure : float (ncase,), optional
+        Lateral pressure of the held part.
+    held_shear : float (ncase, ncell, maxply, 3, 2), optional
+        Transverse shear field of the held part; required with ``shear`` when ``held`` is given.
     """
     ncase, ncell = R.shape[:2]
     f64 = lambda a: np.ascontiguousarray(a, dtype=np.float64)  # noqa: E731
     skip = np.zeros((ncase, ncell), np.bool_) if skip is None else np.ascontiguousarray(skip, dtype=np.bool_)
     phi = np.radians(np.asarray(phi_deg, dtype=np.float64))
+    if held is not None and shear is not None and held_shear is None:
+        raise ResultantsError("a transverse shear field for the loads needs one for the held cases too")
+    held_R = NO_HELD if held is None else f64(np.nan_to_num(held))
+    if held is not None and held_R.shape != R.shape:
+        raise ResultantsError(f"held resultants of shape {held_R.shape}; expected {R.shape}")
     block = BlockInputs(f64(R), f64(dT), f64(dM), f64(pres), f64(fos), skip,
                         np.ascontiguousarray(cell_sec, dtype=np.int64), np.cos(phi), np.sin(phi),
-                        _shear_field(shear, ncase, ncell, tables.max_plies), int(case0))
+                        _shear_field(shear, ncase, ncell, tables.max_plies), held_R,
+                        np.zeros(ncase) if held_pressure is None else f64(held_pressure),
+                        _shear_field(held_shear, ncase, ncell, tables.max_plies) if held is not None else NO_SHEAR,
+                        int(case0))
     recover_block(selection(criteria), tables.arrays, block, env, PlyStates.none() if store is None else store)
 
 
 def recover_cells(criteria: Sequence[type], tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray,
                   R: np.ndarray, dT: np.ndarray, dM: np.ndarray, pres: np.ndarray, fos: np.ndarray,
-                  store_plies: bool = False, shear: np.ndarray | None = None) -> tuple[dict, dict, dict | None]:
+                  store_plies: bool = False, shear: np.ndarray | None = None, held: np.ndarray | None = None,
+                  held_pressure: np.ndarray | None = None,
+                  held_shear: np.ndarray | None = None) -> tuple[dict, dict, dict | None]:
     """Envelope, cell summary and (optionally) ply states of one block of cells over all cases.
 
     Cell-cases with non-finite resultants are skipped: the cell is ``flagged``
@@ -110,8 +127,8 @@ def recover_cells(criteria: Sequence[type], tables: SectionTables, cell_sec: np.
 
     Parameters
     ----------
-    shear : float (ncase, ncell, maxply, 3, 2), optional
-        Precomputed transverse shear in laminate axes (see :func:`recover_into`).
+    shear, held, held_pressure, held_shear : optional
+        Precomputed transverse shear and the held part (see :func:`recover_into`).
 
     Returns
     -------
@@ -125,10 +142,14 @@ def recover_cells(criteria: Sequence[type], tables: SectionTables, cell_sec: np.
     R = np.asarray(R, dtype=np.float64)
     ncase, ncell = R.shape[:2]
     skip = ~np.isfinite(R).all(axis=-1)
+    if held is not None:
+        held = np.asarray(held, dtype=np.float64)
+        skip |= ~np.isfinite(held).all(axis=-1)
     R = np.where(skip[..., None], 0.0, R)
     env = Envelope.empty(ncell, tables.max_plies, ncase, len(CRITERIA))
     plies = PlyStates.allocate(ncase, ncell, tables.max_plies) if store_plies else None
-    recover_into(env, criteria, tables, cell_sec, phi_deg, R, dT, dM, pres, fos, skip, 0, plies, shear)
+    recover_into(env, criteria, tables, cell_sec, phi_deg, R, dT, dM, pres, fos, skip, 0, plies, shear, held,
+                 held_pressure, held_shear)
     done = env.finish(tables.nply[cell_sec], skip.all(axis=0))
     cells = cell_summary(done)
     cells["flagged"] = skip.any(axis=0)

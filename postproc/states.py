@@ -53,8 +53,11 @@ def face_states(tables: SectionTables, cell_sec: np.ndarray, ref: dict) -> tuple
 
 def cell_states(criteria: Sequence[type], tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray,
                 R: np.ndarray, dT: np.ndarray, dM: np.ndarray, pres: np.ndarray,
-                shear: np.ndarray | None = None) -> dict[str, np.ndarray]:
-    """States and strength ratios of the given cells (``shear``: see :func:`shells.recovery_reference.ply_states`).
+                shear: np.ndarray | None = None, held: np.ndarray | None = None,
+                held_pressure: np.ndarray | None = None,
+                held_shear: np.ndarray | None = None) -> dict[str, np.ndarray]:
+    """States and strength ratios of the given cells (``shear``, ``held``, ``held_pressure``, ``held_shear``: see
+    :func:`shells.recovery_reference.ply_states`; the held part is fixed, not scaled).
 
     Returns
     -------
@@ -63,7 +66,7 @@ def cell_states(criteria: Sequence[type], tables: SectionTables, cell_sec: np.nd
         ``strain`` (ncase, ncell, maxply, 3, 3); ``z`` (ncell, maxply, 3);
         ``ratio`` (ncrit, ncase, ncell, maxply, 3) strength ratios (NaN past a cell's ply count).
     """
-    ref = ply_states(tables, cell_sec, phi_deg, R, dT, dM, pres, shear)
+    ref = ply_states(tables, cell_sec, phi_deg, R, dT, dM, pres, shear, held, held_pressure, held_shear)
     n, mp = len(cell_sec), tables.max_plies
     pidx = np.full((n, mp), -1, dtype=np.int64)
     for i, s in enumerate(cell_sec):

@@ -3,7 +3,8 @@
 For every cell (in parallel) and load case: rotate the resultants from the
 element frame into laminate axes, solve the section compliance for the
 mid-plane strains and curvatures (mechanical part, and the fixed part from the
-thermal and moisture resultants), and at the bottom, middle and top of every
+thermal and moisture resultants and the resultants of held cases), and at the
+bottom, middle and top of every
 ply form the material-axis stresses (σ1, σ2, τ12) from classical lamination,
 (τ13, τ23) from the equilibrium distribution of Qx, Qy (or a precomputed
 transverse shear field), and σ3 = −pressure; then evaluate the chosen failure
@@ -111,6 +112,7 @@ def recover_block(sel, sec, blk, env, out):
     # writes made through a named tuple's field (numba issues 5872 and 7135).
     R, dT, dM, pressure, fos, skip = blk.resultants, blk.delta_T, blk.delta_M, blk.pressure, blk.fos, blk.skip
     cell_sec, cell_cos, cell_sin, field_shear, case0 = blk.section, blk.cos_phi, blk.sin_phi, blk.shear, blk.case0
+    held_R, held_pres, held_shear = blk.held_resultants, blk.held_pressure, blk.held_shear
     codes, masks, face_codes = sel.codes, sel.masks, sel.face_codes
     face_first, face_count, face_rows, face_params = sec.face_first, sec.face_count, sec.face_rows, sec.face_params
     comp, fixed, first, nply, z, Q, cs = sec.compliance, sec.fixed, sec.first, sec.nply, sec.z, sec.Q, sec.cs
@@ -122,6 +124,8 @@ def recover_block(sel, sec, blk, env, out):
     ncell = R.shape[1]
     store = out_stress.size > 0
     field = field_shear.size > 0
+    held = held_R.size > 0
+    held_field = held_shear.size > 0
     for i in prange(ncell):
         sm = np.empty(6)
         sf = np.empty(6)
@@ -152,6 +156,16 @@ def recover_block(sel, sec, blk, env, out):
             for a in range(3):
                 gf[a] = fixed[s, 0, a] * t + fixed[s, 2, a] * h
                 gf[a + 3] = fixed[s, 1, a] * t + fixed[s, 3, a] * h
+            qxh = 0.0
+            qyh = 0.0
+            if held:                      # held cases: their resultants join the fixed part
+                rh = held_R[j, i]
+                for o in (0, 3):
+                    gf[o] += cc * rh[o] + ss * rh[o + 1] + 2.0 * cx * rh[o + 2]
+                    gf[o + 1] += ss * rh[o] + cc * rh[o + 1] - 2.0 * cx * rh[o + 2]
+                    gf[o + 2] += -cx * rh[o] + cx * rh[o + 1] + (cc - ss) * rh[o + 2]
+                qxh = c * rh[6] + sn * rh[7]
+                qyh = -sn * rh[6] + c * rh[7]
             for a in range(6):
                 am = 0.0
                 af = 0.0
@@ -164,6 +178,7 @@ def recover_block(sel, sec, blk, env, out):
             drop_roundoff(ef, zmax)
             inv_fos = 1.0 / fos[j]
             pres = pressure[j]
+            pres_held = held_pres[j]
             cj = case0 + j
             if face_codes.shape[0] > 0:
                 for f in range(face_first[s], face_first[s] + face_count[s]):
@@ -222,17 +237,27 @@ def recover_block(sel, sec, blk, env, out):
                     sf[0] = q11 * (e1f - fx) + q12 * (e2f - fy)
                     sf[1] = q12 * (e1f - fx) + q22 * (e2f - fy)
                     sf[2] = q66 * g12f
-                    sf[3] = 0.0
-                    sf[4] = 0.0
-                    sf[5] = 0.0
+                    if held:
+                        if held_field:
+                            txh = held_shear[j, i, k, q, 0]
+                            tyh = held_shear[j, i, k, q, 1]
+                        else:
+                            txh = F[row, q, 0, 0] * qxh + F[row, q, 0, 1] * qyh
+                            tyh = F[row, q, 1, 0] * qxh + F[row, q, 1, 1] * qyh
+                        sf[3] = ct * txh + st * tyh
+                        sf[4] = -st * txh + ct * tyh
+                    else:
+                        sf[3] = 0.0
+                        sf[4] = 0.0
+                    sf[5] = -pres_held
                     if store:
                         for a in range(3):
                             out_stress[j, i, k, q, a] = sm[a] + sf[a]
                         out_strain[j, i, k, q, 0] = e1m + e1f
                         out_strain[j, i, k, q, 1] = e2m + e2f
                         out_strain[j, i, k, q, 2] = g12m + g12f
-                        out_shear[j, i, k, q, 0] = sm[3]
-                        out_shear[j, i, k, q, 1] = sm[4]
+                        out_shear[j, i, k, q, 0] = sm[3] + sf[3]
+                        out_shear[j, i, k, q, 1] = sm[4] + sf[4]
                     # Criteria; the envelope update is written out here (a call taking the envelope
                     # arrays would reference-count eight arrays per point).
                     for m in range(codes.shape[0]):

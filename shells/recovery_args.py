@@ -109,6 +109,13 @@ class BlockInputs(NamedTuple):
         kernel: the hook of ``[analysis] transverse_shear = "field"`` (transverse shear from the
         gradients of the resultant field). Qx, Qy of ``resultants`` are then not used for stresses.
         Zero-size (the normal path): τ = F·(Qx, Qy).
+    held_resultants : float64 (ncase, ncell, 8), or zero-size
+        Resultants of held cases (element frame), part of the FIXED state with the thermal and moisture
+        resultants: they are not scaled by the strength ratio. Zero-size when no case holds any.
+    held_pressure : float64 (ncase,)
+        Lateral pressure of the held part (σ3 = −held_pressure, fixed); zeros when none.
+    held_shear : float64 (ncase, ncell, maxply, 3, 2), or zero-size
+        As ``shear``, for the held part: given exactly when ``shear`` is given and there are held resultants.
     case0 : int
         Global index of the block's first case.
     """
@@ -123,11 +130,16 @@ class BlockInputs(NamedTuple):
     cos_phi: np.ndarray
     sin_phi: np.ndarray
     shear: np.ndarray
+    held_resultants: np.ndarray
+    held_pressure: np.ndarray
+    held_shear: np.ndarray
     case0: int
 
 
-#: The zero-size ``BlockInputs.shear`` of the normal path.
+#: The zero-size ``BlockInputs.shear`` / ``held_shear`` of the normal path.
 NO_SHEAR = np.zeros((0, 0, 0, 3, 2))
+#: The zero-size ``BlockInputs.held_resultants`` when nothing is held.
+NO_HELD = np.zeros((0, 0, 8))
 
 
 class Envelope(NamedTuple):

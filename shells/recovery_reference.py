@@ -21,7 +21,8 @@ def _drop_roundoff(e: np.ndarray, zmax: float) -> np.ndarray:
 
 def ply_states(tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray, R: np.ndarray,
                dT: np.ndarray, dM: np.ndarray | None = None, pres: np.ndarray | None = None,
-               shear: np.ndarray | None = None) -> dict:
+               shear: np.ndarray | None = None, held: np.ndarray | None = None,
+               held_pressure: np.ndarray | None = None, held_shear: np.ndarray | None = None) -> dict:
     """Material-axis states at the bottom, middle and top of every ply.
 
     Parameters
@@ -39,13 +40,19 @@ def ply_states(tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray,
         Moisture change and lateral pressure per case.
     shear : float (ncase, ncell, maxply, 3, 2), optional
         (τxz, τyz) at every ply point in laminate axes, replacing F·(Qx, Qy) (field transverse shear).
+    held : float (ncase, ncell, 8), optional
+        Resultants of held cases (element frame): part of the fixed state.
+    held_pressure : float (ncase,), optional
+        Lateral pressure of the held part.
+    held_shear : float (ncase, ncell, maxply, 3, 2), optional
+        As ``shear``, for the held part.
 
     Returns
     -------
     dict of arrays, NaN past a cell's ply count
         ``mech`` and ``fixed`` (ncase, ncell, maxply, 3, 6) point states (σ1, σ2, τ12, τ13, τ23, σ3);
         ``stress`` (…, 3) total (σ1, σ2, τ12); ``strain`` (…, 3) total (ε1, ε2, γ12);
-        ``z`` (ncell, maxply, 3).
+        ``shear`` (…, 2) total (τ13, τ23); ``z`` (ncell, maxply, 3).
     """
     R = np.asarray(R, dtype=float)
     ncase, ncell = R.shape[:2]
@@ -61,13 +68,19 @@ def ply_states(tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray,
     N = np.einsum("cij,scj->sci", Tinv, R[..., 0:3])
     M = np.einsum("cij,scj->sci", Tinv, R[..., 3:6])
     Qs = np.einsum("cij,scj->sci", Rq, R[..., 6:8])
+    Rh = np.zeros_like(R) if held is None else np.asarray(held, dtype=float)
+    hpres = np.zeros(ncase) if held_pressure is None else np.asarray(held_pressure, dtype=float)
+    Nh = np.einsum("cij,scj->sci", Tinv, Rh[..., 0:3])
+    Mh = np.einsum("cij,scj->sci", Tinv, Rh[..., 3:6])
+    Qh = np.einsum("cij,scj->sci", Rq, Rh[..., 6:8])
     for s in np.unique(cell_sec):
         cells = np.flatnonzero(cell_sec == s)
         comp = tables.compliance[s]
         f = tables.fixed[s]
         gen_m = np.concatenate([N[:, cells], M[:, cells]], axis=-1)
         t = dT[:, cells][..., None]
-        gen_f = np.concatenate([f[0] * t + f[2] * dM[:, None, None], f[1] * t + f[3] * dM[:, None, None]], axis=-1)
+        gen_f = np.concatenate([f[0] * t + f[2] * dM[:, None, None] + Nh[:, cells],
+                                f[1] * t + f[3] * dM[:, None, None] + Mh[:, cells]], axis=-1)
         zmax = max(abs(tables.z[tables.first[s], 0]), abs(tables.z[tables.first[s] + tables.nply[s] - 1, 2]))
         em = _drop_roundoff(gen_m @ comp.T, zmax)
         ef = _drop_roundoff(gen_f @ comp.T, zmax)
@@ -93,7 +106,9 @@ def ply_states(tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray,
                 mech[:, cells, k, q, 3:5] = tau
                 mech[:, cells, k, q, 5] = -pres[:, None]
                 fixed[:, cells, k, q, :3] = (eps_f - free) @ Qm.T
-                fixed[:, cells, k, q, 3:] = 0.0
+                lam_h = Qh[:, cells] @ tables.F[row, q].T if held_shear is None else held_shear[:, cells, k, q]
+                fixed[:, cells, k, q, 3:5] = lam_h @ Rt.T
+                fixed[:, cells, k, q, 5] = -hpres[:, None]
                 strain[:, cells, k, q] = eps_m + eps_f
     return {"mech": mech, "fixed": fixed, "stress": mech[..., :3] + fixed[..., :3], "strain": strain,
-            "shear": mech[..., 3:5], "z": zout}
+            "shear": mech[..., 3:5] + fixed[..., 3:5], "z": zout}

@@ -91,7 +91,7 @@ def load_inputs(definition: str, mesh_path: str, resultants: Sequence[str],
 
 def _context(inp: CompareInputs, scale=None, tolerance: float = 1e-3) -> CompareContext:
     j = list(inp.cases)
-    return CompareContext(inp.model.tables(), inp.plan.weights[j], inp.plan.dM[j], inp.plan.pres[j],
+    return CompareContext(inp.model.tables(), inp.plan.total_weights[j], inp.plan.dM[j], inp.plan.pres[j],
                           inp.spec.quantity, len(inp.defn.zones), inp.source.reader, scale, tolerance,
                           tuple(z.name for z in inp.defn.zones))
 
@@ -146,7 +146,7 @@ def zone_data(inp: CompareInputs, cmp: Comparison, zones=None) -> list[ZoneData]
         cells = diagnosis_cells(cmp, all_cells)
         sec = m.sections[int(m.section[cells[0]])]
         n = sec.n_plies
-        R = combine_steps(inp.plan.weights[j], inp.source.read_cells(cells))
+        R = combine_steps(inp.plan.total_weights[j], inp.source.read_cells(cells))   # held cases included
         dT = np.stack([inp.plan.delta_T(m, c, c + 1)[j, 0] for c in cells], axis=1)
         ours = reference_values(build_tables([sec]), np.zeros(cells.size, np.int64), m.phi[cells], R, dT,
                                 inp.plan.dM[j], inp.plan.pres[j], inp.spec.quantity)

@@ -6,7 +6,11 @@ A case takes its resultants from one step of the resultants input, named by
 temperature change. A combination is a named linear sum of cases with factors
 (a table of numbers, never an expression); its temperature change is the same
 linear sum unless it states its own ``delta_T`` (linear theory makes both
-consistent).
+consistent). A case declared ``held = true`` (a cool-down of a restrained
+structure, whose resultants are caused by the temperature change) is never
+scaled: in a combination its resultants and pressure join the fixed part with
+the thermal stresses, and the strength ratio scales only the other cases; on
+its own it is checked under its held state (R = 0 if that fails, else inf).
 """
 
 from __future__ import annotations
@@ -23,7 +27,7 @@ from bridge.definition.units import UnitSystem
 
 KINDS = ("limit", "ultimate")
 CASE_SPEC = {"step": "int", "source": "str", "delta_T": "temperature", "temperature_field": "str",
-             "kind": "str", "pressure": "stress", "delta_M": "dimensionless", "description": "str"}
+             "kind": "str", "pressure": "stress", "delta_M": "dimensionless", "description": "str", "held": "bool"}
 COMBO_SPEC = {"factors": "any", "kind": "str", "delta_T": "temperature", "description": "str"}
 MAX_CASES = 100000
 #: Largest combination factor in magnitude (common practice: load factors are of order one; 1e6 leaves room
@@ -47,7 +51,14 @@ class Case:
     pressure : float
         Lateral pressure, taken as σ3 = −pressure through the section (core crushing).
     factors : tuple of (source case index, factor)
-        How the case's resultants are built from the input steps.
+        How the case's resultants are built from the input steps (the part scaled by the strength ratio).
+    held_factors : tuple of (source case index, factor)
+        The input steps whose resultants are held: the resultants of held cases (``held = true``, e.g. a
+        cool-down whose restraint brings its own N and M) form the fixed part with the thermal stresses.
+    held_pressure : float
+        Lateral pressure of the held part.
+    held_parts : tuple of str
+        Names of the held cases in this case (itself when it is held).
     """
 
     name: str
@@ -57,6 +68,9 @@ class Case:
     temperature_field: str | None = None
     pressure: float = 0.0
     factors: tuple[tuple[int, float], ...] = ()
+    held_factors: tuple[tuple[int, float], ...] = ()
+    held_pressure: float = 0.0
+    held_parts: tuple[str, ...] = ()
 
 
 @dataclass(frozen=True)
@@ -76,8 +90,8 @@ class Cases:
         out = list(base)
         for name, spec in self.combinations.items():
             factors: dict[int, float] = {}
-            dT = 0.0
-            dM = 0.0
+            held: dict[int, float] = {}
+            dT = dM = pressure = held_pressure = 0.0
             for case_name, f in spec["factors"].items():
                 if case_name not in by_name:
                     raise DefinitionError(f"combinations.{name}.factors: unknown case '{case_name}'"
@@ -86,13 +100,16 @@ class Cases:
                 if c.temperature_field is not None:
                     raise DefinitionError(f"combinations.{name}: case '{case_name}' uses a temperature field; "
                                           "combinations take uniform delta_T only")
-                for idx, g in c.factors:
-                    factors[idx] = factors.get(idx, 0.0) + f * g
+                for part, source in ((factors, c.factors), (held, c.held_factors)):
+                    for idx, g in source:
+                        part[idx] = part.get(idx, 0.0) + f * g
                 dT += f * c.delta_T
                 dM += f * c.delta_M
-            out.append(Case(name, spec.get("kind", "limit"), spec.get("delta_T", dT), dM, None,
-                            sum(spec["factors"][n] * by_name[n].pressure for n in spec["factors"]),
-                            tuple(sorted(factors.items()))))
+                pressure += f * c.pressure
+                held_pressure += f * c.held_pressure
+            out.append(Case(name, spec.get("kind", "limit"), spec.get("delta_T", dT), dM, None, pressure,
+                            tuple(sorted(factors.items())), tuple(sorted(held.items())), held_pressure,
+                            tuple(n for n in spec["factors"] if by_name[n].held_parts)))
         return tuple(out)
 
 
@@ -110,6 +127,9 @@ def _resolve_case(name: str, spec: Mapping[str, Any], input_names: tuple[str, ..
             raise ResultantsError(f"{where}: no case '{source}' in the resultants{suggest(source, input_names)}; "
                                   f"found: {', '.join(input_names[:20])}; set step = k or source = \"...\"")
         index = input_names.index(source)
+    if spec.get("held", False):        # nothing of it scales: its resultants and pressure are held
+        return Case(name, spec.get("kind", "limit"), spec.get("delta_T", 0.0), spec.get("delta_M", 0.0),
+                    spec.get("temperature_field"), 0.0, (), ((index, 1.0),), spec.get("pressure", 0.0), (name,))
     return Case(name, spec.get("kind", "limit"), spec.get("delta_T", 0.0), spec.get("delta_M", 0.0),
                 spec.get("temperature_field"), spec.get("pressure", 0.0), ((index, 1.0),))
 

@@ -62,6 +62,10 @@ class BlockContext:
     field_G : float64 (nrows, 3, 2, 12) or None
         Gradient-to-shear matrices of every ply row, when transverse shear comes from the resultant field
         (:mod:`bridge.recover.field_shear`).
+    held_weights : float64 (ncase, nstep) or None
+        Case ← input-step factors of the held part (held cases), None when nothing is held.
+    held_pres : float64 (ncase,) or None
+        Lateral pressure of the held part.
     """
 
     criteria: tuple[str, ...]
@@ -73,6 +77,8 @@ class BlockContext:
     store_plies: bool = False
     reader: H5Steps | None = None
     field_G: np.ndarray | None = None
+    held_weights: np.ndarray | None = None
+    held_pres: np.ndarray | None = None
 
     def compute(self, spec: "BlockSpec") -> "BlockResult":
         """The block task of a recovery run (:func:`compute_block`)."""
@@ -136,16 +142,23 @@ def compute_block(ctx: BlockContext, spec: BlockSpec) -> BlockResult:
                                                                       CellAxes(spec.phi))
     with np.errstate(over="ignore", invalid="ignore"):  # an overflow gives inf: the cell-case is flagged
         R = combine_steps(ctx.weights, steps)
-    shear = None
+        held = None if ctx.held_weights is None else combine_steps(ctx.held_weights, steps)
+    shear = held_shear = None
     if spec.gradients is not None:
         from postproc.gradients import field_shear
 
         t = ctx.tables
-        shear = field_shear(ctx.field_G, t.F, t.first, t.nply, t.max_plies, spec.section, spec.phi,
-                            combine_steps(ctx.weights, spec.gradients), R, spec.gradient_valid)
+
+        def shear_of(weights, resultants):
+            return field_shear(ctx.field_G, t.F, t.first, t.nply, t.max_plies, spec.section, spec.phi,
+                               combine_steps(weights, spec.gradients), resultants, spec.gradient_valid)
+
+        shear = shear_of(ctx.weights, R)
+        if held is not None:
+            held_shear = shear_of(ctx.held_weights, held)
     env, cells, plies = recover_cells(tuple(by_name(n) for n in ctx.criteria), ctx.tables, spec.section,
                                       spec.phi, R, spec.dT, ctx.dM, ctx.pres, ctx.fos, ctx.store_plies,
-                                      shear=shear)
+                                      shear=shear, held=held, held_pressure=ctx.held_pres, held_shear=held_shear)
     return BlockResult(spec.index, spec.start, spec.stop, env, cells, plies)
 
 

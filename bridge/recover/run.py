@@ -52,6 +52,17 @@ class CasePlan:
     dM: np.ndarray
     pres: np.ndarray
     fos: np.ndarray
+    held_weights: np.ndarray | None = None    # (ncase, nstep): steps of held cases, None when nothing is held
+    held_pres: np.ndarray | None = None
+
+    @property
+    def total_weights(self) -> np.ndarray:
+        """(ncase, nstep) factors of all the resultants of each case, scaled and held (for total stresses)."""
+        return self.weights if self.held_weights is None else self.weights + self.held_weights
+
+    def held(self, steps: np.ndarray) -> np.ndarray | None:
+        """(ncase, ncell, 8) held resultants from input steps, None when nothing is held."""
+        return None if self.held_weights is None else combine_steps(self.held_weights, steps)
 
     @property
     def names(self) -> tuple[str, ...]:
@@ -78,14 +89,19 @@ def plan_cases(defn: Definition, model: Model, step_names: tuple[str, ...]) -> C
         raise ResultantsError(f"{len(cases)} load cases, more than {MAX_CASES}; split the run into several "
                               "(select cases in [cases])", defn.source)
     W = np.zeros((len(cases), len(step_names)))
+    H = np.zeros_like(W)
     for j, c in enumerate(cases):
         for idx, f in c.factors:
             W[j, idx] += f
+        for idx, f in c.held_factors:
+            H[j, idx] += f
         if c.temperature_field is not None and c.temperature_field not in model.mesh.cell_data:
             raise ResultantsError(f"cases.{c.name}.temperature_field: the mesh has no cell array "
                                   f"'{c.temperature_field}'", defn.source)
+    held = any(c.held_factors for c in cases)
     return CasePlan(cases, W, np.array([c.delta_M for c in cases]), np.array([c.pressure for c in cases]),
-                    np.array([defn.analysis.fos(c.kind) for c in cases]))
+                    np.array([defn.analysis.fos(c.kind) for c in cases]), H if held else None,
+                    np.array([c.held_pressure for c in cases]) if held else None)
 
 
 def defaults_of(model: Model, crit) -> dict[str, dict[str, str]]:
@@ -196,7 +212,8 @@ def block_context(defn: Definition, tables, source: ResultantSource, plan: CaseP
                   store_plies: bool, field=None) -> BlockContext:
     """What every block task shares: small arrays and names, no file handles."""
     return BlockContext(tuple(defn.analysis.criteria), tables, plan.weights, plan.dM, plan.pres, plan.fos,
-                        store_plies, source.reader, None if field is None else field.G)
+                        store_plies, source.reader, None if field is None else field.G, plan.held_weights,
+                        plan.held_pres)
 
 
 def block_specs(model: Model, source: ResultantSource, plan: CasePlan, step: int,
@@ -309,6 +326,7 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
         summary["notes"] = notes
         summary["cell_order"] = cell_order(source)
         summary["defaults"] = defaults_of(model, crit)
+        summary["held"] = {c.name: list(c.held_parts) for c in plan.cases if c.held_parts}
         if progress is not None and note is not None:          # on stderr unless --quiet
             for mat, texts in summary["defaults"].items():
                 for name, text in texts.items():
@@ -345,16 +363,25 @@ def states_of_cells(ids: np.ndarray, crit, tables, model: Model, source: Resulta
 
     if ids.size == 0:
         return {"cell": ids}
-    R = combine_steps(plan.weights, source.read_cells(ids))
+    steps = source.read_cells(ids)
+    R = combine_steps(plan.weights, steps)
+    held = plan.held(steps)
     dT = np.stack([plan.delta_T(model, i, i + 1)[:, 0] for i in ids], axis=1)
-    shear = None
+    shear = held_shear = None
     if field is not None:
         g, _, valid = field.gradients(source.read_cells, ids)
-        shear = field_shear(field.G, tables.F, tables.first, tables.nply, tables.max_plies, model.section[ids],
-                            model.phi[ids], combine_steps(plan.weights, g), np.nan_to_num(R), valid)
+
+        def shear_of(weights, resultants):
+            return field_shear(field.G, tables.F, tables.first, tables.nply, tables.max_plies, model.section[ids],
+                               model.phi[ids], combine_steps(weights, g), np.nan_to_num(resultants), valid)
+
+        shear = shear_of(plan.weights, R)
+        if held is not None:
+            held_shear = shear_of(plan.held_weights, held)
     states = cell_states(crit, tables, model.section[ids], model.phi[ids], np.nan_to_num(R), dT, plan.dM,
-                         plan.pres, shear)
-    return {"cell": ids, "resultants": R, "delta_T": dT, **states,
+                         plan.pres, shear, None if held is None else np.nan_to_num(held), plan.held_pres, held_shear)
+    extra = {} if held is None else {"held_resultants": held}
+    return {"cell": ids, "resultants": R, **extra, "delta_T": dT, **states,
             "criteria": np.array([c.name for c in crit], dtype=object).astype("S")}
 
 

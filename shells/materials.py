@@ -139,6 +139,10 @@ class Orthotropic(_Layer):
     insitu: bool = False
     kind = "ply"
 
+    def __post_init__(self):
+        if isinstance(self.strain_limits, dict):      # from JSON metadata (asdict)
+            object.__setattr__(self, "strain_limits", StrainLimits(**self.strain_limits))
+
     @property
     def nu21(self) -> float:
         return self.nu12 * self.E2 / self.E1

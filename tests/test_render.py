@@ -146,7 +146,10 @@ def test_no_value_cells_are_grey_and_named_in_the_legend():
     ("critical-ply", ["ply 1", "ply 4"]),  # the summary's hot spots: zone-1 ply 1, zone-2 ply 4
     ("case", ["a", "b"]),
     ("criterion", ["hashin"]),
-    ("mode", ["hashin: matrix tension", "hashin: matrix compression"]),
+    # zone 1, Kaw's 60° lamina: Hashin's fibre-tension form (σ1/Xt)² + (τ12/S12)² = 1 first (R 16.32); matrix
+    # compression comes later since S_T from the fracture plane (0.377·Yc) makes compression raise the shear
+    # strength. Zone 2: matrix tension.
+    ("mode", ["hashin: matrix tension", "hashin: fibre tension"]),
 ])
 def test_categorical_legends_list_the_names(store, tmp_path, field, names):
     from bridge.pictures.render import render_store

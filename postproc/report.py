@@ -144,12 +144,15 @@ def _inputs(r: ReportInputs) -> str:
     for s in m.sections:
         plies = "; ".join(f"{i + 1}: {p.material} {p.angle:g}° × {p.thickness:g}" for i, p in enumerate(s.plies))
         secs.append([s.id, s.laminate, s.thickness, s.offset, plies])
-    cases = [[c.name, c.kind, c.delta_T, c.pressure, c.factor_of_safety] for c in m.cases]
+    cases = [[c.name, c.kind, c.delta_T, c.pressure, c.factor_of_safety, ", ".join(c.held) or "none"]
+             for c in m.cases]
     a = m.analysis
     settings = [["criteria", _json_cell(list(a.criteria))],
                 ["factor_of_safety", _json_cell({f.name: f.value for f in a.factor_of_safety})],
                 ["transverse_shear", a.transverse_shear], ["shear_factor", _json_cell(a.shear_factor)],
-                ["wrinkling_coefficient", _json_cell(a.wrinkling_coefficient)], ["hot_spots", _json_cell(a.hot_spots)]]
+                ["wrinkling_coefficient", _json_cell(a.wrinkling_coefficient)], ["hot_spots", _json_cell(a.hot_spots)],
+                ["knockdown", "multiplies every allowable before R is solved; margin = R / factor of safety − 1"]]
+    settings += [[f"default: {d.material}, {d.criterion}", d.note] for d in a.defaults]
     u = esc(m.units)
     return ('<section id="inputs" class="page"><h2>Inputs</h2>'
             f"<p>Units: <strong>{u}</strong> (stresses and properties in force/length² of that system, "
@@ -160,8 +163,8 @@ def _inputs(r: ReportInputs) -> str:
                      "plies, bottom (1) to top: material angle × thickness"], secs, numeric=(2, 3))
             + "<h3>Zones</h3>" + table(["zone id", "zone", "laminate"],
                                       [[i, z.name, z.laminate] for i, z in enumerate(m.zones)])
-            + "<h3>Cases</h3>" + table(["case", "kind", "ΔT", "pressure", "factor of safety"], cases,
-                                       numeric=(2, 3, 4))
+            + "<h3>Cases</h3>" + table(["case", "kind", "ΔT", "pressure", "factor of safety",
+                                        "held (fixed, not scaled)"], cases, numeric=(2, 3, 4))
             + "<h3>Criteria and factors</h3>"
             + table(["setting", "value"], settings)
             + "</section>")

@@ -136,7 +136,11 @@ class ZoneInfo:
 
 @dataclass(frozen=True)
 class CaseInfo:
-    """A case of the run; ``steps`` builds it from the input steps, ``combination`` is the sum as written."""
+    """A case of the run; ``steps`` builds it from the input steps, ``combination`` is the sum as written.
+
+    ``held`` names the held cases in it (``held = true``: their resultants are part of the fixed state, not
+    scaled by the strength ratio) and ``held_steps`` builds that held part from the input steps.
+    """
 
     name: str
     kind: str = "limit"
@@ -147,6 +151,17 @@ class CaseInfo:
     temperature_field: str | None = None
     steps: tuple[Named, ...] = ()
     combination: tuple[Named, ...] = ()
+    held: tuple[str, ...] = ()
+    held_steps: tuple[Named, ...] = ()
+
+
+@dataclass(frozen=True)
+class DefaultUsed:
+    """A default a chosen criterion relied on for a material (a derived strain limit, Puck's inclinations, ...)."""
+
+    material: str
+    criterion: str
+    note: str
 
 
 @dataclass(frozen=True)
@@ -158,6 +173,7 @@ class AnalysisInfo:
     wrinkling_coefficient: float
     hot_spots: int
     check_ranges: bool = True
+    defaults: tuple[DefaultUsed, ...] = ()
 
 
 @dataclass(frozen=True)

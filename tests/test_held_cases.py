@@ -140,10 +140,15 @@ def test_held_case_through_recover(tmp_path, write_definition):
     assert summary["held"] == {"cooldown": ["cooldown"], "operating": ["cooldown"]}
     with h5py.File(out) as h5:
         cm = h5["cells/case_margin"][0]
-        meta = json.loads(h5.attrs["cases_detail"])
+    from bridge.results.store import StoreReader
+
+    with StoreReader(out) as st:
+        meta = st.run
     # cooldown alone: nothing scales and the held state is safe (vm(σ_c) < Y): R = inf; pressure alone: σ_p only;
     # operating (limit, FoS 1.5): R from the held cool-down plus scaled pressure.
     assert np.isinf(cm[0])
     np.testing.assert_allclose(cm[1], _von_mises_ratio(np.zeros(3), s_p, Y_AL) / 1.5 - 1, rtol=1e-9)
     np.testing.assert_allclose(cm[2], _von_mises_ratio(s_c, s_p, Y_AL) / 1.5 - 1, rtol=1e-9)
-    assert [c["held"] for c in meta] == [["cooldown"], [], ["cooldown"]]
+    assert [c.held for c in meta.cases] == [("cooldown",), (), ("cooldown",)]
+    assert [tuple((n.name, n.value) for n in c.held_steps) for c in meta.cases] == [
+        (("cool", 1.0),), (), (("cool", 1.0),)]

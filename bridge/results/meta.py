@@ -11,8 +11,8 @@ from typing import Mapping, Sequence
 
 import numpy as np
 
-from postproc.run_meta import (AnalysisInfo, CaseInfo, CriterionInfo, InputFile, MaterialInfo, Named, PlyInfo,
-                               Property, Provenance, RunMeta, RunSummary, SectionInfo, ZoneInfo)
+from postproc.run_meta import (AnalysisInfo, CaseInfo, CriterionInfo, DefaultUsed, InputFile, MaterialInfo, Named,
+                               PlyInfo, Property, Provenance, RunMeta, RunSummary, SectionInfo, ZoneInfo)
 from shells.criteria import CRITERIA
 from shells.defaults import CAUTION
 
@@ -73,7 +73,8 @@ def case_infos(defn, plan, step_names: Sequence[str]) -> tuple[CaseInfo, ...]:
         combination = tuple(Named(n, float(f)) for n, f in spec["factors"].items()) if spec else ()
         out.append(CaseInfo(c.name, c.kind, float(c.delta_T), float(c.delta_M), float(c.pressure), float(fos),
                             c.temperature_field, tuple(Named(step_names[k], float(f)) for k, f in c.factors),
-                            combination))
+                            combination, tuple(c.held_parts),
+                            tuple(Named(step_names[k], float(f)) for k, f in c.held_factors)))
     return tuple(out)
 
 
@@ -109,7 +110,9 @@ def run_meta(defn, model, plan, step_names: Sequence[str], summary: Mapping, sto
         provenance=Provenance(provenance["tool"], provenance["tool_version"], provenance["created"], inputs),
         analysis=AnalysisInfo(tuple(a.criteria), tuple(Named(k, float(v)) for k, v in a.factor_of_safety),
                               a.transverse_shear, float(a.shear_factor), float(a.wrinkling_coefficient),
-                              int(a.hot_spots), bool(a.check_ranges)),
+                              int(a.hot_spots), bool(a.check_ranges),
+                              tuple(DefaultUsed(m, c, text) for m, notes in summary.get("defaults", {}).items()
+                                    for c, text in notes.items())),
         materials=tuple(material_info(m) for m in defn.materials.values()),
         sections=tuple(section_info(i, n, s) for i, (n, s) in enumerate(zip(model.section_names, model.sections))),
         zones=tuple(ZoneInfo(z.name, z.laminate, section_of_zone[k], int(counts[k])) for k, z in enumerate(defn.zones)),

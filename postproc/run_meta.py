@@ -157,7 +157,14 @@ class CaseInfo:
 
 @dataclass(frozen=True)
 class DefaultUsed:
-    """A default a chosen criterion relied on for a material (a derived strain limit, Puck's inclinations, ...)."""
+    """A default a chosen criterion relied on for a material.
+
+    Attributes
+    ----------
+    material, criterion : str
+    note : str
+        What was taken and from where (a derived strain limit, Puck's inclinations, Hashin's S_T, ...).
+    """
 
     material: str
     criterion: str

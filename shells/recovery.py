@@ -49,6 +49,20 @@ def drop_roundoff(e, zmax):
             e[a + 3] = 0.0
 
 
+@njit(cache=True, inline="always")
+def transverse_shear(use_field, field, j, i, k, q, F, row, qx, qy, ct, st, out):
+    """(τ13, τ23) into ``out[3]``, ``out[4]``: from the field when ``use_field``, else F·(Qx, Qy) (laminate axes),
+    rotated into the ply's material axes."""
+    if use_field:
+        txz = field[j, i, k, q, 0]
+        tyz = field[j, i, k, q, 1]
+    else:
+        txz = F[row, q, 0, 0] * qx + F[row, q, 0, 1] * qy
+        tyz = F[row, q, 1, 0] * qx + F[row, q, 1, 1] * qy
+    out[3] = ct * txz + st * tyz
+    out[4] = -st * txz + ct * tyz
+
+
 @njit(cache=True)
 def face_mean_stress(em, ef, row0, n, z, Q, cs, alpha, beta, t, h, sm, sf):
     """Mean in-plane stress of a sandwich face, mechanical ``sm`` and fixed ``sf`` (written in place).
@@ -225,27 +239,13 @@ def recover_block(sel, sec, blk, env, out):
                     sm[0] = q11 * e1m + q12 * e2m
                     sm[1] = q12 * e1m + q22 * e2m
                     sm[2] = q66 * g12m
-                    if field:
-                        txz = field_shear[j, i, k, q, 0]
-                        tyz = field_shear[j, i, k, q, 1]
-                    else:
-                        txz = F[row, q, 0, 0] * qx + F[row, q, 0, 1] * qy
-                        tyz = F[row, q, 1, 0] * qx + F[row, q, 1, 1] * qy
-                    sm[3] = ct * txz + st * tyz
-                    sm[4] = -st * txz + ct * tyz
+                    transverse_shear(field, field_shear, j, i, k, q, F, row, qx, qy, ct, st, sm)
                     sm[5] = -pres
                     sf[0] = q11 * (e1f - fx) + q12 * (e2f - fy)
                     sf[1] = q12 * (e1f - fx) + q22 * (e2f - fy)
                     sf[2] = q66 * g12f
                     if held:
-                        if held_field:
-                            txh = held_shear[j, i, k, q, 0]
-                            tyh = held_shear[j, i, k, q, 1]
-                        else:
-                            txh = F[row, q, 0, 0] * qxh + F[row, q, 0, 1] * qyh
-                            tyh = F[row, q, 1, 0] * qxh + F[row, q, 1, 1] * qyh
-                        sf[3] = ct * txh + st * tyh
-                        sf[4] = -st * txh + ct * tyh
+                        transverse_shear(held_field, held_shear, j, i, k, q, F, row, qxh, qyh, ct, st, sf)
                     else:
                         sf[3] = 0.0
                         sf[4] = 0.0

@@ -62,8 +62,8 @@ def _error(text: str) -> str:
     ("N-mm", "density", "1600", ("1600 read as 1600 t/mm³", "\"1600 kg/m^3\"")),
     ("N-mm", "alpha2", "22.5", ("alpha2", "22.5e-6 /degC")),
     ("N-mm", "nu12", "28", ("nu12 = 28", "percentage", "0.28")),
-    ("N-mm", "e1t", "12000", ("e1t", "microstrain", "0.012")),
-    ("N-mm", "e1t", "1.2", ("e1t", "percentage", "0.012")),
+    ("N-mm", "strain_limits", "{ fibre_tension = 12000 }", ("strain_limits.fibre_tension", "microstrain", "0.012")),
+    ("N-mm", "strain_limits", "{ fibre_tension = 1.2 }", ("strain_limits.fibre_tension", "percentage", "0.012")),
 ])
 def test_slips_are_named(units, key, value, needles):
     message = _error(_definition(units, **{key: value}))
@@ -199,7 +199,9 @@ def test_values_inside_pass_and_outside_are_refused(kind_key, system_name, sprea
     if abs(spread - 0) < 1e-9 or abs(spread - 1) < 1e-9 or si == 0:
         return
     table = {"kind": kind, **{k: v / si_factor("stress", units) for k, v in _REQUIRED[kind].items()}}
-    table[key] = si / si_factor(r.kind, units)
+    value = si / si_factor(r.kind, units)
+    outer, _, inner = key.partition(".")          # a key of a sub-table: strain_limits.fibre_tension
+    table[outer] = {inner: value} if inner else value
     try:
         parse_material("m", table, units)
         refused = None

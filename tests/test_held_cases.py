@@ -152,3 +152,27 @@ def test_held_case_through_recover(tmp_path, write_definition):
     assert [c.held for c in meta.cases] == [("cooldown",), (), ("cooldown",)]
     assert [tuple((n.name, n.value) for n in c.held_steps) for c in meta.cases] == [
         (("cool", 1.0),), (), (("cool", 1.0),)]
+
+
+def test_held_part_with_a_transverse_shear_field():
+    # With transverse shear given as a field, the held part needs its own field: refused without it; with the
+    # fields equal to F·(Qx, Qy) of each part (laminate axes, φ = 0) the result equals the Q-only path.
+    from shells.errors import ResultantsError
+
+    tables = build_tables([build_section(_laminate())])
+    load = np.array([100.0, 50.0, 0.0, 5.0, -3.0, 0.0, 12.0, -4.0])
+    held = np.array([30.0, 0.0, 10.0, -2.0, 1.0, 0.5, 6.0, 3.0])
+    one = dict(cell_sec=np.zeros(1, np.int64), phi_deg=np.zeros(1), dT=np.array([[DT]]), dM=np.zeros(1),
+               pres=np.zeros(1), fos=np.ones(1))
+    vm = (by_name("von-mises"),)
+
+    def field(r):
+        return np.einsum("kqab,b->kqa", tables.F, r[6:])[None, None]
+
+    base, _, p0 = recover_cells(vm, tables, R=load[None, None], held=held[None, None], store_plies=True, **one)
+    with pytest.raises(ResultantsError, match="held cases"):
+        recover_cells(vm, tables, R=load[None, None], held=held[None, None], shear=field(load), **one)
+    env, _, p1 = recover_cells(vm, tables, R=load[None, None], held=held[None, None], shear=field(load),
+                               held_shear=field(held), store_plies=True, **one)
+    np.testing.assert_allclose(p1["transverse_shear"], p0["transverse_shear"], rtol=1e-12, atol=1e-12)
+    np.testing.assert_allclose(env["strength_ratio"], base["strength_ratio"], rtol=1e-12)

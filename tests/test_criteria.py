@@ -284,13 +284,13 @@ def test_by_name_suggests():
 
 
 def test_check_requirements_messages():
-    no_yc = Orthotropic(name="T300", E1=E1, E2=E2, G12=G12, nu12=NU12, Xt=XT, Xc=XC, Yt=YT, S12=S).params()
+    no_yc = Orthotropic(name="cf-kaw", E1=E1, E2=E2, G12=G12, nu12=NU12, Xt=XT, Xc=XC, Yt=YT, S12=S).params()
     with pytest.raises(MaterialError) as err:
-        check_requirements(["max-stress", "tsai-wu"], {"T300": no_yc})
-    assert str(err.value) == ("material 'T300' lacks Yc needed by criterion 'max-stress'; "
-                              "add Yc to [materials.T300]")
+        check_requirements(["max-stress", "tsai-wu"], {"cf-kaw": no_yc})
+    assert str(err.value) == ("material 'cf-kaw' lacks Yc needed by criterion 'max-stress'; "
+                              "add Yc to [materials.cf-kaw]")
     with pytest.raises(MaterialError, match="lacks S13 or ilss needed by criterion 'interlaminar'"):
-        check_requirements(["interlaminar"], {"T300": no_yc})
+        check_requirements(["interlaminar"], {"cf-kaw": no_yc})
     bare_core = Core(name="hc", G13=40.0, G23=20.0).params()
     with pytest.raises(MaterialError, match=r"add S13 to \[materials.hc\]"):
         check_requirements(["core-shear"], {"hc": bare_core})

@@ -70,7 +70,7 @@ TAG_ARRAY = "panel"
 
 _MATERIALS = '''
 # ---------------------------------------------------------------- materials
-[materials.cf-ud]            # graphite/epoxy (T300/5208) of Kaw, Mechanics of Composite Materials (2006), Table 2.1
+[materials.cf-ud]            # graphite/epoxy of Kaw, Mechanics of Composite Materials (2006), Table 2.1
 kind = "ply"
 fibre = "carbon"
 E1 = "181 GPa"

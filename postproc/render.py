@@ -27,6 +27,8 @@ from .legend import ColourBar, Legend, text_width
 VIEWS = (*cameras.NAMED, "worst")
 #: Cell edges are drawn when a typical cell is at least this many pixels across on screen.
 EDGE_PIXELS = 9.0
+#: A cell whose normal makes less than this cosine with the view direction is edge-on: not visible.
+EDGE_ON = 0.1
 #: A view whose model covers less than this fraction of it is refused as empty (edge-on).
 EMPTY = 0.01
 #: Width / height of the viewport of a close-up (at most) and of an explicit camera.
@@ -158,18 +160,20 @@ def _pixels_per_unit(cam: cameras.Camera, height: int) -> float:
     return height / (2.0 * dist * np.tan(np.radians(15.0)))
 
 
-def _visible(depth: np.ndarray, pixel: np.ndarray, point: np.ndarray, cam: cameras.Camera, tol: float) -> bool:
-    """Whether the surface seen at ``pixel`` is at the depth of ``point`` (nothing in front of it)."""
-    if pixel[0] < 0:
+def _visible(depth: np.ndarray, pixel: np.ndarray, point: np.ndarray, normal: np.ndarray, cam: cameras.Camera,
+             tol: float) -> bool:
+    """Whether the cell at ``point`` faces the camera (not edge-on) and the surface seen at ``pixel`` is at its
+    depth (nothing in front of it)."""
+    if pixel[0] < 0 or abs(float(np.dot(normal, cam.direction))) < EDGE_ON:
         return False
     distance = float((np.asarray(point) - np.asarray(cam.position)) @ cam.direction)
     return bool(abs(depth[pixel[0], pixel[1]] - distance) <= tol)
 
 
-def _mark(cell: int, label: str | None, pixel, centre, mask, depth, cam, box: Box, font: float) -> Mark:
+def _mark(cell: int, label: str | None, pixel, centre, normal, mask, depth, cam, box: Box, font: float) -> Mark:
     """The mark of the worst cell in one view: visible or not, and where its label can go."""
     label = label or f"cell {cell}"
-    seen = _visible(depth, pixel, centre, cam, 2.5 / _pixels_per_unit(cam, box.height))
+    seen = _visible(depth, pixel, centre, normal, cam, 2.5 / _pixels_per_unit(cam, box.height))
     size = (int(1.9 * font), int(text_width(label, font) + 1.2 * font))
     return Mark(tuple(int(v) for v in pixel), seen, label, free_spot(mask, tuple(pixel), size, font) if seen else None)
 
@@ -217,7 +221,8 @@ def draw_field(points: np.ndarray, blocks: Sequence[tuple[str, np.ndarray]], val
             caption = f"camera {sum(1 for n, _, _ in oriented[:k + 1] if n == 'camera')}"
         m = None
         if mark is not None:
-            m = _mark(mark, mark_label, pixels[mark], geo.centres[mark], mask, depth, cam, box, p.font)
+            m = _mark(mark, mark_label, pixels[mark], geo.centres[mark], geo.normals[mark], mask, depth, cam, box,
+                      p.font)
             caption += "" if m.visible and m.spot else (f" — ringed: worst, {m.label}" if m.visible else
                                                          f" — worst cell {mark} is hidden in this view")
         marks.append(m)

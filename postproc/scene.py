@@ -106,6 +106,7 @@ class ViewRenderer:
         else:
             pl.renderer.ResetCameraClippingRange()
         pl.camera_set = True
+        pl.render()          # the plotter keeps the last frame otherwise: draw this camera's before reading
         image = np.asarray(pl.screenshot(return_img=True))[..., :3].copy()
         depth = -np.asarray(pl.get_image_depth(fill_value=np.nan, reset_camera_clipping_range=False), dtype=float)
         m = c.GetCompositeProjectionTransformMatrix(width / height, -1, 1)

@@ -1,7 +1,7 @@
 """Map pictures of a slender, dense model checked on their pixels: the spar-box scenario (tests/sparbox.py).
 
-Check values are properties of the pictures themselves (the issue's layout rules): the model's pixels come from
-the views' depth buffers, independent of everything drawn over them.
+Check values are properties of the pictures themselves (the layout rules of docs/pictures.md): the model's pixels
+come from the views' depth buffers, independent of everything drawn over them.
 """
 
 from __future__ import annotations
@@ -85,11 +85,17 @@ def test_the_worst_cell_is_ringed_where_visible_and_noted_where_hidden(spar):
     """The spar's worst cell is on the bottom cap: hidden from iso, visible from below."""
     from postproc.colors import MARK, hex_to_rgb
 
-    f, pic = _draw(spar, views=("iso", "bottom"))
-    iso, bottom = pic.views
-    assert iso.mark_visible is False and bottom.mark_visible is True
+    from postproc.colors import cell_rgb
+
+    f, pic = _draw(spar, views=("bottom", "iso", "front"))
+    bottom, iso, front = pic.views
+    assert bottom.mark_visible is True and iso.mark_visible is False and front.mark_visible is False  # edge-on
     ring = np.all(np.abs(pic.image.astype(int) - 255 * hex_to_rgb(MARK)) < 40, axis=2)
-    assert not ring[iso.box.slices].any() and ring[bottom.box.slices].any()
+    assert ring[bottom.box.slices].any() and not ring[iso.box.slices].any() and not ring[front.box.slices].any()
+    # The bottom view shows that cell, in its own colour (seen square-on under the headlight).
+    row, col = pic.cell_pixels[f.mark]
+    want = cell_rgb("diverging", f.values[[f.mark]], pic.limits)[0]
+    np.testing.assert_allclose(pic.image[row, col], want, atol=12)
 
 
 def test_a_long_categorical_legend_names_angle_material_and_zone(spar):

@@ -22,7 +22,7 @@ from bridge.results.store import StoreReader
 #: Maps in the report, one per row: (field, views, caption).
 REPORT_MAPS = (("margin", ("iso", "worst"), "Margin of safety: the envelope of cases at each cell's critical ply"),
                ("critical-ply", ("iso", "worst"), "Critical ply (the ply with the lowest margin), by laminate"),
-               ("mode", ("iso",), "Governing criterion and failure mode"))
+               ("mode", ("iso", "worst"), "Governing criterion and failure mode"))
 POINTS = ("bottom", "middle", "top")
 #: Largest comparison summary read (bytes of JSON).
 MAX_SUMMARY = 64 * 2 ** 20

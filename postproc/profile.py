@@ -27,6 +27,8 @@ THICK = 12
 
 @dataclass(frozen=True)
 class PlyLabel:
+    """What a ply's label says: angle (degrees), material, its kind (``core`` plies get a band) and thickness."""
+
     angle: float
     material: str
     kind: str

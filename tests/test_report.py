@@ -196,3 +196,28 @@ def test_report_prints_to_pdf(plate_report, tmp_path):
     proc = run_cli("report", store, "-o", out, "--pdf", pdf)
     assert proc.returncode == 0, proc.stderr
     assert pdf.read_bytes()[:5] == b"%PDF-" and f"pdf\t{pdf}\n" in proc.stdout
+
+
+def test_units_follow_the_unit_system(tmp_path):
+    """In lbf-in every quantity is labelled psi, in or °F (the run's unit labels), none with a generic unit."""
+    import numpy as np
+
+    from bridge.mesh.formats import write_mesh
+    from bridge.pictures.report import report_inputs
+    from bridge.recover.resultants import write_resultants_h5
+    from bridge.results.store import StoreReader
+    from postproc.report import build_report
+    from tests.meshes import flat_plate
+    from tests.test_render import DEFINITION, RESULTANTS
+
+    (tmp_path / "def.toml").write_text(DEFINITION.replace('units = "N-mm"', 'units = "lbf-in"'), encoding="utf-8")
+    write_mesh(tmp_path / "plate.vtu", flat_plate(), {"block": np.repeat(np.array([0, 1], dtype=np.int32), 6)})
+    write_resultants_h5(tmp_path / "res.h5", ["a", "b"], np.repeat(RESULTANTS[:, None, :], 12, axis=1))
+    proc = run_cli("recover", tmp_path / "def.toml", tmp_path / "plate.vtu", tmp_path / "res.h5", "-o",
+                   tmp_path / "s.h5", "--quiet")
+    assert proc.returncode == 0, proc.stderr
+    with StoreReader(tmp_path / "s.h5") as st:
+        text = re.sub(r"base64,[^\"]*", "", build_report(report_inputs(st, verification=False)))
+    for label in ("ΔT [°F]", "pressure [psi]", "thickness [in]", "x [in]", "<td>psi</td>", "<td>1/°F</td>"):
+        assert label in text, label
+    assert "length]" not in text and "[N-mm" not in text and "cte" not in text

@@ -23,6 +23,8 @@ from .legend import CHAR, LINE, ColourBar, Legend, flow, text_width
 DEFAULT_WIDTH = 1600
 #: Views whose block is wider than this (width / height) put the colour bar and legend in a bottom band.
 WIDE = 2.4
+#: A bottom-band legend of at most this many lines goes beside the colour bar instead of under it.
+SHORT = 3
 #: Picture aspect aimed at when the views are arranged and no size is given.
 TARGET_ASPECT = 16 / 9
 
@@ -87,7 +89,8 @@ def plan(aspects: Sequence[float], size: tuple[int, int] | None, legend: Legend 
     band_h = 0
     if placement == "bottom":
         band_rows = -(-len(lines) // band_cols) + (1 if band_cols > 1 else 0)   # room for a "continued" heading
-        band_h = int((4.8 * font if bar else 0) + (band_rows * LINE * font if lines else 0) + gap)
+        beside = bar and 0 < len(lines) <= SHORT                                  # a short legend beside the bar
+        band_h = int((4.8 * font if bar else 0) + (band_rows * LINE * font if lines and not beside else 0) + gap)
     # Each row as high as its tallest view needs at the column width.
     want = [vw / float(np.clip(min(aspects[r * cols:(r + 1) * cols]), 0.5, 12.0)) for r in range(rows)]
     fixed = title_h + rows * cap_h + (rows - 1) * gap + band_h + gap
@@ -128,12 +131,16 @@ def plan(aspects: Sequence[float], size: tuple[int, int] | None, legend: Legend 
             legend_cols, _ = flow(len(lines), int(legend_box.height // (LINE * font)))
     elif placement == "bottom":
         top = title_h + block_h + gap // 2
-        if bar:
-            bar_box = Box(top, gap + W // 5, int(4.8 * font), int(0.6 * W) - gap)
-            top += int(4.8 * font)
-        if lines:
-            legend_box = Box(top, gap, H - top - gap // 2, W - 2 * gap)
-            legend_cols = band_cols
+        if bar and beside:
+            bar_box = Box(top, int(3 * font), int(4.8 * font), int(0.55 * W - 3 * font))   # room for the end label
+            legend_box = Box(top + int(0.6 * font), int(0.6 * W), int(4.2 * font), int(0.4 * W) - gap)
+        else:
+            if bar:
+                bar_box = Box(top, gap + W // 5, int(4.8 * font), int(0.6 * W) - gap)
+                top += int(4.8 * font)
+            if lines:
+                legend_box = Box(top, gap, H - top - gap // 2, W - 2 * gap)
+                legend_cols = band_cols
     return Plan((W, H), font, Box(0, 0, title_h, W), tuple(views), tuple(captions), bar_box, legend_box,
                 legend_cols, placement)
 

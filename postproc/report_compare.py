@@ -9,13 +9,14 @@ from __future__ import annotations
 
 from typing import Any, Mapping
 
+from .numbers import sig
 from .report_html import Cell, esc, num, table
 
 #: Rows of the per-ply table shown (the largest differences first).
 MAX_PLY_ROWS = 30
 #: Keys rendered in their own tables; anything else goes to the generic part.
 KNOWN = {"verdict", "quantity", "tolerance", "max_discrepancy", "fraction_cells_within", "compared_values", "note",
-         "zones", "plies", "worst_cells", "diagnosis", "cases", "units", "title"}
+         "zones", "plies", "worst_cells", "diagnosis", "cases", "units", "title", "coverage", "skipped_cases"}
 
 
 def _number(value: Any) -> float | None:
@@ -67,9 +68,12 @@ def comparison_section(summary: Mapping | None, source: str = "") -> str:
                ["values compared", num(_number(s.get("compared_values")))]]
     scalars = [[k, num(v) if _number(v) is not None else str(v)] for k, v in s.items()
                if k not in KNOWN and not isinstance(v, (Mapping, list)) and v is not None]
+    if isinstance(s.get("skipped_cases"), list) and s["skipped_cases"]:
+        figures.append(["combinations not compared (no solver values)", ", ".join(map(str, s["skipped_cases"]))])
     parts = [head, table(["figure", "value"], figures + scalars)]
     if s.get("note"):
         parts.append(f'<p class="note">{esc(s["note"])}</p>')
+    parts.append(_coverage(s.get("coverage")))
     parts += [_generic(k, v) for k, v in s.items() if k not in KNOWN and isinstance(v, (Mapping, list))]
     zones = s.get("zones") if isinstance(s.get("zones"), Mapping) else {}
     rows = [[z, num(_number(v.get("cells"))), num(_number(v.get("max_discrepancy"))), _percent(v.get("within"))]
@@ -90,6 +94,21 @@ def comparison_section(summary: Mapping | None, source: str = "") -> str:
     return "".join(parts) + "</section>"
 
 
+def _coverage(cov: Any) -> str:
+    """What was checked: ply points compared over all (``coverage`` of docs/compare.md), per zone."""
+    if not isinstance(cov, Mapping):
+        return ""
+    zones = cov.get("zones") if isinstance(cov.get("zones"), Mapping) else {}
+    rows = [[z, num(_number(v.get("checked"))), num(_number(v.get("total"))),
+             ", ".join(map(str, v.get("plies_checked", []))) if isinstance(v.get("plies_checked"), list) else "",
+             str(v.get("text", ""))] for z, v in zones.items() if isinstance(v, Mapping)]
+    head = (f"<h3>Coverage</h3><p>{esc(cov.get('text', ''))}"
+            + (f" ({esc(sig(100 * _number(cov.get('fraction'))))} %)" if _number(cov.get("fraction")) is not None
+               else "") + ".</p>")
+    return head + (table(["zone", "ply points checked", "ply points", "plies checked", "summary"], rows) if rows
+                   else "")
+
+
 def _diagnosis(diag: list[Mapping]) -> str:
     if not diag:
         return ""
@@ -106,4 +125,9 @@ def _diagnosis(diag: list[Mapping]) -> str:
             best = d.get("best") if isinstance(d.get("best"), Mapping) else None
             hint = f" The closest: {best.get('explanation', '')}." if best else ""
             out.append(f"<p>No single convention error explains this zone.{esc(hint)}</p>")
+            candidates = _dicts(d.get("candidates"))
+            if candidates:
+                out.append(table(["partial candidate", "the error", "the fix", "residual [-]"],
+                                 [[h.get("name", ""), h.get("explanation", ""), h.get("fix", ""),
+                                   num(_number(h.get("residual")))] for h in candidates]))
     return "".join(out)

@@ -60,8 +60,9 @@ def hostile_summary() -> dict:
                              "component": evil}],
             "diagnosis": [{"zone": evil, "explained": [{"name": evil, "explanation": evil, "fix": evil,
                                                          "residual": 0.0, "removed": 1.0}]}],
-            "coverage": {"cells_compared": 12, "cells_without_solver_values": 0, evil: evil},
-            "uncovered": [{"zone": evil, "cells": 2}]}
+            "coverage": {"checked": 16, "total": 24, "fraction": 2 / 3, "text": "16 of 24 ply points checked",
+                         "zones": {evil: {"checked": 2, "total": 24, "plies_checked": [1, 8], "text": evil}}},
+            "skipped_cases": [evil], "uncovered_later_key": [{"zone": evil, "cells": 2}]}
 
 
 @pytest.fixture(scope="module")
@@ -109,7 +110,8 @@ def test_no_injected_element_or_script_in_the_browser(plate_report, tmp_path):
     """The payloads of the comparison file are text in the DOM: no element from them, no script run."""
     _, out, _ = plate_report
     dom = dump_dom(out, tmp_path / "profile")
-    assert "Comparison with the solver" in dom and "cells_without_solver_values" in dom
+    assert "Comparison with the solver" in dom and "16 of 24 ply points checked" in dom
+    assert "uncovered_later_key" in dom                     # a key this version does not know, shown generically
     assert "RAN" not in re.search(r"<title>(.*?)</title>", dom, re.S).group(1)
     for tag in ("<svg", "<img src=\"x\"", "<iframe", "<a href=\"&", "<a href=\"javascript", "<script"):
         assert tag not in dom.lower(), tag              # escaped, a payload reads "&lt;svg…": text, no element

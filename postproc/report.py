@@ -132,6 +132,8 @@ def _summary(r: ReportInputs) -> str:
     if s.flagged_cells:
         parts.append(f'<p class="note">Flagged cells include {esc(", ".join(map(str, s.flagged_examples[:10])))}.'
                      "</p>")
+    if s.notes:
+        parts.append("<h3>Notes about the mesh</h3><ul>" + "".join(f"<li>{esc(x)}</li>" for x in s.notes) + "</ul>")
     parts.append(_minima(r))
     return "".join(parts) + "</section>"
 

@@ -38,6 +38,9 @@ def run_assign(definition: str, mesh: str, output: str) -> dict:
         write_mesh(output, m, fields)
     for note in (*m.notes, *mesh_notes(m)):
         click.echo(f"note: {printable(note)}", err=True)
+    counts = ", ".join(f"{k}: {v}" for k, v in describe(model).items())
+    click.echo(printable(f"assigned {model.n_cells} cells ({counts}); wrote {output} and {sections_path(output)}"),
+               err=True)
     return {"output": output, "sections_table": str(sections_path(output)), "cells": model.n_cells,
             "sections": len(model.sections), "zone": [[name, count] for name, count in describe(model).items()]}
 

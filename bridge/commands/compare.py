@@ -41,7 +41,7 @@ def compare(definition, mesh, resultants, solver_plies, output, tolerance, view,
 
     guard_outputs({"definition": definition, "mesh": mesh, "resultants": [resultants, *more],
                    "solver ply values": list(solver_plies)},
-                  {"-o": output, "--view": view, "--map": map_png, "--fragment": fragment})
+                  {"-o": output, "--view": view, "--map": map_png})
     printers = {}
 
     def progress(stage: str, done: int, total: int) -> None:

@@ -62,9 +62,8 @@ def parse_size(text: str | None) -> tuple[int, int] | None:
 @click.option("--json", "as_json", is_flag=True, help="Print the summary as one JSON object.")
 def render(results, output, field, ply, case, views, cameras, size, cell_data, as_json) -> None:
     os.environ.setdefault("VTK_DEFAULT_OPENGL_WINDOW", "vtkEGLRenderWindow")
-    from bridge.pictures.render import render_store
-
     from bridge.guards import guard_outputs
+    from bridge.pictures.render import render_store
 
     chosen = list(views) + [parse_camera(c) for c in cameras]
     if cell_data and not cell_data.lower().endswith(".vtu"):

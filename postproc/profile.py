@@ -16,6 +16,7 @@ import numpy as np
 from . import colors
 from .numbers import degrees, short, sig
 from .plots import new_figure, plain
+from .run_meta import PlyInfo
 
 #: Panels: (title, component indices into (σ1, σ2, τ12, τ13, τ23), symbols).
 PANELS = (("fibre direction", (0,), ("σ1",)), ("transverse and in-plane shear", (1, 2), ("σ2", "τ12")),
@@ -23,16 +24,6 @@ PANELS = (("fibre direction", (0,), ("σ1",)), ("transverse and in-plane shear",
 MARKERS = "os^DvPX"
 #: Stacks with more plies than this, or with a core, default to the ply-index axis.
 THICK = 12
-
-
-@dataclass(frozen=True)
-class PlyLabel:
-    """What a ply's label says: angle (degrees), material, its kind (``core`` plies get a band) and thickness."""
-
-    angle: float
-    material: str
-    kind: str
-    thickness: float
 
 
 @dataclass(frozen=True)
@@ -49,25 +40,30 @@ class Profile:
         1/R of each criterion at those points.
     interfaces : ndarray (nply + 1,)
         Ply interfaces, bottom to top.
-    plies : sequence of PlyLabel
+    plies : sequence of PlyInfo
+        Material, angle (degrees) and thickness of every ply, bottom to top.
+    kinds : sequence of str
+        Material kind of every ply (``core`` plies are shaded as one band).
     """
 
     z: np.ndarray
     stress: np.ndarray
     failure_index: Mapping[str, np.ndarray]
     interfaces: np.ndarray
-    plies: Sequence[PlyLabel]
+    plies: Sequence[PlyInfo]
+    kinds: Sequence[str]
 
     @property
     def has_core(self) -> bool:
-        return any(p.kind == "core" for p in self.plies)
+        return "core" in self.kinds
 
     def default_axis(self) -> str:
         return "index" if self.has_core or len(self.plies) > THICK else "z"
 
     def labels(self, length_unit: str) -> list[str]:
-        return [f"ply {k}: core {p.material}, {sig(p.thickness)} {length_unit}" if p.kind == "core"
-                else f"ply {k}: {degrees(p.angle)} {p.material}" for k, p in enumerate(self.plies, start=1)]
+        return [f"ply {k}: core {p.material}, {sig(p.thickness)} {length_unit}" if kind == "core"
+                else f"ply {k}: {degrees(p.angle)} {p.material}"
+                for k, (p, kind) in enumerate(zip(self.plies, self.kinds), start=1)]
 
 
 def _y(profile: Profile, axis: str) -> tuple[np.ndarray, np.ndarray]:
@@ -149,8 +145,8 @@ def profile_figure(profile: Profile, *, title: str, stress_unit: str, length_uni
     ax.legend(fontsize=8, loc="upper center", bbox_to_anchor=(0.5, below), ncols=2, frameon=False)
     for a in axes:
         a.hlines(bounds, 0, 1, transform=a.get_yaxis_transform(), color=colors.EDGE, lw=0.5, ls=":")
-        for k, p in enumerate(profile.plies):
-            if p.kind == "core":
+        for k, kind in enumerate(profile.kinds):
+            if kind == "core":
                 a.axhspan(bounds[k], bounds[k + 1], color="#e6e3dc", zorder=0)
     _ply_labels(fig, axes[-1], profile, axis, bounds, length_unit)
     if axis == "index":

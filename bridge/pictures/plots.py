@@ -63,15 +63,15 @@ def profile_of(st: StoreReader, cell: int | None = None, case: str | None = None
     again from the run's inputs) or ``plies`` (from /plies when the inputs are gone: failure indices of the
     stored total state, nothing held fixed).
     """
-    from postproc.profile import PlyLabel, Profile
+    from postproc.profile import Profile
     from shells.criteria import failure_index
 
     from bridge.pictures.cellstate import cell_states
 
     cell, k = _cell_case(st, cell, case)
     sec = _section_of_cell(st, cell)
-    kinds = {m.name: m.kind for m in st.run.materials}
-    plies = [PlyLabel(p.angle, p.material, kinds.get(p.material, "ply"), p.thickness) for p in sec.plies]
+    kind = {m.name: m.kind for m in st.run.materials}
+    plies, kinds = sec.plies, tuple(kind.get(p.material, "ply") for p in sec.plies)
     zi = np.asarray(sec.interfaces)
     try:
         s = cell_states(st, cell)
@@ -81,10 +81,10 @@ def profile_of(st: StoreReader, cell: int | None = None, case: str | None = None
                              st.path) from None
         stress, fi = _plies_route(st, cell, k, sec)
         z = np.column_stack([zi[:-1], 0.5 * (zi[:-1] + zi[1:]), zi[1:]])
-        return Profile(z, stress, fi, zi, plies), cell, st.case_names[k], "plies"
+        return Profile(z, stress, fi, zi, plies, kinds), cell, st.case_names[k], "plies"
     total = s.mech[k] + s.fixed[k]
     fi = {name: failure_index(r[k]) for name, r in s.ratio.items()}
-    return Profile(s.z, total[..., :5], fi, zi, plies), cell, st.case_names[k], s.source
+    return Profile(s.z, total[..., :5], fi, zi, plies, kinds), cell, st.case_names[k], s.source
 
 
 def profile_figure_of(st: StoreReader, cell: int | None = None, case: str | None = None,

@@ -1,7 +1,7 @@
 """The HTML report, read back by a real browser (headless chromium): escaped, script-free, complete.
 
 Check values are the store's own metadata and summary (invariants: the report must show what the store says),
-the published checks' own list (shells.published), and the injection strings of the hostile-input campaign.
+the published checks' own list (the one plybridge verify runs), and the injection strings of the hostile-input campaign.
 """
 
 from __future__ import annotations
@@ -153,7 +153,7 @@ def _cells(dom: str, table_after: str) -> list[list[str]]:
 
 @needs_chromium
 def test_spar_report_reads_as_a_checker_needs(spar_report, tmp_path):
-    from shells.published import PUBLISHED
+    from bridge.recover.published import all_cases
 
     from bridge.results.store import StoreReader
 
@@ -182,7 +182,8 @@ def test_spar_report_reads_as_a_checker_needs(spar_report, tmp_path):
     assert "ΔT [°C]" in dom and "pressure [MPa]" in dom
     # Settings as a table; the verification summary; maps one per row, full width; the caution twice.
     assert "<h2>Settings</h2>" in dom and "face wrinkling coefficient [-]" in dom
-    assert f"{len(PUBLISHED)} of {len(PUBLISHED)} published checks" in dom
+    n = len(all_cases())
+    assert f"{n} of {n} published checks" in dom
     assert dom.count("<figure>") == summary["figures"] == 4 and "figure img { width: 100%" in dom
     assert dom.count("qualified engineer") >= 2
     # Four significant figures: the worst margin as the summary prints it.

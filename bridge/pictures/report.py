@@ -130,9 +130,11 @@ def report_inputs(st: StoreReader, comparison: dict | None = None, comparison_so
     named += [s.worst.cell] if s.worst else []
     rows = None
     if verification:
-        from shells.published import PUBLISHED, check
+        from shells.published import check
 
-        rows = [check(case) for case in PUBLISHED]
+        from bridge.recover.published import all_cases
+
+        rows = [check(case) for case in all_cases()]
     return ReportInputs(meta=run, store=st.path, cells=cell_facts(st, named), hot=hot, figures=_figures(st),
                         n_cells=int(margin.size), failing_cells=int(np.sum(margin < 0)), verification=rows,
                         comparison=comparison, comparison_source=comparison_source, open_details=open_details)

@@ -9,8 +9,11 @@ Three kinds of field, three kinds of map:
   to deep teal above, resampled so that **zero sits at the pale centre whatever
   the limits** (a two-slope scale: below and above zero are stretched
   separately), so a negative margin always reads red;
-- ``categorical`` (critical ply, criterion, mode, case): our own palette of
-  twelve distinguishable hues, cycled (darkened) beyond twelve.
+- ``categorical`` (critical ply, criterion, mode, case): our own palette,
+  generated in the OKLCh perceptual space (Ottosson 2020) by walking hue and
+  lightness along a two-dimensional low-discrepancy sequence (Roberts 2018,
+  the "R2" sequence), so any number of categories spreads evenly over hues and
+  lightness levels and neighbours in the list differ in both.
 
 Cells without a value (NaN: flagged, past the ply count, not computed) are drawn
 in :data:`NO_VALUE`, a neutral grey that none of the maps contains.
@@ -27,15 +30,17 @@ NO_VALUE = "#8c8c8c"
 EDGE = "#3a3a3a"
 #: Marker colour of the worst cell.
 MARK = "#ff2fa0"
+#: Text colours of pictures (main text, captions and notes).
+INK, INK_MUTED = "#1d232a", "#4f5963"
 #: Sequential map (matplotlib name).
 SEQUENTIAL = "viridis"
 
 #: Anchor colours of the diverging map, from the negative end through zero to the positive end.
 BALANCE = ("#7a1020", "#c8462c", "#f1b27a", "#f3efe6", "#8fcfc4", "#2b8c8c", "#0c3f55")
 
-#: Our categorical palette (hex, sRGB).
-PALETTE = ("#1f6fb2", "#e8892b", "#3a9d5d", "#c8334a", "#8656b8", "#7d5a44",
-           "#d66fb5", "#2fb7c9", "#b8b23a", "#274060", "#f2c14e", "#5c8f2d")
+#: Categorical palette: R2 sequence steps (1/φ₂ and 1/φ₂², φ₂ the plastic number), start offsets of hue and
+#: lightness (fractions), lightness range and chroma in OKLCh.
+_R2, _START, _LIGHTNESS, _CHROMA = (0.7548776662, 0.5698402910), (0.62, 0.35), (0.42, 0.76), 0.15
 
 KINDS = ("sequential", "diverging", "categorical")
 
@@ -102,13 +107,47 @@ def diverging_lut(lo: float, hi: float, n: int = 256):
     return ListedColormap(balance_map()(balance_position(centres, lo, hi))[:, :3], name="plybridge-balance-2slope")
 
 
+_LMS_TO_LINEAR = np.array([[4.0767416621, -3.3077115913, 0.2309699292],
+                           [-1.2684380046, 2.6097574011, -0.3413193965],
+                           [-0.0041960863, -0.7034186147, 1.7076147010]])
+_LAB_TO_LMS = np.array([[1.0, 0.3963377774, 0.2158037573],
+                        [1.0, -0.1055613458, -0.0638541728],
+                        [1.0, -0.0894841775, -1.2914855480]])
+
+
+def _linear_rgb(lightness: float, chroma: float, hue_deg: float) -> np.ndarray:
+    """Linear-light sRGB of an OKLCh colour, not clipped (Ottosson, "A perceptual color space for image
+    processing", 2020: OKLab → LMS by the cube of a linear map, LMS → linear sRGB)."""
+    h = np.radians(hue_deg)
+    lab = np.array([lightness, chroma * np.cos(h), chroma * np.sin(h)])
+    return _LMS_TO_LINEAR @ (_LAB_TO_LMS @ lab) ** 3
+
+
+def oklch_to_rgb(lightness: float, chroma: float, hue_deg: float) -> np.ndarray:
+    """sRGB (0 … 1, clipped to the gamut, gamma-encoded) of an OKLCh colour."""
+    linear = np.clip(_linear_rgb(lightness, chroma, hue_deg), 0.0, 1.0)
+    return np.where(linear <= 0.0031308, 12.92 * linear, 1.055 * linear ** (1 / 2.4) - 0.055)
+
+
 def palette(n: int) -> list[str]:
-    """``n`` categorical colours: :data:`PALETTE`, then the same hues darkened on each further cycle."""
+    """``n`` categorical colours (hex): hue and lightness from the R2 sequence (see the module notes).
+
+    The chroma is lowered where a colour would leave the sRGB gamut, so every colour keeps its hue.
+    """
     out = []
+    lo, hi = _LIGHTNESS
     for i in range(n):
-        base = hex_to_rgb(PALETTE[i % len(PALETTE)])
-        out.append(rgb_to_hex(base * (0.7 ** (i // len(PALETTE)))))
+        hue = 360.0 * ((_START[0] + i * _R2[0]) % 1.0)
+        lightness = lo + (hi - lo) * ((_START[1] + i * _R2[1]) % 1.0)
+        chroma = _CHROMA
+        while chroma > 0.03 and not np.all(np.abs(_linear_rgb(lightness, chroma, hue) - 0.5) <= 0.5):
+            chroma -= 0.01
+        out.append(rgb_to_hex(oklch_to_rgb(lightness, chroma, hue)))
     return out
+
+
+#: The first twelve categorical colours (hex, sRGB).
+PALETTE = tuple(palette(12))
 
 
 def categorical_lut(n: int):
@@ -116,6 +155,47 @@ def categorical_lut(n: int):
     from matplotlib.colors import ListedColormap
 
     return ListedColormap([hex_to_rgb(c) for c in palette(max(n, 1))], name="plybridge-categories")
+
+
+def colour_scale(kind: str, limits: tuple[float, float]):
+    """(matplotlib colormap, norm) drawing ``kind`` on ``limits`` as the cells are coloured (for colour bars).
+
+    A diverging field spanning zero gets a two-slope norm with zero at the pale centre; an all-positive
+    (all-negative) one the upper (lower) half of the balance map.
+    """
+    from matplotlib.colors import ListedColormap, Normalize, TwoSlopeNorm
+
+    lo, hi = limits
+    if kind == "sequential":
+        import matplotlib
+
+        return matplotlib.colormaps[SEQUENTIAL], Normalize(lo, hi)
+    full = balance_map()
+    if lo < 0 < hi:
+        return full, TwoSlopeNorm(0.0, lo, hi)
+    half = np.linspace(0.5, 1.0, 128) if lo >= 0 else np.linspace(0.0, 0.5, 128)
+    return ListedColormap(full(half)), Normalize(lo, hi)
+
+
+def cell_rgb(kind: str, values: np.ndarray, limits: tuple[float, float] | None, n_categories: int = 0) -> np.ndarray:
+    """(ncell, 3) uint8 colours of field values, exactly as the maps draw them (NaN → :data:`NO_VALUE`)."""
+    v = np.asarray(values, dtype=float)
+    out = np.empty((v.size, 3))
+    ok = np.isfinite(v)
+    out[~ok] = hex_to_rgb(NO_VALUE)
+    if kind == "categorical":
+        pal = np.array([hex_to_rgb(c) for c in palette(max(n_categories, 1))])
+        out[ok] = pal[v[ok].astype(int)]
+    elif kind == "diverging":
+        lo, hi = limits
+        out[ok] = balance_map()(balance_position(v[ok], lo, hi))[:, :3]
+    else:
+        import matplotlib
+
+        lo, hi = limits
+        t = np.clip((v[ok] - lo) / (hi - lo), 0.0, 1.0) if hi > lo else np.full(ok.sum(), 0.5)
+        out[ok] = matplotlib.colormaps[SEQUENTIAL](t)[:, :3]
+    return np.round(out * 255.0).astype(np.uint8)
 
 
 def expected_colour(kind: str, value: float, limits: tuple[float, float], n_categories: int = 0) -> np.ndarray:

@@ -24,6 +24,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from shells import params as P
+from shells.components import MATERIAL_STRAIN, MATERIAL_STRESS
 from shells.recovery_reference import ply_states
 from shells.recovery_tables import SectionTables
 from shells.rotation import shear_rotation, stress_rotation
@@ -37,8 +38,7 @@ PLY_FLOOR, MODEL_FLOOR = 0.01, 1e-9
 
 
 #: Component names in material axes, by quantity (the names ``[solver_plies] components`` uses).
-LABELS = {"stress": ("sigma1", "sigma2", "tau12", "tau13", "tau23"),
-          "strain": ("eps1", "eps2", "gamma12", "gamma13", "gamma23")}
+LABELS = {"stress": MATERIAL_STRESS, "strain": MATERIAL_STRAIN}
 
 
 def component_label(quantity: str, c: int) -> str:

@@ -1,4 +1,4 @@
-"""Matplotlib figures: through-thickness profiles, polar moduli, failure envelopes.
+"""Matplotlib figures: polar moduli and failure envelopes (the through-thickness figure: :mod:`postproc.profile`).
 
 Figures are built as :class:`matplotlib.figure.Figure` objects on the Agg
 canvas, never through ``pyplot``: nothing is registered globally, so nothing
@@ -8,41 +8,15 @@ them. Colours come from :mod:`postproc.colors`.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import Callable, Mapping, Sequence
 
 import numpy as np
 
 from . import colors
 
-#: Through-thickness panels: (title, component indices into the six-state, names).
-PROFILE_PANELS = (("fibre direction", (0,), ("σ1",)), ("in-plane transverse and shear", (1, 2), ("σ2", "τ12")),
-                  ("transverse shear", (3, 4), ("τ13", "τ23")))
-
-
-@dataclass(frozen=True)
-class Profile:
-    """Through-thickness states of one cell in one case.
-
-    Attributes
-    ----------
-    z : ndarray (nply, 3)
-        z of the bottom, middle and top point of every ply (length), ply 1 first.
-    stress : ndarray (nply, 3, 5)
-        (σ1, σ2, τ12, τ13, τ23) at those points (force/length²), total (mechanical + fixed).
-    failure_index : mapping str → ndarray (nply, 3)
-        1/R of each criterion at those points.
-    interfaces : ndarray (nply + 1,)
-        Ply interfaces, bottom to top.
-    ply_labels : sequence of str
-        One label per ply (e.g. ``"ply 2: 45° cf"``).
-    """
-
-    z: np.ndarray
-    stress: np.ndarray
-    failure_index: Mapping[str, np.ndarray]
-    interfaces: np.ndarray
-    ply_labels: Sequence[str]
+def plain(text: str) -> str:
+    """Text shown literally by matplotlib (a ``$`` never starts mathematics)."""
+    return str(text).replace("$", r"\$")
 
 
 def new_figure(width: float = 10.0, height: float = 6.0):
@@ -73,47 +47,6 @@ def save_figure(fig, path, fmt: str) -> None:
     fig.savefig(path, format=fmt, dpi=110, facecolor="white")
 
 
-def _ply_lines(ax, interfaces: np.ndarray) -> None:
-    for zk in interfaces:
-        ax.axhline(zk, color=colors.EDGE, lw=0.6, ls=":")
-
-
-def profile_figure(profile: Profile, *, title: str, stress_unit: str):
-    """Through-thickness σ1; σ2, τ12; τ13, τ23 and the failure index of every criterion against z.
-
-    Ply boundaries are dotted lines; each ply is labelled (angle, material) beside the last panel.
-    """
-    fig = new_figure(12.0, 6.0)
-    axes = fig.subplots(1, len(PROFILE_PANELS) + 1, sharey=True)
-    z = np.asarray(profile.z, dtype=float)
-    pal = colors.palette(8)
-    for ax, (name, comps, symbols) in zip(axes, PROFILE_PANELS):
-        for j, (c, sym) in enumerate(zip(comps, symbols)):
-            for k in range(z.shape[0]):
-                ax.plot(profile.stress[k, :, c], z[k], color=pal[j], lw=1.8, label=sym if k == 0 else None)
-        ax.axvline(0.0, color="black", lw=0.6)
-        ax.set_title(name, fontsize=10)
-        ax.set_xlabel(f"stress [{stress_unit}]")
-        ax.legend(fontsize=8, loc="best")
-        _ply_lines(ax, profile.interfaces)
-    ax = axes[-1]
-    for j, (crit, fi) in enumerate(profile.failure_index.items()):
-        for k in range(z.shape[0]):
-            ax.plot(np.asarray(fi)[k], z[k], color=pal[(j + 3) % len(pal)], lw=1.8, marker="o", ms=3,
-                    label=crit if k == 0 else None)
-    ax.axvline(1.0, color=colors.BALANCE[0], lw=1.0, ls="--", label="failure (1)")
-    ax.set_title("failure index 1/R", fontsize=10)
-    ax.set_xlabel("failure index [-]")
-    ax.legend(fontsize=8, loc="best")
-    _ply_lines(ax, profile.interfaces)
-    mids = 0.5 * (np.asarray(profile.interfaces[:-1]) + np.asarray(profile.interfaces[1:]))
-    for zm, label in zip(mids, profile.ply_labels):
-        ax.annotate(label, xy=(1.02, zm), xycoords=("axes fraction", "data"), fontsize=8, va="center")
-    axes[0].set_ylabel("z [length]")
-    fig.suptitle(title, fontsize=11)
-    return fig
-
-
 def polar_figure(angles_deg: np.ndarray, membrane: np.ndarray, flexural: np.ndarray, *, title: str,
                  unit: str):
     """Membrane and flexural Young's moduli against direction (degrees from laminate x), on polar axes."""
@@ -123,7 +56,7 @@ def polar_figure(angles_deg: np.ndarray, membrane: np.ndarray, flexural: np.ndar
     pal = colors.palette(2)
     ax.plot(t, membrane, color=pal[0], lw=2.0, label="membrane E(θ)")
     ax.plot(t, flexural, color=pal[1], lw=2.0, ls="--", label="flexural E(θ)")
-    ax.set_title(f"{title}\nmoduli [{unit}] against direction from laminate x", fontsize=10)
+    ax.set_title(f"{plain(title)}\nmoduli [{plain(unit)}] against direction from laminate x", fontsize=10)
     ax.legend(loc="lower left", bbox_to_anchor=(0.0, -0.12), fontsize=8, ncols=2)
     return fig
 
@@ -174,23 +107,35 @@ def envelope_figure(curves: Mapping[str, Sequence[np.ndarray]], states: np.ndarr
     states : ndarray (k, 6) or None
         Stress states (σ1, σ2, τ12, τ13, τ23, σ3) to overlay as points.
     """
+    curves = {name: pair for name, pair in curves.items()
+              if any(np.isfinite(np.asarray(pts, float)).any() for pts in pair)}
+    if not curves:
+        raise ValueError("none of the criteria gives an envelope in the σ1–σ2 or σ2–τ12 plane for this material "
+                         "(a core carries transverse shear and through-thickness stress only)")
+    from matplotlib.ticker import FuncFormatter, MaxNLocator
+
+    from .numbers import short
+
     fig = new_figure(12.0, 5.5)
     axes = fig.subplots(1, 2)
     pal = colors.palette(max(len(curves), 1))
     for p, (ax, (plane, xs, ys)) in enumerate(zip(axes, ENVELOPE_PLANES)):
         for j, (crit, pair) in enumerate(curves.items()):
             pts = np.asarray(pair[p])
-            ax.plot(pts[:, 0], pts[:, 1], color=pal[j], lw=1.8, label=crit)
+            ax.plot(pts[:, 0], pts[:, 1], color=pal[j], lw=1.8, label=plain(crit))
         if states is not None and len(states):
             s = np.asarray(states)
             ax.scatter(s[:, plane[0]], s[:, plane[1]], s=14, color=colors.MARK, edgecolor="black", lw=0.4,
-                       zorder=5, label=states_label or "ply states")
+                       zorder=5, label=plain(states_label) or "ply states")
         ax.axhline(0.0, color="black", lw=0.6)
         ax.axvline(0.0, color="black", lw=0.6)
-        ax.set_xlabel(f"{xs} [{unit}]")
-        ax.set_ylabel(f"{ys} [{unit}]")
+        ax.set_xlabel(f"{xs} [{plain(unit)}]")
+        ax.set_ylabel(f"{ys} [{plain(unit)}]")
         ax.set_title(f"{xs}–{ys} plane (other components zero)", fontsize=10)
         ax.grid(True, lw=0.3)
-        ax.legend(fontsize=8, loc="best")
-    fig.suptitle(title, fontsize=11)
+        ax.xaxis.set_major_locator(MaxNLocator(5))
+        ax.xaxis.set_major_formatter(FuncFormatter(lambda v, _: short(v)))
+        ax.yaxis.set_major_formatter(FuncFormatter(lambda v, _: short(v)))
+        ax.legend(fontsize=8, loc="upper center", bbox_to_anchor=(0.5, -0.13), ncols=4, frameon=False)
+    fig.suptitle(plain(title), fontsize=11)
     return fig

@@ -1,12 +1,14 @@
-"""Offscreen pictures of a cell field over a shell mesh (pyvista / VTK).
+"""Offscreen pictures of a cell field over a shell mesh (pyvista / VTK for the model, matplotlib around it).
 
-Every picture is drawn in its own offscreen :class:`pyvista.Plotter` that is
-closed before returning (no global theme or ``OFF_SCREEN`` switch is touched).
-Colours come from :mod:`postproc.colors`. The light is a single headlight with
-ambient 0.35 and diffuse 0.65, so a face seen square-on shows exactly its map
-colour and oblique faces darken, which shows the shape of a curved shell.
-Named views use a parallel projection and frame the whole model; an explicit
-camera is used as given.
+Each view is drawn alone, to the exact size of its box in the picture (:mod:`postproc.layout`), by one
+offscreen :class:`pyvista.Plotter` per picture that is closed before returning (no global theme or switch is
+touched; :class:`postproc.scene.ViewRenderer`).
+Cells are coloured here (:func:`postproc.colors.cell_rgb`) and lit by a single headlight with ambient 0.6 and
+diffuse 0.4, so a face seen square-on shows exactly its map colour and oblique faces darken. Named views use
+a parallel projection fitted to the model (:mod:`postproc.cameras`); ``worst`` looks at the marked cell and
+its neighbourhood; an explicit camera is used as given (perspective). Cell edges are drawn only where cells
+are large on screen. The marked cell gets a ring and a label only in views where it is visible (checked
+against the depth buffer); elsewhere the view's caption says it is hidden.
 """
 
 from __future__ import annotations
@@ -16,17 +18,33 @@ from typing import Sequence
 
 import numpy as np
 
-from . import colors
+from . import cameras, colors
+from .scene import CellGeometry, ViewRenderer, cell_geometry, make_grid, outline, project
+from .layout import Box, Mark, compose, free_spot, plan
+from .legend import ColourBar, Legend, text_width
 
-#: meshio cell type → VTK cell type id (node order is the same).
-VTK_TYPES = {"triangle": 5, "quad": 9, "triangle6": 22, "quad8": 23}
-CORNERS = {"triangle": 3, "quad": 4, "triangle6": 3, "quad8": 4}
-VIEWS = ("iso", "top", "front", "side", "+normal", "-normal")
-#: Named view → (direction from the model centre to the camera, view-up); None: use the mean normal.
-_VIEW_DIRECTIONS = {"iso": ((1.0, -1.0, 1.0), (0.0, 0.0, 1.0)), "top": ((0.0, 0.0, 1.0), (0.0, 1.0, 0.0)),
-                    "front": ((0.0, -1.0, 0.0), (0.0, 0.0, 1.0)), "side": ((1.0, 0.0, 0.0), (0.0, 0.0, 1.0))}
+#: The named views, plus ``worst`` (the marked cell and its neighbourhood).
+VIEWS = (*cameras.NAMED, "worst")
+#: Cell edges are drawn when a typical cell is at least this many pixels across on screen.
+EDGE_PIXELS = 9.0
+#: A cell whose normal makes less than this cosine with the view direction is edge-on: not visible.
+EDGE_ON = 0.1
+#: A view whose model covers less than this fraction of it is refused as empty (edge-on).
+EMPTY = 0.01
+#: Width / height of the viewport of a close-up (at most) and of an explicit camera.
+CLOSE_UP_ASPECT = 2.0
 
-Camera = tuple[tuple[float, float, float], tuple[float, float, float], tuple[float, float, float]]
+CameraTuple = tuple[tuple[float, float, float], tuple[float, float, float], tuple[float, float, float]]
+
+
+@dataclass(frozen=True)
+class ViewInfo:
+    """What one view of a picture shows: its name, its box, whether edges were drawn and the mark seen."""
+
+    name: str
+    box: Box
+    edges: bool
+    mark_visible: bool | None
 
 
 @dataclass(frozen=True)
@@ -38,89 +56,25 @@ class Picture:
     image : ndarray (height, width, 3) uint8
         The RGB picture.
     legend : tuple of (str, str)
-        Legend entries (label, ``#rrggbb``) in the order shown.
+        Legend entries (label, ``#rrggbb``) in the order shown, group names folded into the labels.
     limits : (float, float) or None
         Colour limits of a continuous field (None for categorical).
     cell_pixels : ndarray (ncell, 2) int
         (row, column) of every cell centre in the first view; −1 when off the picture.
+    model_mask : ndarray (height, width) bool
+        Pixels where the model is drawn (from the depth buffers of the views).
+    regions : dict of str → Box
+        ``title``, ``bar``, ``legend`` (when drawn) and ``view0``, ``view1``… boxes.
+    views : tuple of ViewInfo
     """
 
     image: np.ndarray
     legend: tuple
     limits: tuple | None
     cell_pixels: np.ndarray
-
-
-def cell_centres(points: np.ndarray, blocks: Sequence[tuple[str, np.ndarray]]) -> np.ndarray:
-    """Mean of the corner nodes of every cell, in global cell order, shape (ncell, 3)."""
-    pts = np.asarray(points, dtype=float)
-    return np.vstack([pts[np.asarray(conn)[:, :CORNERS[t]]].mean(axis=1) for t, conn in blocks])
-
-
-def mean_normal(points: np.ndarray, blocks: Sequence[tuple[str, np.ndarray]]) -> np.ndarray:
-    """Area-weighted mean unit normal of the cells (Newell's formula on the corners); +z if it vanishes."""
-    pts = np.asarray(points, dtype=float)
-    total = np.zeros(3)
-    for t, conn in blocks:
-        c = pts[np.asarray(conn)[:, :CORNERS[t]]]
-        total += np.cross(c, np.roll(c, -1, axis=1)).sum(axis=(0, 1))
-    norm = np.linalg.norm(total)
-    return total / norm if norm > 0 else np.array([0.0, 0.0, 1.0])
-
-
-def make_grid(points: np.ndarray, blocks: Sequence[tuple[str, np.ndarray]]):
-    """A :class:`pyvista.UnstructuredGrid` of the shell blocks (cells in global order)."""
-    import pyvista as pv
-
-    cells, types = [], []
-    for t, conn in blocks:
-        conn = np.asarray(conn, dtype=np.int64)
-        cells.append(np.column_stack([np.full(len(conn), conn.shape[1]), conn]).ravel())
-        types.append(np.full(len(conn), VTK_TYPES[t], dtype=np.uint8))
-    return pv.UnstructuredGrid(np.concatenate(cells), np.concatenate(types), np.array(points, dtype=float))
-
-
-def view_camera(view: str | Camera, points: np.ndarray, blocks) -> tuple[Camera | None, tuple, tuple]:
-    """(explicit camera or None, direction, view-up) of a named view or an explicit camera."""
-    if not isinstance(view, str):
-        return tuple(tuple(map(float, v)) for v in view), (), ()
-    if view in _VIEW_DIRECTIONS:
-        d, up = _VIEW_DIRECTIONS[view]
-        return None, d, up
-    if view not in ("+normal", "-normal"):
-        raise ValueError(f"unknown view {view!r}; use one of {', '.join(VIEWS)} or an explicit camera")
-    n = mean_normal(points, blocks) * (1.0 if view == "+normal" else -1.0)
-    up = np.array([0.0, 1.0, 0.0]) if abs(n[1]) < 0.9 else np.array([0.0, 0.0, 1.0])
-    return None, tuple(n), tuple(up - n * (up @ n))
-
-
-def legend_entries(kind: str, values: np.ndarray, labels: Sequence[str] | None,
-                   mark_label: str | None = None) -> list[tuple[str, str]]:
-    """The legend a picture shows: categories present (categorical), cells without a value, the marked cell.
-
-    Parameters
-    ----------
-    kind : {"sequential", "diverging", "categorical"}
-    values : ndarray (ncell,)
-        Field values (category indices for ``categorical``; NaN or negative: none).
-    labels : list of str or None
-        Category names, indexed by category.
-    mark_label : str, optional
-        Label of the marked cell.
-    """
-    v = np.asarray(values, dtype=float)
-    entries = []
-    if kind == "categorical":
-        present = sorted({int(x) for x in v[np.isfinite(v)]})
-        pal = colors.palette(len(labels or ()))
-        entries += [(labels[i], pal[i]) for i in present]
-    missing = int((~np.isfinite(v)).sum())
-    if missing:
-        entries.append((f"no value ({missing} cell{'s' if missing != 1 else ''}: flagged, no such ply or not computed)",
-                        colors.NO_VALUE))
-    if mark_label:
-        entries.append((f"worst: {mark_label}", colors.MARK))
-    return entries
+    model_mask: np.ndarray
+    regions: dict
+    views: tuple
 
 
 def _field_values(kind: str, values, labels) -> np.ndarray:
@@ -137,124 +91,159 @@ def _field_values(kind: str, values, labels) -> np.ndarray:
     return v
 
 
-def _colour_args(kind: str, v: np.ndarray, labels, cap: float | None = None) -> tuple[dict, tuple | None]:
+def _limits(kind: str, v: np.ndarray, cap: float | None) -> tuple[float, float] | None:
     if kind == "categorical":
-        n = len(labels)
-        return dict(cmap=colors.categorical_lut(n), clim=(-0.5, n - 0.5), n_colors=n), None
+        return None
     if kind == "diverging":
-        lo, hi = colors.diverging_limits(v, cap)
-        return dict(cmap=colors.diverging_lut(lo, hi), clim=(lo, hi)), (lo, hi)
+        return colors.diverging_limits(v, cap)
     finite = v[np.isfinite(v)]
     lo, hi = (float(finite.min()), float(finite.max())) if finite.size else (0.0, 1.0)
-    hi = hi if hi > lo else lo + 1.0
-    return dict(cmap=colors.SEQUENTIAL, clim=(lo, hi)), (lo, hi)
+    return lo, (hi if hi > lo else lo + 1.0)
 
 
-def _place_camera(plotter, view, points, blocks, grid) -> None:
-    explicit, direction, up = view_camera(view, points, blocks)
-    if explicit is not None:
-        plotter.camera.position, plotter.camera.focal_point, plotter.camera.up = explicit
-        plotter.camera.parallel_projection = False
-        plotter.reset_camera_clipping_range()
-        return
-    centre = np.array(grid.center)
-    d = np.asarray(direction, dtype=float)
-    plotter.camera.focal_point = tuple(centre)
-    plotter.camera.position = tuple(centre + d / np.linalg.norm(d) * max(grid.length, 1e-12) * 3.0)
-    plotter.camera.up = tuple(up)
-    plotter.camera.parallel_projection = True
-    plotter.reset_camera()
-    plotter.camera.zoom(0.85)  # room for the title, the scalar bar and the legend
+def build_legend(kind: str, v: np.ndarray, labels, groups, mark: int | None) -> Legend:
+    """Categories present (grouped when ``groups`` names a group per category), cells without a value, the mark."""
+    out: dict[str, list] = {}
+    if kind == "categorical":
+        pal = colors.palette(len(labels))
+        for i in sorted({int(x) for x in v[np.isfinite(v)]}):
+            out.setdefault(groups[i] if groups else "", []).append((labels[i], pal[i]))
+    missing = int((~np.isfinite(v)).sum())
+    tail = []
+    if missing:
+        tail.append((f"no value ({missing} cell{'s' if missing != 1 else ''}: flagged, no such ply or not computed)",
+                     colors.NO_VALUE))
+    if mark is not None:
+        tail.append((f"ringed: the worst cell ({mark})", colors.MARK))
+    groups_out = [(g, tuple(e)) for g, e in out.items()]
+    if tail:
+        groups_out.append(("", tuple(tail)))
+    return Legend(tuple(groups_out))
 
 
-def _pixels(renderer, centres: np.ndarray, height: int, width: int) -> np.ndarray:
-    import vtk
-
-    coord = vtk.vtkCoordinate()
-    coord.SetCoordinateSystemToWorld()
-    out = np.full((len(centres), 2), -1, dtype=int)
-    for i, c in enumerate(centres):
-        coord.SetValue(*map(float, c))
-        x, y = coord.GetComputedDoubleDisplayValue(renderer)
-        row, col = int(round(height - 1 - y)), int(round(x))
-        if 0 <= row < height and 0 <= col < width:
-            out[i] = (row, col)
+def _orientations(views, points, geo: CellGeometry, mark):
+    out = []
+    for view in views:
+        if not isinstance(view, str):
+            out.append(("camera", None, CLOSE_UP_ASPECT))
+        elif view == "worst":
+            if mark is None:
+                raise ValueError("view 'worst' needs a marked cell; this field has no worst cell")
+            out.append(("worst", None, CLOSE_UP_ASPECT))
+        else:
+            o = cameras.orient(view, points, cameras.mean_normal(geo.normals, geo.areas))
+            w, h = o.extent
+            out.append((view, o, float(np.clip(w / max(h, 1e-12 * max(w, 1.0)), 0.25, 12.0))))
+    named = [a for name, o, a in out if o is not None]
+    if named:   # close-ups as wide as half the named views, so a slender model's pictures stay strips
+        wide = max(CLOSE_UP_ASPECT, float(np.median(named)) / 2.0)
+        out = [(name, o, a if o is not None else wide) for name, o, a in out]
     return out
 
 
-def _swatch(colour: str):
-    """A unit square coloured by its own scalars (so the legend text can stay black)."""
-    import pyvista as pv
+def _camera(view, kind, o, box: Box, points, geo: CellGeometry, mark, cell_size) -> cameras.Camera:
+    aspect = box.width / box.height
+    if kind == "camera":
+        pos, focal, up = (tuple(map(float, v)) for v in view)
+        return cameras.Camera(pos, focal, up, parallel=False)
+    if kind == "worst":
+        diag = float(np.linalg.norm(np.ptp(points, axis=0)))
+        radius = float(np.clip(10.0 * cell_size[mark], 0.03 * diag, 0.5 * diag))
+        return cameras.close_up(geo.centres[mark], geo.normals[mark], radius, aspect, cameras.long_axis(points), points)
+    return cameras.fit(o, points, aspect)
 
-    square = pv.PolyData(np.array([[0, 0, 0], [1, 0, 0], [1, 1, 0], [0, 1, 0]], dtype=float), faces=[4, 0, 1, 2, 3])
-    square.cell_data["rgb"] = (colors.hex_to_rgb(colour) * 255).round().astype(np.uint8)[None, :]
-    return square
+
+def _pixels_per_unit(cam: cameras.Camera, height: int) -> float:
+    if cam.parallel:
+        return height / (2.0 * cam.scale)
+    dist = float(np.linalg.norm(np.subtract(cam.position, cam.focal)))
+    return height / (2.0 * dist * np.tan(np.radians(15.0)))
 
 
-def _legend(plotter, entries, viewport_px: float, font: int) -> None:
-    longest = max(len(name) for name, _ in entries)
-    width = min(0.95, (longest + 4) * 0.6 * font / viewport_px)
-    legend = plotter.add_legend(labels=[[name, "black"] for name, _ in entries], bcolor="white", border=True,
-                                size=(width, 0.06 * len(entries) + 0.02), loc="lower left", face="rectangle")
-    for i, (_, colour) in enumerate(entries):
-        legend.SetEntrySymbol(i, _swatch(colour))
+def _visible(depth: np.ndarray, pixel: np.ndarray, point: np.ndarray, normal: np.ndarray, cam: cameras.Camera,
+             tol: float) -> bool:
+    """Whether the cell at ``point`` faces the camera (not edge-on) and the surface seen at ``pixel`` is at its
+    depth (nothing in front of it)."""
+    if pixel[0] < 0 or abs(float(np.dot(normal, cam.direction))) < EDGE_ON:
+        return False
+    distance = float((np.asarray(point) - np.asarray(cam.position)) @ cam.direction)
+    return bool(abs(depth[pixel[0], pixel[1]] - distance) <= tol)
+
+
+def _mark(cell: int, label: str | None, pixel, centre, normal, mask, depth, cam, box: Box, font: float) -> Mark:
+    """The mark of the worst cell in one view: visible or not, and where its label can go."""
+    label = label or f"cell {cell}"
+    seen = _visible(depth, pixel, centre, normal, cam, 2.5 / _pixels_per_unit(cam, box.height))
+    size = (int(1.9 * font), int(text_width(label, font) + 1.2 * font))
+    return Mark(tuple(int(v) for v in pixel), seen, label, free_spot(mask, tuple(pixel), size, font) if seen else None)
 
 
 def draw_field(points: np.ndarray, blocks: Sequence[tuple[str, np.ndarray]], values: np.ndarray, *,
-               kind: str, labels: Sequence[str] | None = None, title: str, bar_title: str,
-               views: Sequence[str | Camera] = ("iso",), size: tuple[int, int] = (1200, 900),
+               kind: str, labels: Sequence[str] | None = None, groups: Sequence[str] | None = None, title: str,
+               bar_title: str, views: Sequence[str | CameraTuple] = ("iso",), size: tuple[int, int] | None = None,
                mark: int | None = None, mark_label: str | None = None, cap: float | None = None) -> Picture:
     """Render a cell field and report what was drawn (see :func:`render_field` for the parameters)."""
-    import pyvista as pv
-
     v = _field_values(kind, values, labels)
     grid = make_grid(points, blocks)
     if len(v) != grid.n_cells:
         raise ValueError(f"{len(v)} values for {grid.n_cells} cells")
-    grid.cell_data[bar_title] = v
-    args, limits = _colour_args(kind, v, labels, cap)
-    entries = legend_entries(kind, v, labels, mark_label if mark is not None else None)
-    centres = cell_centres(points, blocks)
-    width, height = int(size[0]), int(size[1])
-    font = max(7, height // 45)
-    plotter = pv.Plotter(off_screen=True, window_size=(width, height), shape=(1, len(views)),
-                         lighting="none", border=False)
-    try:
-        plotter.set_background("white")
-        plotter.add_light(pv.Light(light_type="headlight"))
-        for k, view in enumerate(views):
-            plotter.subplot(0, k)
-            bar = dict(title=bar_title, color="black", fmt="%.3g", n_labels=5, vertical=True,
-                       position_x=0.84, position_y=0.22, width=0.07, height=0.6,
-                       title_font_size=font, label_font_size=font)
-            plotter.add_mesh(grid, scalars=bar_title, preference="cell", nan_color=colors.NO_VALUE,
-                             show_edges=True, edge_color=colors.EDGE, line_width=1, ambient=0.6, diffuse=0.4,
-                             specular=0.0, show_scalar_bar=(kind != "categorical" and k == len(views) - 1),
-                             scalar_bar_args=bar, copy_mesh=True, **args)
-            if mark is not None:
-                plotter.add_point_labels(centres[[mark]], [mark_label or f"cell {mark}"], point_color=colors.MARK,
-                                         point_size=max(6, height // 60), render_points_as_spheres=True,
-                                         always_visible=True, font_size=font, text_color="black",
-                                         shape_color="white", shape_opacity=0.85)
-            if k == 0:
-                plotter.add_text(title, position="upper_left", font_size=font, color="black")
-            if len(views) > 1:
-                plotter.add_text(view if isinstance(view, str) else "camera", position="lower_right",
-                                 font_size=font, color="dimgray")
-            if k == 0 and entries:
-                _legend(plotter, entries, width / len(views), font)
-            _place_camera(plotter, view, points, blocks, grid)
-        image = np.asarray(plotter.screenshot(return_img=True))[..., :3].copy()
-        plotter.subplot(0, 0)
-        pixels = _pixels(plotter.renderer, centres, height, width)
-    finally:
-        plotter.close()
-    return Picture(image=image, legend=tuple(entries), limits=limits, cell_pixels=pixels)
+    pts = np.asarray(points, dtype=float)
+    geo = cell_geometry(points, blocks)
+    limits = _limits(kind, v, cap)
+    grid.cell_data["rgb"] = colors.cell_rgb(kind, v, limits, len(labels or ()))
+    legend = build_legend(kind, v, labels, groups, mark)
+    bar = ColourBar(kind, limits, bar_title, cap if kind == "diverging" and cap is not None
+                    and limits[1] == cap else None) if limits is not None else None
+    cell_size = np.sqrt(geo.areas)
+    typical = float(np.median(cell_size)) if cell_size.size else 1.0
+    oriented = _orientations(views, pts, geo, mark)
+    p = plan([a for _, _, a in oriented], size, legend if legend.groups else None, bar)
+    H, W = p.size[1], p.size[0]
+    images, marks, infos, captions = [], [], [], []
+    model_mask = np.zeros((H, W), dtype=bool)
+    first_pixels = None
+    with ViewRenderer(grid, outline(grid)) as renderer:
+        shots = []
+        for (name, o, _), view, box in zip(oriented, views, p.views):
+            cam = _camera(view, name, o, box, pts, geo, mark, cell_size)
+            edges = bool(typical * _pixels_per_unit(cam, box.height) >= EDGE_PIXELS)
+            shots.append((cam, edges, *renderer.view(cam, box.width, box.height, edges)))
+    for k, ((name, o, _), box, (cam, edges, image, depth, proj)) in enumerate(zip(oriented, p.views, shots)):
+        mask = np.isfinite(depth)
+        if mask.mean() < EMPTY:
+            raise ValueError(f"view {name!r} shows {'no cell' if not mask.any() else 'the model edge-on'} "
+                             f"({100 * mask.mean():.1f} % of the view); choose another view or camera")
+        pixels = project(proj, geo.centres, box.width, box.height)
+        if k == 0:
+            first_pixels = np.where(pixels >= 0, pixels + [box.top, box.left], -1)
+        caption = name if name != "worst" else f"worst cell {mark} and its neighbourhood"
+        if name == "camera":
+            caption = f"camera {sum(1 for n, _, _ in oriented[:k + 1] if n == 'camera')}"
+        m = None
+        if mark is not None:
+            m = _mark(mark, mark_label, pixels[mark], geo.centres[mark], geo.normals[mark], mask, depth, cam, box,
+                      p.font)
+            caption += "" if m.visible and m.spot else (f" — ringed: worst, {m.label}" if m.visible else
+                                                         f" — worst cell {mark} is hidden in this view")
+        marks.append(m)
+        images.append(image)
+        captions.append(caption)
+        model_mask[box.slices] |= mask
+        infos.append(ViewInfo(name, box, bool(edges), None if m is None else m.visible))
+    title_lines = [line for line in str(title).split("\n") if line][:2]
+    image = compose(p, images, title_lines, captions, legend if legend.groups else None, bar, marks)
+    regions = {"title": p.title, **{f"view{k}": b for k, b in enumerate(p.views)}}
+    if p.bar is not None:
+        regions["bar"] = p.bar
+    if p.legend is not None:
+        regions["legend"] = p.legend
+    return Picture(image=image, legend=tuple(legend.entries), limits=limits, cell_pixels=first_pixels,
+                   model_mask=model_mask, regions=regions, views=tuple(infos))
 
 
 def render_field(points: np.ndarray, blocks: Sequence[tuple[str, np.ndarray]], values: np.ndarray, *,
-                 kind: str, labels: Sequence[str] | None = None, title: str, bar_title: str,
-                 views: Sequence[str | Camera] = ("iso",), size: tuple[int, int] = (1200, 900),
+                 kind: str, labels: Sequence[str] | None = None, groups: Sequence[str] | None = None, title: str,
+                 bar_title: str, views: Sequence[str | CameraTuple] = ("iso",), size: tuple[int, int] | None = None,
                  mark: int | None = None, mark_label: str | None = None, cap: float | None = None) -> np.ndarray:
     """Render one value per cell over a shell mesh, offscreen, and return the RGB picture.
 
@@ -275,18 +264,20 @@ def render_field(points: np.ndarray, blocks: Sequence[tuple[str, np.ndarray]], v
         ``categorical``: the palette with a legend listing the categories present.
     labels : list of str, optional
         Category names (required for ``categorical``).
+    groups : list of str, optional
+        The legend group of each category (e.g. its laminate); entries are listed under their group.
     title : str
-        Text at the top left of the first view.
+        One or two lines (``\\n``) for the title band.
     bar_title : str
-        Scalar bar title, with units (continuous kinds); also the array name.
+        Colour bar title, with units (continuous kinds).
     views : sequence of str or camera
-        One subplot each, side by side: ``iso``, ``top``, ``front``, ``side``,
-        ``+normal``, ``-normal`` (the mean cell normal), or an explicit camera
-        ``((px, py, pz), (fx, fy, fz), (ux, uy, uz))`` (position, focal point, view-up).
-    size : (int, int)
-        Width and height of the whole picture in pixels.
+        One view each: ``iso``, ``top``, ``bottom``, ``front``, ``back``, ``side``, ``+normal``, ``-normal``
+        (the mean cell normal), ``worst`` (the marked cell and its neighbourhood), or an explicit camera
+        ``((px, py, pz), (fx, fy, fz), (ux, uy, uz))`` (position, focal point, view-up; perspective).
+    size : (int, int), optional
+        Width and height of the whole picture in pixels; by default 1600 wide and as high as the model needs.
     mark : int, optional
-        A cell (global index) to mark with a dot and ``mark_label``.
+        A cell (global index) to mark with a ring and ``mark_label`` where it is visible.
     mark_label : str, optional
         Text beside the mark (default ``"cell N"``).
     cap : float, optional
@@ -295,6 +286,11 @@ def render_field(points: np.ndarray, blocks: Sequence[tuple[str, np.ndarray]], v
     Returns
     -------
     ndarray (height, width, 3) uint8
+
+    Raises
+    ------
+    ValueError
+        A view that shows no cell, a size too small for the views, a bad argument.
     """
-    return draw_field(points, blocks, values, kind=kind, labels=labels, title=title, bar_title=bar_title,
-                      views=views, size=size, mark=mark, mark_label=mark_label, cap=cap).image
+    return draw_field(points, blocks, values, kind=kind, labels=labels, groups=groups, title=title,
+                      bar_title=bar_title, views=views, size=size, mark=mark, mark_label=mark_label, cap=cap).image

@@ -1,26 +1,56 @@
 """The self-contained HTML report of a recovery run.
 
-:func:`build_report` takes plain data (the store's metadata as dicts and lists)
-and pictures as PNG bytes, and returns one HTML document with the pictures
-embedded as base64 data URIs. Every string that came from an input is escaped
-with :func:`html.escape`; the only HTML passed through is a comparison fragment
-written by plybridge itself (checked for scripts by :func:`check_fragment`).
+:func:`build_report` takes plain data — the run's metadata (:class:`postproc.run_meta.RunMeta`), facts about the
+cells it names, the hot spots, pictures as PNG bytes, the verification rows and a comparison summary — and
+returns one HTML document with the pictures embedded as data URIs. Every string from an input is escaped; no
+HTML from outside is ever inserted (the comparison is rendered here from its data). Numbers carry their unit in
+the column head and four significant figures; only failing (negative) margins are marked.
 """
 
 from __future__ import annotations
 
-import base64
-import html
-import json
-import re
 from dataclasses import dataclass, field
-from typing import Any, Sequence
+from typing import Mapping, Sequence
 
-from shells.defaults import CAUTION
-
-from .report_html import PAGE, STYLE
+from .hotspots import SAME, Cluster
+from .numbers import degrees, sig
+from .report_compare import comparison_section
+from .report_html import data_uri, esc, margin, num, page, table
+from .report_inputs import inputs_section, provenance_section, settings_section
 from .run_meta import RunMeta
 
+
+@dataclass(frozen=True)
+class CellFact:
+    """What the report says about one cell: where it is and what governs it."""
+
+    cell: int
+    zone: str
+    laminate: str
+    ply: int
+    angle: float | None
+    material: str
+    case: str
+    criterion: str
+    mode: str
+    point: str
+    min_margin: float | None
+    strength_ratio: float | None
+    centre: tuple[float, float, float]
+
+    @property
+    def ply_text(self) -> str:
+        if self.ply <= 0:
+            return "—"
+        return f"{self.ply}: {degrees(self.angle)} {self.material}" if self.angle is not None else str(self.ply)
+
+
+@dataclass(frozen=True)
+class Figure:
+    """A picture of the report (PNG bytes, embedded as a data URI) and the sentence under it."""
+
+    caption: str
+    png: bytes
 
 
 @dataclass(frozen=True)
@@ -30,169 +60,169 @@ class ReportInputs:
     Attributes
     ----------
     meta : RunMeta
-        The store's run metadata.
     store : str
-        Path of the store (shown in the provenance).
-    figures : list of (caption, PNG bytes)
-        Maps and plots, in order.
-    compare_fragment : str or None
-        Trusted HTML from the compare command.
+        Path of the store (provenance).
+    cells : mapping cell → CellFact
+        Every cell the report names (minima, hot spots).
+    hot : sequence of Cluster
+        Hot spots per zone (:func:`postproc.hotspots.clusters`).
+    figures : sequence of Figure
+        Maps (one per row) and the through-thickness plot.
+    n_cells, failing_cells : int
+        Cells of the model, cells with a negative margin.
+    verification : sequence of dict, optional
+        Rows of the published checks (``shells.published.check``).
+    comparison : dict, optional
+        The summary of a comparison file (``plybridge compare``), rendered by :mod:`postproc.report_compare`.
+    comparison_source : str
+        The comparison file's path.
+    open_details : bool
+        Show folded lists unfolded (for print and PDF).
     """
 
     meta: RunMeta
-    store: str = ""
-    figures: Sequence[tuple[str, bytes]] = field(default_factory=tuple)
-    compare_fragment: str | None = None
+    store: str
+    cells: Mapping[int, CellFact]
+    hot: Sequence[Cluster] = ()
+    figures: Sequence[Figure] = field(default_factory=tuple)
+    n_cells: int = 0
+    failing_cells: int = 0
+    verification: Sequence[Mapping] | None = None
+    comparison: Mapping | None = None
+    comparison_source: str = ""
+    open_details: bool = False
 
 
-def esc(value: Any) -> str:
-    """HTML-escaped text of any value (quotes included)."""
-    return html.escape(str(value), quote=True)
+def _fact_columns(f: CellFact | None, skip: Sequence[str] = ()) -> list:
+    """Cells of the governing state: cell, zone, ply, case, criterion (mode), point."""
+    if f is None:
+        return ["—"] * (6 - len(skip))
+    cols = {"cell": num(f.cell), "zone": f.zone, "ply": f.ply_text, "case": f.case,
+            "criterion": f"{f.criterion} ({f.mode})" if f.mode else f.criterion, "point": f.point}
+    return [v for k, v in cols.items() if k not in skip]
 
 
-def check_fragment(fragment: str, source: str = "compare fragment") -> str:
-    """Return ``fragment`` if it holds no script (``<script``, ``javascript:``, ``on…=`` handlers); else raise.
-
-    Raises
-    ------
-    ValueError
-        With a message naming ``source``.
-    """
-    if re.search(r"<\s*script|javascript\s*:|\son[a-z]+\s*=", fragment, flags=re.IGNORECASE):
-        raise ValueError(f"{source}: contains a script or an event handler; give a fragment written by "
-                         "plybridge compare")
-    return fragment
+_FACT_HEAD = ["cell", "zone", "critical ply: angle, material", "governing case", "criterion (mode)", "point"]
 
 
-def data_uri(png: bytes) -> str:
-    """``data:image/png;base64,…`` of PNG bytes."""
-    return "data:image/png;base64," + base64.b64encode(png).decode("ascii")
-
-
-def _num(value: Any, fmt: str = ".4g") -> str:
-    try:
-        v = float(value)
-    except (TypeError, ValueError):
-        return f'<td>{esc(value)}</td>'
-    cls = "num neg" if v < 0 else "num"
-    return f'<td class="{cls}">{format(v, fmt)}</td>'
-
-
-def table(headers: Sequence[str], rows: Sequence[Sequence[Any]], numeric: Sequence[int] = (), cls: str = "") -> str:
-    """An HTML table; cells in columns ``numeric`` are formatted as numbers, every cell escaped."""
-    head = "".join(f"<th>{esc(h)}</th>" for h in headers)
-    body = []
-    for row in rows:
-        cells = "".join(_num(v) if i in numeric else f"<td>{esc(v)}</td>" for i, v in enumerate(row))
-        body.append(f"<tr>{cells}</tr>")
-    return f'<table class="{esc(cls)}"><thead><tr>{head}</tr></thead><tbody>{"".join(body)}</tbody></table>'
-
-
-def _minima(title: str, key: str, entries, extra: bool = False) -> str:
-    headers = [key] + (["laminate"] if extra else []) + ["min margin", "cell"]
-    rows = [[e.name] + ([e.laminate] if extra else []) + [e.min_margin, e.cell] for e in entries]
-    return f"<h3>{esc(title)}</h3>" + table(headers, rows, numeric=(len(headers) - 2,))
+def _head(skip: Sequence[str] = ()) -> list[str]:
+    keys = ["cell", "zone", "ply", "case", "criterion", "point"]
+    return [h for k, h in zip(keys, _FACT_HEAD) if k not in skip]
 
 
 def _summary(r: ReportInputs) -> str:
-    s = r.meta.summary
-    w = s.worst
-    head = ('<p class="headline">Minimum margin of safety: <strong>'
-            + (f"{float(w.min_margin):.4g}" if w else "none") + "</strong>"
-            + (f" at cell {esc(w.cell)}, ply {esc(w.ply)}, case {esc(w.case)}, "
-               f"{esc(w.criterion)} ({esc(w.mode)}), {esc(w.point)} of the ply"
-               if w else "") + "</p>")
-    parts = ['<section id="summary"><h2>Summary</h2>', head,
-             table(["quantity", "value"], [["minimum margin", w.min_margin if w else ""],
-                                           ["strength ratio", w.strength_ratio if w else ""],
-                                           ["flagged cells", s.flagged_cells]],
-                   numeric=(1,), cls="summary"),
-             _minima("By zone", "zone", s.zones, True),
-             _minima("By laminate", "laminate", s.laminates),
-             _minima("By case", "case", s.cases),
-             _minima("By criterion", "criterion", s.criteria)]
+    m, s = r.meta, r.meta.summary
+    w = r.cells.get(s.worst.cell) if s.worst else None
+    if w is None:
+        head = '<p class="headline">No finite margin: no criterion applies to any ply in any case.</p>'
+    else:
+        verdict = "negative: the worst ply fails" if (w.min_margin or 0) < 0 else "positive"
+        head = (f'<p class="headline">Minimum margin of safety <strong>{esc(sig(w.min_margin))}</strong> '
+                f"({esc(verdict)}) at cell {esc(w.cell)} in zone {esc(w.zone)} (laminate {esc(w.laminate)}), ply "
+                f"{esc(w.ply_text)}, case {esc(w.case)}, {esc(w.criterion)} ({esc(w.mode)}), {esc(w.point)} of "
+                "the ply.</p>")
+    key = table(["quantity", "value"], [
+        ["minimum margin of safety [-]", margin(w.min_margin if w else None)],
+        ["strength ratio there [-]", num(w.strength_ratio if w else None)],
+        ["cells with a negative margin", num(r.failing_cells)],
+        ["cells", num(r.n_cells)], ["cases", num(len(m.cases))],
+        ["cells flagged (non-finite resultants in some case; those cases skipped)", num(s.flagged_cells)]],
+        cls="summary")
+    parts = ['<section id="summary"><h2>Summary</h2>', head, key]
     if s.flagged_cells:
-        parts.append(f"<p>{esc(s.flagged_cells)} cells had NaN or infinite resultants in some case; those "
-                     f"cases were skipped there (e.g. cells {esc(list(s.flagged_examples[:10]))}).</p>")
+        parts.append(f'<p class="note">Flagged cells include {esc(", ".join(map(str, s.flagged_examples[:10])))}.'
+                     "</p>")
+    if s.notes:
+        parts.append("<h3>Notes about the mesh</h3><ul>" + "".join(f"<li>{esc(x)}</li>" for x in s.notes) + "</ul>")
+    parts.append(_minima(r))
     return "".join(parts) + "</section>"
 
 
+def _minima(r: ReportInputs) -> str:
+    m, s, c = r.meta, r.meta.summary, r.cells
+    zones = {z.name: z for z in m.zones}
+    rows = [[z.name, z.laminate, num(zones[z.name].cells if z.name in zones else None), margin(z.min_margin),
+             *_fact_columns(c.get(z.cell), ("zone",))] for z in s.zones]
+    out = ["<h3>By zone</h3>", table(["zone", "laminate", "cells", "min margin [-]", *_head(("zone",))], rows)]
+    lam_zones: dict[str, list[str]] = {}
+    for z in m.zones:
+        lam_zones.setdefault(z.laminate, []).append(z.name)
+    rows = [[lam.name, ", ".join(lam_zones.get(lam.name, [])), margin(lam.min_margin), *_fact_columns(c.get(lam.cell))]
+            for lam in s.laminates]
+    out += ["<h3>By laminate</h3>", table(["laminate", "zones", "min margin [-]", *_head()], rows)]
+    cases = {x.name: x for x in m.cases}
+    where = ("ply", "case", "criterion", "point")    # the cell's own governing state may be another case's
+    rows = [[x.name, cases[x.name].kind if x.name in cases else "", num(cases[x.name].factor_of_safety)
+             if x.name in cases else "", margin(x.min_margin), *_fact_columns(c.get(x.cell), where)]
+            for x in s.cases]
+    out += ["<h3>By case</h3>",
+            table(["case", "kind", "factor of safety [-]", "min margin [-]", *_head(where)], rows),
+            '<p class="note">A case with no mechanical load (a temperature change only) has no finite margin: the '
+            "strength ratio is the factor on the mechanical load with the thermal stress held (docs/conventions.md)."
+            "</p>" if any(x.min_margin is None for x in s.cases) else ""]
+    rows = [[x.name, margin(x.min_margin), *_fact_columns(c.get(x.cell), where)] for x in s.criteria]
+    out += ["<h3>By criterion</h3>", table(["criterion", "min margin [-]", *_head(where)], rows),
+            '<p class="note">By case and by criterion, the cell where the minimum occurs; the ply and failure mode '
+            "there are those of the hot-spot rows and profiles, which show every case and criterion.</p>"]
+    return "".join(out)
+
+
 def _hot_spots(r: ReportInputs) -> str:
-    keys = ("cell", "min_margin", "ply", "strength_ratio", "case", "point", "criterion", "mode")
-    rows = [[i + 1] + [getattr(h, k) for k in keys] for i, h in enumerate(r.meta.summary.hot_spots)]
+    m = r.meta
+    length = m.label("length")
+    zone_names = [z.name for z in m.zones]
+    rows = []
+    rank: dict[int, int] = {}
+    for h in r.hot:
+        f = r.cells.get(h.head)
+        rank[h.zone] = rank.get(h.zone, 0) + 1
+        x, y, z = f.centre if f else (None, None, None)
+        rows.append([zone_names[h.zone] if h.zone < len(zone_names) else h.zone, num(rank[h.zone]),
+                     f.laminate if f else "", num(h.head), num(h.size), margin(h.min_margin),
+                     num(f.strength_ratio if f else None), f.ply_text if f else "", f.case if f else "",
+                     f"{f.criterion} ({f.mode})" if f else "", f.point if f else "", num(x), num(y), num(z)])
     return ('<section id="hotspots"><h2>Hot spots</h2>'
-            + table(["rank", *keys], rows, numeric=(2, 4), cls="hotspots") + "</section>")
+            f'<p class="note">The worst places of each zone. A row gathers the touching cells whose strength ratio '
+            f"is within {esc(sig(100 * SAME, 2))} % of the worst one's (its head cell); the governing state and "
+            "the coordinates are those of the head cell.</p>"
+            + table(["zone", "rank", "laminate", "head cell", "cells", "min margin [-]", "strength ratio [-]",
+                     "critical ply: angle, material", "case", "criterion (mode)", "point", f"x [{length}]",
+                     f"y [{length}]", f"z [{length}]"], rows, cls="hotspots") + "</section>")
 
 
 def _figures(r: ReportInputs) -> str:
-    figs = "".join(f'<figure><img alt="{esc(cap)}" src="{data_uri(png)}"><figcaption>{esc(cap)}</figcaption>'
-                   f"</figure>" for cap, png in r.figures)
-    return f'<section id="pictures" class="page"><h2>Maps and through-thickness</h2><div class="maps">{figs}</div>' \
-           "</section>"
+    figs = "".join(f'<figure><img alt="{esc(f.caption)}" src="{data_uri(f.png)}"><figcaption>{esc(f.caption)}'
+                   "</figcaption></figure>" for f in r.figures)
+    return f'<section id="pictures" class="page"><h2>Maps and through-thickness</h2>{figs}</section>'
 
 
-def _json_cell(value: Any) -> str:
-    return value if isinstance(value, str) else json.dumps(value)
-
-
-def _inputs(r: ReportInputs) -> str:
-    m = r.meta
-    mats = [[x.name, x.kind, ", ".join([f"{p.key} = {_json_cell(p.value)}" for p in x.properties]
-                                       + [f"knockdown = {_json_cell(x.knockdown)}"])]
-            for x in m.materials]
-    secs = []
-    for s in m.sections:
-        plies = "; ".join(f"{i + 1}: {p.material} {p.angle:g}° × {p.thickness:g}" for i, p in enumerate(s.plies))
-        secs.append([s.id, s.laminate, s.thickness, s.offset, plies])
-    cases = [[c.name, c.kind, c.delta_T, c.pressure, c.factor_of_safety, ", ".join(c.held) or "none"]
-             for c in m.cases]
-    a = m.analysis
-    settings = [["criteria", _json_cell(list(a.criteria))],
-                ["factor_of_safety", _json_cell({f.name: f.value for f in a.factor_of_safety})],
-                ["transverse_shear", a.transverse_shear], ["shear_factor", _json_cell(a.shear_factor)],
-                ["wrinkling_coefficient", _json_cell(a.wrinkling_coefficient)], ["hot_spots", _json_cell(a.hot_spots)],
-                ["knockdown", "multiplies every allowable before R is solved; margin = R / factor of safety − 1"]]
-    settings += [[f"default: {d.material}, {d.criterion}", d.note] for d in a.defaults]
-    u = esc(m.units)
-    return ('<section id="inputs" class="page"><h2>Inputs</h2>'
-            f"<p>Units: <strong>{u}</strong> (stresses and properties in force/length² of that system, "
-            "lengths in its length unit, temperatures in its degree).</p>"
-            "<h3>Materials</h3>" + table(["material", "kind", "properties"], mats)
-            + "<h3>Laminates and sections</h3>"
-            + table(["section", "laminate", f"thickness [{m.units}: length]", "offset",
-                     "plies, bottom (1) to top: material angle × thickness"], secs, numeric=(2, 3))
-            + "<h3>Zones</h3>" + table(["zone id", "zone", "laminate"],
-                                      [[i, z.name, z.laminate] for i, z in enumerate(m.zones)])
-            + "<h3>Cases</h3>" + table(["case", "kind", "ΔT", "pressure", "factor of safety",
-                                        "held (fixed, not scaled)"], cases, numeric=(2, 3, 4))
-            + "<h3>Criteria and factors</h3>"
-            + table(["setting", "value"], settings)
-            + "</section>")
-
-
-def _provenance(r: ReportInputs) -> str:
-    m = r.meta
-    p = m.provenance
-    rows = [["tool", p.tool], ["tool_version", p.tool_version], ["created", p.created], ["store", r.store],
-            ["store layout", m.store_kind], ["conventions", m.conventions],
-            ["criteria evaluated", _json_cell(list(m.criteria_used))]]
-    files = [[f.role, f.path, f.sha256] for f in p.inputs]
-    return ('<section id="provenance"><h2>Provenance</h2>' + table(["item", "value"], rows)
-            + "<h3>Input files</h3>" + table(["role", "path", "SHA-256"], files, cls="mono") + "</section>")
+def _verification(rows: Sequence[Mapping] | None, open_details: bool = False) -> str:
+    if rows is None:
+        return ""
+    passed = sum(bool(x.get("pass")) for x in rows)
+    body = [[x.get("case", ""), x.get("source", ""), x.get("quantity", ""), num(x.get("expected")),
+             num(x.get("computed")), num(x.get("relative_error")), "yes" if x.get("pass") else "NO"] for x in rows]
+    failed = [x.get("case", "") for x in rows if not x.get("pass")]
+    verdict = (f'<p class="verdict-fail">{len(failed)} check(s) fail: {esc(", ".join(failed))}. Do not use these '
+               "results until they pass.</p>" if failed else "")
+    return ('<section id="verification"><h2>Verification</h2>'
+            f"<p>{passed} of {len(rows)} published checks of plybridge's mechanics pass in this installation "
+            "(the list run by <code>plybridge verify</code>).</p>" + verdict
+            + f"<details{' open' if open_details else ''}><summary>The checks, with their sources</summary>"
+            + table(["check", "source", "quantity", "expected", "computed", "relative error", "pass"], body)
+            + "</details></section>")
 
 
 def build_report(r: ReportInputs) -> str:
     """The complete HTML document of the report (see the module docstring)."""
-    caution = f'<div class="caution" role="note">Caution: {esc(CAUTION)}</div>'
     m = r.meta
+    caution = f'<div class="caution" role="note">Caution: {esc(m.caution)}</div>'
     header = (f'<header class="top"><h1>{esc(m.title)}: ply margins</h1><p>plybridge '
-              f"{esc(m.provenance.tool_version)}, {esc(m.provenance.created)}, units "
-              f"{esc(m.units)}</p></header>")
-    compare = ""
-    if r.compare_fragment:
-        compare = (f'<section id="compare" class="page"><h2>Comparison with the solver</h2>'
-                   f"{check_fragment(r.compare_fragment)}</section>")
-    body = "\n".join([header, caution, _summary(r), _hot_spots(r), _figures(r), compare, _inputs(r),
-                      _provenance(r), caution])
-    return PAGE.format(version=esc(m.provenance.tool_version), title=esc(f"{m.title}: plybridge report"),
-                       style=STYLE, body=body)
+              f"{esc(m.provenance.tool_version)}, run of {esc(m.provenance.created)}, unit system {esc(m.units)} "
+              f"(stress {esc(m.label('stress'))}, length {esc(m.label('length'))}, temperature change "
+              f"{esc(m.label('temperature'))})</p></header>")
+    compare = comparison_section(r.comparison, r.comparison_source) if r.comparison is not None else ""
+    body = "\n".join([header, caution, _summary(r), _hot_spots(r), _figures(r), compare,
+                      inputs_section(m, r.open_details), settings_section(m), _verification(r.verification, r.open_details),
+                      provenance_section(m, r.store), caution])
+    return page(f"{m.title}: plybridge report", m.provenance.tool_version, body)

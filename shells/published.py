@@ -2,7 +2,7 @@
 
 Each :class:`Published` case names its source (author, title, year, example or table), the quantity, the
 expected value, a relative tolerance and a function computing the value with the project's own ``shells``
-API. Values marked "from memory" were recalled and re-derived independently (see /work/shared/REFERENCES.md);
+API. Values marked "from memory" were recalled and re-derived independently;
 the tolerances allow for the rounding of the published figures. Units: MPa and mm; the quantities in GPa are
 divided by 1000 before comparison. Sources whose z points the other way are compared in magnitude.
 """

@@ -3,7 +3,7 @@
 Every builder returns a :class:`bridge.mesh.ShellMesh` whose cells are
 counter-clockwise seen from the side the normal points to (docs/conventions.md).
 The Gmsh writers exist because meshio's ASCII Gmsh writer is broken on numpy 2
-(meshio #1499, /work/shared/LIBRARY-NOTES.md); they follow the MSH 2.2 and 4.1
+(meshio issue #1499); they follow the MSH 2.2 and 4.1
 layouts of the Gmsh reference manual (section "MSH file format").
 """
 

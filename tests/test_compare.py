@@ -25,7 +25,7 @@ from bridge.recover.resultants import resultant_arrays
 from bridge.compare.solver_plies import read_solver_plies, solver_arrays
 from bridge.definition.solver_plies import parse_solver_plies
 from postproc.compare import element_to_material, material_to_element, reference_values
-from postproc.compare_report import compare_section_html
+from postproc.report_compare import comparison_section
 from postproc.diagnose import HYPOTHESES
 from shells.errors import DefinitionError, InputError
 from tests.meshes import flat_plate
@@ -339,11 +339,10 @@ def test_two_errors_in_two_zones(world):
     assert named == {"left": "ply-angle-sign", "right": "unit-factor"}
 
 
-def test_outputs_view_fragment_and_verdict_lines(world, tmp_path):
+def test_outputs_view_and_verdict_lines(world, tmp_path):
     path, solver = planted(world, "twisting-moment-sign")
     out = CliRunner().invoke(main, ["compare", str(path), str(world["dir"] / "mesh.vtu"), str(world["dir"] / "res.vtu"),
-                                    str(solver), "-o", str(tmp_path / "c.h5"), "--view", str(tmp_path / "v.vtu"),
-                                    "--fragment", str(tmp_path / "f.html")])
+                                    str(solver), "-o", str(tmp_path / "c.h5"), "--view", str(tmp_path / "v.vtu")])
     assert out.exit_code == 1
     assert out.stdout.splitlines()[0] == "verdict\tfail"
     assert "coverage\t" in out.stdout and "compare (scales)" in out.stderr
@@ -352,7 +351,9 @@ def test_outputs_view_fragment_and_verdict_lines(world, tmp_path):
     view = vtu.read(tmp_path / "v.vtu")
     d = np.asarray(view.cell_data["discrepancy"]).ravel()
     assert (d[world["left"]] > 1e-3).all() and (d[world["right"]] < 1e-9).all()
-    html = (tmp_path / "f.html").read_text()
+    from bridge.pictures.report import read_comparison
+
+    html = comparison_section(read_comparison(tmp_path / "c.h5"))
     assert "<section" in html and "<script" not in html.lower() and "twist" in html
     import h5py
     with h5py.File(tmp_path / "c.h5", "r") as h5:
@@ -369,7 +370,7 @@ def test_map_png(world, tmp_path):
     assert (tmp_path / "m.png").read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
 
 
-def test_fragment_escapes_every_string():
+def test_comparison_section_escapes_every_string():
     evil = "<script>alert(1)</script>"
     summary = {"verdict": "fail", "tolerance": 1e-3, "quantity": evil, "max_discrepancy": 1.0,
                "fraction_cells_within": 0.5, "compared_values": 10, "note": evil,
@@ -381,7 +382,7 @@ def test_fragment_escapes_every_string():
                "diagnosis": [{"zone": evil, "discrepancy": 1.0, "best": None,
                               "explained": [{"name": evil, "explanation": evil, "fix": evil, "residual": 0.0,
                                              "removed": 1.0}]}]}
-    html = compare_section_html(summary)
+    html = comparison_section(summary)
     assert "<script" not in html and "&lt;script&gt;" in html
 
 

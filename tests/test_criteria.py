@@ -1,6 +1,6 @@
 """Failure criteria against published examples and hand-derived closed forms.
 
-Sources (see /work/shared/REFERENCES.md):
+Sources:
 - Kaw, Mechanics of Composite Materials, 2nd ed., CRC 2006, ch. 2 (60° graphite/epoxy lamina,
   Table 2.1 data) — values from memory, re-derived below by hand.
 - Hashin, J. Applied Mechanics 47 (1980) 329–334; Puck & Schürmann, Compos. Sci. Tech. 62 (2002)

@@ -178,8 +178,8 @@ def demo_run(tmp_path_factory):
 def test_demo_runs_end_to_end(demo_run):
     out, proc = demo_run
     assert proc.returncode == 0, proc.stderr
-    lines = proc.stdout.strip().splitlines()
-    assert lines == [str(out / "report.html")]
+    lines = [line.split("\t") for line in proc.stdout.strip().splitlines()]
+    assert ["report", str(out / "report.html")] in lines and ["store", str(out / "results.h5")] in lines
     html = (out / "report.html").read_text(encoding="utf-8")
     assert "<html" in html.lower() and "qualified engineer" in html
     for name in ("margin.png", "critical-ply.png"):

@@ -136,7 +136,7 @@ def test_single_ply_shear_factor_and_parabola():
 
 @pytest.mark.parametrize("angles, expected", [
     # Energy-consistent factors for the Pagano material (Rolfes & Rohwer 1997 method; values from memory,
-    # re-derived independently and tabulated in ../shared/REFERENCES.md): [0/90/0] kx 0.583, ky 0.802;
+    # re-derived independently): [0/90/0] kx 0.583, ky 0.802;
     # [0/90]s kx 0.595, ky 0.720.
     ((0, 90, 0), (0.583, 0.802)),
     ((0, 90, 90, 0), (0.595, 0.720)),

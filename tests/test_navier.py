@@ -3,8 +3,7 @@
 Source: N. J. Pagano, Exact solutions for rectangular bidirectional composites and sandwich plates,
 J. Composite Materials 4 (1970) 20–34. Material E_L/E_T 25, G_LT/E_T 0.5, G_TT/E_T 0.2, nu 0.25, equal plies,
 square plate a = b, load q0 sin(πx/a) sin(πy/a), S = a/h. Thin-limit (classical) values from memory,
-re-derived by the Navier series, as tabulated in ../shared/REFERENCES.md; S = 4 exact value read in a table
-quoting Pagano (same file). Pagano's z points the other way (load on his top face): compare magnitudes.
+re-derived by the Navier series; S = 4 exact value as quoted from Pagano's table. Pagano's z points the other way (load on his top face): compare magnitudes.
 """
 
 from __future__ import annotations

@@ -30,11 +30,12 @@ def test_plot_writes_the_file(store, tmp_path, args, ext):
     assert head.startswith(b"\x89PNG") if ext == "png" else b"<svg" in out.read_bytes()
 
 
-def test_profile_from_plies_matches_the_hot_spot_route(store):
-    """Invariant: zone-2 cells carry equal resultants and sections, so they have equal states; in case a
-    (ΔT = 0) nothing is held fixed, so the failure index of the stored total state (the /plies route) must equal
-    the hot-spot 1/R."""
-    from bridge.pictures.plots import profile_of
+def test_every_route_to_a_profile_gives_the_same_states(store):
+    """Invariant: zone-2 cells carry equal resultants and sections, so they have equal states. A hot spot (stored
+    in /hotspots), a plain cell (recovered again from the inputs) must agree in both cases (b holds a temperature
+    change: the thermal part is held apart on both routes); in case a (ΔT = 0) nothing is held fixed, so the
+    failure index of the stored total state (/plies) must equal them too."""
+    from bridge.pictures.plots import _plies_route, _section_of_cell, profile_of
     from bridge.results.store import StoreReader
 
     with StoreReader(store) as st:
@@ -43,13 +44,20 @@ def test_profile_from_plies_matches_the_hot_spot_route(store):
         in_zone2 = [c for c in range(12) if zone[c] == 1]
         h = next(c for c in in_zone2 if c in hot)
         plain = next(c for c in in_zone2 if c not in hot)
-        a, _, _ = profile_of(st, h, "a")
-        b, _, case = profile_of(st, plain, "a")
-    assert case == "a" and len(b.ply_labels) == 8 and b.ply_labels[1].startswith("ply 2: 45°")
-    np.testing.assert_allclose(b.stress, a.stress, rtol=1e-9, atol=1e-9)
-    np.testing.assert_allclose(b.z, a.z)
-    for name in a.failure_index:
-        np.testing.assert_allclose(b.failure_index[name], a.failure_index[name], rtol=1e-9)
+        for case in ("a", "b"):
+            a, _, _, src_a = profile_of(st, h, case)
+            b, _, name, src_b = profile_of(st, plain, case)
+            assert (src_a, src_b, name) == ("stored", "recovered", case)
+            np.testing.assert_allclose(b.stress, a.stress, rtol=1e-9, atol=1e-9)
+            np.testing.assert_allclose(b.z, a.z)
+            for crit in a.failure_index:
+                np.testing.assert_allclose(b.failure_index[crit], a.failure_index[crit], rtol=1e-9)
+        stress, fi = _plies_route(st, plain, 0, _section_of_cell(st, plain))
+        a, _, _, _ = profile_of(st, h, "a")
+    assert len(b.plies) == 8 and b.labels("mm")[1].startswith("ply 2: 45°")
+    np.testing.assert_allclose(stress, a.stress, rtol=1e-9, atol=1e-9)
+    for crit in a.failure_index:
+        np.testing.assert_allclose(fi[crit], a.failure_index[crit], rtol=1e-9)
 
 
 def test_envelope_meets_the_axes_at_the_strengths():
@@ -65,18 +73,31 @@ def test_envelope_meets_the_axes_at_the_strengths():
     np.testing.assert_allclose(pts[:4], [[1500, 0], [0, 40], [-1500, 0], [0, -246]], atol=1e-9)
 
 
-def test_profile_needs_plies_for_a_cell_that_is_not_a_hot_spot(store, tmp_path):
+def test_a_cell_whose_inputs_are_gone_or_changed_is_refused(tmp_path):
+    """A plain cell is recovered again from the run's inputs; a moved or edited input is refused, not used."""
     import shutil
 
     import h5py
 
-    from bridge.results.store import StoreReader
+    from tests.test_render import build_store
 
-    env = tmp_path / "env.h5"
-    shutil.copy(store, env)
-    with h5py.File(env, "a") as h5:
+    store = build_store(tmp_path)          # a private copy: its inputs are changed below
+    folder = store.parent
+    with h5py.File(store, "a") as h5:
         del h5["plies"]
-    with StoreReader(store) as st:
-        plain = next(c for c in range(12) if c not in set(st.array("hotspots/cell").tolist()))
-    assert_one_line_error(run_cli("plot", env, "-o", tmp_path / "p.png", "--cell", plain), "--store plies")
+        plain = next(c for c in range(12) if c not in set(h5["hotspots/cell"][()].tolist()))
+    definition = folder / "def.toml"
+    definition.write_text(definition.read_text(encoding="utf-8") + "\n# edited\n", encoding="utf-8")
+    assert_one_line_error(run_cli("plot", store, "-o", tmp_path / "p.png", "--cell", plain), "has changed")
+    shutil.move(definition, tmp_path / "elsewhere.toml")
+    assert_one_line_error(run_cli("plot", store, "-o", tmp_path / "p.png", "--cell", plain), "not there")
+    assert not (tmp_path / "p.png").exists()
     assert_one_line_error(run_cli("plot", store, "-o", tmp_path / "p.pdf"), ".png or .svg")
+
+
+def test_an_envelope_with_no_curve_is_an_error(store, tmp_path):
+    """A core material in the σ1–σ2 plane gives no envelope: an error that says why, not an empty picture."""
+    out = tmp_path / "e.png"
+    assert_one_line_error(run_cli("plot", store, "-o", out, "--kind", "envelope", "--criteria", "core-shear"),
+                          "no", "envelope")
+    assert not out.exists()

@@ -146,3 +146,24 @@ def test_the_example_definition_recovers_without_edits(tmp_path):
     summary = json.loads(proc.stdout)
     assert "derived as strength / modulus" in summary["defaults"]["cf-ud"]["max-strain"]
     assert "strain limits" in proc.stderr and summary["worst"] is not None
+
+
+def test_view_writes_chosen_ply_fields(model, write_definition):
+    """Per-ply cell arrays match the store: margins per ply, σ1 at the top of each ply in its governing case."""
+    from bridge.mesh.formats.vtu import read as read_vtu
+
+    out, view = model / "v.h5", model / "fields.vtu"
+    proc = run_cli("recover", write_definition(DEF), model / "plate.vtu", model / "res.h5", "-o", out, "--store",
+                   "plies", "--view", view, "--view-fields", "min_margin,margin,sigma1@top,gamma12")
+    assert proc.returncode == 0, proc.stderr
+    data = {k: np.asarray(v).ravel() for k, v in read_vtu(view).cell_data.items()}
+    assert {"min_margin", "margin_ply01", "margin_ply08", "sigma1_top_ply01", "gamma12_ply08"} <= set(data)
+    with h5py.File(out) as h5:
+        np.testing.assert_array_equal(data["margin_ply02"], h5["envelope/margin"][:, 1])
+        case = h5["envelope/case"][:, 0]
+        want = h5["plies/stress"][()][case, np.arange(12), 0, 2, 0]
+    np.testing.assert_allclose(data["sigma1_top_ply01"], want)
+    assert_one_line_error(run_cli("recover", write_definition(DEF), model / "plate.vtu", model / "res.h5", "-o", out,
+                                  "--view", view, "--view-fields", "s1"), "retired", "'sigma1'")
+    assert_one_line_error(run_cli("recover", write_definition(DEF), model / "plate.vtu", model / "res.h5", "-o",
+                                  model / "w.h5", "--view", view, "--view-fields", "sigma1"), "--store plies")

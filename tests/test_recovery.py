@@ -96,8 +96,8 @@ KAW_PLAIN = Orthotropic("kaw", E1=181e3, E2=10.3e3, G12=7.17e3, nu12=0.28, Xt=15
 
 
 @pytest.mark.parametrize("name, expected", [
-    # Kaw (2006), Example 2.x, 60° lamina under (σx, σy, τxy) = (2, −3, 4) MPa (from memory, re-derived; also
-    # tabulated in ../shared/REFERENCES.md): max stress 16.33 (shear governs), Tsai-Hill 16.06, Tsai-Wu 22.39.
+    # Kaw (2006), Example 2.x, 60° lamina under (σx, σy, τxy) = (2, −3, 4) MPa (from memory, re-derived):
+    # max stress 16.33 (shear governs), Tsai-Hill 16.06, Tsai-Wu 22.39.
     ("max-stress", 16.33), ("tsai-hill", 16.06), ("tsai-wu", 22.39),
 ])
 def test_hand_recovery_of_kaw_lamina(name, expected):

@@ -2,13 +2,12 @@
 
 Check values are invariants: the colour a cell is drawn with must be the colour map's own value for the cell
 (postproc.colors.expected_colour; a face seen square-on under the headlight shows its map colour exactly), and
-legends must name what the store says governs (the run's own summary). The plate and the resultants are those of
-/tmp/run1 (tests/meshes.py flat_plate; uniform resultants per case).
+legends must name what the store says governs (the run's own summary). The plate is tests/meshes.py flat_plate
+with uniform resultants per case.
 """
 
 from __future__ import annotations
 
-import json
 import shutil
 from pathlib import Path
 
@@ -19,7 +18,7 @@ import pytest
 from tests.common import KAW_PLY_TOML, assert_one_line_error, run_cli
 from tests.meshes import flat_plate
 
-#: The /tmp/run1 definition, with a material named like a script (escaped in the report) and 2 hot spots.
+#: A two-zone plate definition, with a material named like a script (escaped in the report) and 2 hot spots.
 EVIL = "<script>alert(1)</script>"
 DEFINITION = f"""units = "N-mm"
 [analysis]
@@ -54,7 +53,7 @@ kind = "ultimate"
 delta_T = -100
 """
 RESULTANTS = np.array([[2.0, -3.0, 4.0, 0.0, 0.0, 0.0, 0.0, 0.0], [2.0, -3.0, 4.0, 0.5, 0.0, 0.0, 0.0, 3.0]])
-TOL = 12  # of 255: software / hardware OpenGL and the 256-entry lookup table (LIBRARY-NOTES: never by hash)
+TOL = 12  # of 255: software / hardware OpenGL and the 256-entry colour table (compare colours, never image hashes)
 
 
 def build_store(base: Path) -> Path:
@@ -143,20 +142,22 @@ def test_no_value_cells_are_grey_and_named_in_the_legend():
 
 
 @pytest.mark.parametrize("field, names", [
-    ("critical-ply", ["ply 1", "ply 4"]),  # the summary's hot spots: zone-1 ply 1, zone-2 ply 4
+    # the summary's hot spots: zone-1 ply 1 (the single 60° ply of laminate one), zone-2 ply 4 (the 90° of qi)
+    ("critical-ply", ["ply 1: 60° <script>alert(1)</script>, one (zone-1)",
+                      "ply 4: 90° <script>alert(1)</script>, qi (zone-2)"]),
     ("case", ["a", "b"]),
     ("criterion", ["hashin"]),
     # zone 1, Kaw's 60° lamina: Hashin's fibre-tension form (σ1/Xt)² + (τ12/S12)² = 1 first (R 16.32); matrix
     # compression comes later since S_T from the fracture plane (0.377·Yc) makes compression raise the shear
     # strength. Zone 2: matrix tension.
-    ("mode", ["hashin: matrix tension", "hashin: fibre tension"]),
+    ("mode", ["matrix tension, hashin", "fibre tension, hashin"]),
 ])
 def test_categorical_legends_list_the_names(store, tmp_path, field, names):
     from bridge.pictures.render import render_store
 
     drawn = render_store(store, tmp_path / "map.png", field=field, size=(320, 240))
     labels = [label for label, _ in drawn["legend"]]
-    assert sorted(labels[:-1]) == sorted(names) and labels[-1].startswith("worst: ")
+    assert sorted(labels[:-1]) == sorted(names) and labels[-1].startswith("ringed: the worst cell")
     assert (tmp_path / "map.png").read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
 
 
@@ -175,11 +176,11 @@ def test_margin_map_marks_the_worst_cell_and_writes_cell_data(store, tmp_path):
 
 
 def test_ply_stress_at_a_case_and_ply(store, tmp_path):
-    from bridge.pictures.render import select_field
+    from bridge.pictures.fields import select_field
     from bridge.results.store import StoreReader
 
     with StoreReader(store) as st:
-        f = select_field(st, "stress:s2", ply=2, case="b")
+        f = select_field(st, "sigma2", ply=2, case="b")
         s2 = st.array("plies/stress")[1, :, 1, :, 1]
     assert np.isnan(f.values[:6]).all()  # zone-1 has one ply: no ply 2
     np.testing.assert_allclose(f.values[6:], s2[6:, np.argmax(np.abs(s2[6]))])
@@ -190,15 +191,17 @@ def test_cli_several_views_and_a_camera(store, tmp_path):
     proc = run_cli("render", store, "-o", out, "--field", "strength-ratio", "--view", "iso", "--view", "top",
                    "--camera", "1,0.5,6;1,0.5,0;0,1,0", "--size", "600x200")
     assert proc.returncode == 0, proc.stderr
-    assert json.loads(proc.stdout)["field"] == "strength-ratio"
+    assert "field\tstrength-ratio\n" in proc.stdout and "views\tiso\nviews\ttop\nviews\tcamera\n" in proc.stdout
     import matplotlib.image as mpimg
 
     assert mpimg.imread(out).shape[:2] == (200, 600)
 
 
 def test_cli_errors_are_one_line(envelope_store, store, tmp_path):
-    assert_one_line_error(run_cli("render", envelope_store, "-o", tmp_path / "x.png", "--field", "stress:s1"),
+    assert_one_line_error(run_cli("render", envelope_store, "-o", tmp_path / "x.png", "--field", "sigma1"),
                           "--store plies")
+    assert_one_line_error(run_cli("render", store, "-o", tmp_path / "x.png", "--field", "stress:s1"),
+                          "retired", "'sigma1'")
     assert_one_line_error(run_cli("render", store, "-o", tmp_path / "x.png", "--case", "zz"), "'zz'", "a, b")
     assert_one_line_error(run_cli("render", store, "-o", tmp_path / "x.png", "--size", "big"), "WIDTHxHEIGHT")
     assert not (tmp_path / "x.png").exists()

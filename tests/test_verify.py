@@ -1,7 +1,7 @@
 """The built-in published cases (bridge.recover.published.all_cases): the same list ``plybridge verify`` runs.
 
-Every value, its source and its tolerance are in shells/published.py, shells/published_sections.py and
-bridge/recover/published.py; the test parametrises over that one list.
+Every value, its source (the publication) and its tolerance are in shells/published.py,
+shells/published_sections.py and bridge/recover/published.py; the test parametrises over that one list.
 """
 
 from __future__ import annotations

@@ -15,13 +15,8 @@ def sections_path(output: str | Path) -> Path:
     return out.with_name(out.name + ".sections.json")
 
 
-@click.command(help="Assign laminates to the zones of MESH, orient them and write per-cell section fields "
-                    "(element frame; docs/fields.md) to OUTPUT (.vtu or .xdmf), with the section table in "
-                    "laminate axes beside it as OUTPUT.sections.json (e.g. assigned.vtu.sections.json).")
-@click.argument("definition", type=click.Path(dir_okay=False))
-@click.argument("mesh", type=click.Path(dir_okay=False))
-@click.option("-o", "--output", required=True, type=click.Path(dir_okay=False), help="Output mesh (.vtu, .xdmf).")
-def assign(definition: str, mesh: str, output: str) -> None:
+def run_assign(definition: str, mesh: str, output: str) -> dict:
+    """Assign and write ``output`` and its section table; returns what was written (counts per zone)."""
     from bridge.atomic import atomic_path
     from bridge.definition.loader import load_definition
     from bridge.guards import guard_outputs
@@ -46,3 +41,19 @@ def assign(definition: str, mesh: str, output: str) -> None:
     counts = ", ".join(f"{k}: {v}" for k, v in describe(model).items())
     click.echo(printable(f"assigned {model.n_cells} cells ({counts}); wrote {output} and {sections_path(output)}"),
                err=True)
+    return {"output": output, "sections_table": str(sections_path(output)), "cells": model.n_cells,
+            "sections": len(model.sections), "zone": [[name, count] for name, count in describe(model).items()]}
+
+
+@click.command(help="Assign laminates to the zones of MESH, orient them and write per-cell section fields "
+                    "(element frame; docs/fields.md) to OUTPUT (.vtu or .xdmf), with the section table in "
+                    "laminate axes beside it as OUTPUT.sections.json (e.g. assigned.vtu.sections.json). Prints "
+                    "what was written (key<TAB>value lines, or --json).")
+@click.argument("definition", type=click.Path(dir_okay=False))
+@click.argument("mesh", type=click.Path(dir_okay=False))
+@click.option("-o", "--output", required=True, type=click.Path(dir_okay=False), help="Output mesh (.vtu, .xdmf).")
+@click.option("--json", "as_json", is_flag=True, help="Print the summary as one JSON object.")
+def assign(definition: str, mesh: str, output: str, as_json: bool) -> None:
+    from bridge.commands.summary import echo_summary
+
+    echo_summary(run_assign(definition, mesh, output), as_json)

@@ -24,8 +24,6 @@ from shells.defaults import CAUTION
               help="Largest relative difference accepted (relative to each ply component's value scale).")
 @click.option("--view", type=click.Path(dir_okay=False), help="Also write the per-cell discrepancy (.vtu/.xdmf).")
 @click.option("--map", "map_png", type=click.Path(dir_okay=False), help="Also render the discrepancy as a PNG.")
-@click.option("--fragment", type=click.Path(dir_okay=False),
-              help="Also write the HTML section for plybridge report --compare.")
 @click.option("--json", "as_json", is_flag=True, help="Print the full summary as JSON instead.")
 @click.option("--resultants", "more", multiple=True, type=click.Path(dir_okay=False),
               help="Another resultants file (repeatable); files are merged by case name.")
@@ -35,7 +33,7 @@ from shells.defaults import CAUTION
               help="Compute on a running dask cluster, e.g. tcp://10.0.0.5:8786 (docs/scale.md).")
 @click.option("--block-cells", type=int, default=None, help="Cells per block (default: about 16 MiB of values).")
 @click.option("--quiet", is_flag=True, help="No progress on stderr.")
-def compare(definition, mesh, resultants, solver_plies, output, tolerance, view, map_png, fragment, as_json, more,
+def compare(definition, mesh, resultants, solver_plies, output, tolerance, view, map_png, as_json, more,
             workers, scheduler, block_cells, quiet):
     from bridge.commands.recover import _progress
     from bridge.compare.run import run_compare, verdict_lines
@@ -43,14 +41,14 @@ def compare(definition, mesh, resultants, solver_plies, output, tolerance, view,
 
     guard_outputs({"definition": definition, "mesh": mesh, "resultants": [resultants, *more],
                    "solver ply values": list(solver_plies)},
-                  {"-o": output, "--view": view, "--map": map_png, "--fragment": fragment})
+                  {"-o": output, "--view": view, "--map": map_png})
     printers = {}
 
     def progress(stage: str, done: int, total: int) -> None:
         printers.setdefault(stage, _progress(f"compare ({stage})"))(done, total)
 
     summary = run_compare(definition, mesh, [resultants, *more], list(solver_plies), output, tolerance, view,
-                          map_png, fragment, workers=workers, scheduler=scheduler, block_cells=block_cells,
+                          map_png, workers=workers, scheduler=scheduler, block_cells=block_cells,
                           progress=None if quiet else progress)
     from bridge.cli import safe_lines
 

@@ -15,7 +15,6 @@ ASSIGNED_NAME = "bay-assigned.vtu"
 STORE_NAME = "results.h5"
 MAPS = (("margin", "margin.png"), ("critical-ply", "critical-ply.png"))
 REPORT_NAME = "report.html"
-MAP_SIZE = (1600, 800)
 
 
 def _note(start: float, text: str) -> None:
@@ -25,26 +24,27 @@ def _note(start: float, text: str) -> None:
 @click.command(help="Run the bundled demo: a battery bay of a small electric aircraft (sandwich floor and lid, "
                     "monolithic walls, four load cases; invented data, docs/demo.md). Writes the definition, mesh "
                     "and resultants into OUT, then runs assign, recover, render and report there. Prints the "
-                    "report's path on stdout; progress on stderr. " + CAUTION)
+                    "paths written and the worst margin (key<TAB>value lines, or --json); progress on stderr. " + CAUTION)
 @click.option("--out", "out_dir", default="demo-out", show_default=True, type=click.Path(file_okay=False),
               help="Output folder (created if missing; existing demo files are replaced).")
-def demo(out_dir: str) -> None:
+@click.option("--json", "as_json", is_flag=True, help="Print the summary as one JSON object.")
+def demo(out_dir: str, as_json: bool) -> None:
     os.environ.setdefault("VTK_DEFAULT_OPENGL_WINDOW", "vtkEGLRenderWindow")
     from bridge.atomic import write_text
     from bridge.demo import write_inputs
-    from bridge.demo.geometry import camera_below
     from bridge.recover.run import run_recover
     from postproc.summary import hot_spots_csv
 
-    from bridge.commands.assign import assign
+    from bridge.commands.assign import run_assign
     from bridge.commands.recover import _progress, sidecar
+    from bridge.commands.summary import echo_summary
 
     start = time.perf_counter()
     out = Path(out_dir)
     inputs = write_inputs(out)
     _note(start, f"wrote {inputs.definition}, {inputs.mesh} and {inputs.resultants}")
-    click.get_current_context().invoke(assign, definition=str(inputs.definition), mesh=str(inputs.mesh),
-                                       output=str(out / ASSIGNED_NAME))
+    run_assign(str(inputs.definition), str(inputs.mesh), str(out / ASSIGNED_NAME))
+    _note(start, f"wrote {out / ASSIGNED_NAME}")
     store = out / STORE_NAME
     summary = run_recover(str(inputs.definition), str(inputs.mesh), [str(inputs.resultants)], str(store),
                           store_plies=False, progress=_progress())
@@ -57,9 +57,10 @@ def demo(out_dir: str) -> None:
     from bridge.pictures.report import write_report
 
     for field, name in MAPS:
-        render_store(store, out / name, field=field, views=("iso", camera_below()), size=MAP_SIZE)
+        render_store(store, out / name, field=field, views=("iso", "worst"))
         _note(start, f"wrote {out / name}")
     report = out / REPORT_NAME
     write_report(store, report)
     _note(start, f"wrote {report}")
-    click.echo(str(report))
+    echo_summary({"report": str(report), "store": str(store), "maps": [str(out / name) for _, name in MAPS],
+                  "min_margin": w.get("min_margin"), "cell": w.get("cell"), "case": w.get("case")}, as_json)

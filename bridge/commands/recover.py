@@ -53,7 +53,13 @@ def summary_lines(summary: dict, units: str) -> str:
 @click.option("--store", "store_kind", type=click.Choice(["envelope", "plies"]), default=None,
               help="'plies' also stores every ply stress and strain of every case (default: envelope; "
                    "with --resume, as the interrupted run).")
-@click.option("--view", type=click.Path(dir_okay=False), help="Also write the envelope as cell data (.vtu/.xdmf).")
+@click.option("--view", type=click.Path(dir_okay=False),
+              help="Also write the results as named cell arrays of the mesh (.vtu/.xdmf) for a VTK viewer.")
+@click.option("--view-fields", default=None, metavar="LIST",
+              help="Comma-separated fields for --view (docs/fields.md): per cell min_margin, critical_ply, "
+                   "strength_ratio, case, criterion, mode, point, flagged, zone; per ply margin, strength_ratio, "
+                   "ply_case, ply_criterion, ply_mode, ply_point; ply components such as sigma1@top, tau12, eps1 "
+                   "(need --store plies). Default: the per-cell fields and margin.")
 @click.option("--hot-spots", "hot_path", type=click.Path(dir_okay=False),
               help="Hot-spot CSV (default: OUTPUT.hotspots.csv beside the store).")
 @click.option("--json", "as_json", is_flag=True, help="Print the full summary as JSON instead.")
@@ -68,17 +74,22 @@ def summary_lines(summary: dict, units: str) -> str:
 @click.option("--resume", is_flag=True,
               help="Continue an interrupted run of OUTPUT with the same inputs and options (remembered); finished "
                    "blocks are checked against their checksums and kept.")
-def recover(definition, mesh, resultants, output, store_kind, view, hot_path, as_json, quiet, workers,
+def recover(definition, mesh, resultants, output, store_kind, view, view_fields, hot_path, as_json, quiet, workers,
             scheduler, block_cells, resume) -> None:
     from bridge.atomic import write_text
     from bridge.guards import guard_outputs
     from bridge.recover.run import run_recover
     from bridge.results.partial import partial_paths
-    from bridge.results.view import write_view
+    from bridge.results.view import needs_plies, parse_fields, write_view
     from postproc.summary import hot_spots_csv
 
     if view and not view.lower().endswith((".vtu", ".xdmf")):
         raise InputError(f"--view {view}: write a .vtu or .xdmf file")
+    if view_fields is not None and not view:
+        raise InputError("--view-fields needs --view OUT.vtu (the file the fields go to)")
+    entries = parse_fields(view_fields)
+    if needs_plies(entries) and store_kind != "plies" and not resume:
+        raise InputError("--view-fields: ply components need the ply states; add --store plies")
     hot_path = hot_path or sidecar(output, ".hotspots.csv")
     guard_outputs({"definition": definition, "mesh": mesh, "resultants": list(resultants)},
                   {"-o": output, "--hot-spots": hot_path, "--view": view}, {"-o": partial_paths(output)})
@@ -96,7 +107,7 @@ def recover(definition, mesh, resultants, output, store_kind, view, hot_path, as
         raise
     write_text(hot_path, hot_spots_csv(summary))
     if view:
-        write_view(output, view)
+        write_view(output, view, entries)
     from bridge.results.store import StoreReader
 
     with StoreReader(output) as st:

@@ -225,7 +225,7 @@ def write_map(path: str, model: Model, discrepancy: np.ndarray, title: str) -> N
 
 def run_compare(definition: str, mesh_path: str, resultants: Sequence[str], solver_plies: Sequence[str],
                 output: str, tolerance: float = DEFAULT_TOLERANCE, view: str | None = None,
-                map_png: str | None = None, fragment: str | None = None, *, workers: int | None = None,
+                map_png: str | None = None, *, workers: int | None = None,
                 scheduler: str | None = None, client=None, progress: Progress | None = None,
                 block_cells: int | None = None) -> dict:
     """Run a comparison and write its outputs; returns the summary (``verdict`` is ``pass`` or ``fail``).
@@ -239,17 +239,15 @@ def run_compare(definition: str, mesh_path: str, resultants: Sequence[str], solv
         The comparison file (docs/compare.md).
     tolerance : float
         Largest relative difference accepted.
-    view, map_png, fragment : str, optional
-        Also write the per-cell discrepancy as a mesh, a picture, the report's HTML section.
+    view, map_png : str, optional
+        Also write the per-cell discrepancy as a mesh and as a picture. The report shows a comparison by
+        reading ``output`` (``plybridge report --compare``): the summary is data the report renders itself.
     workers, scheduler, client
         Where the blocks are computed, as for ``recover`` (:func:`bridge.recover.distributed.open_runner`).
     progress : callable(pass name, done cells, total cells), optional
     block_cells : int, optional
         Cells per block (default: about 16 MiB of ply values per block).
     """
-    from postproc.compare_report import compare_section_html
-
-    from bridge.atomic import write_text
     from bridge.mesh.formats import write_mesh
     from bridge.recover.distributed import check_workers, open_runner
     from bridge.recover.run import check_block_cells
@@ -272,8 +270,6 @@ def run_compare(definition: str, mesh_path: str, resultants: Sequence[str], solv
                                           "worst_ply": cmp.cell_worst[:, 1] + 1})
     if map_png:
         write_map(map_png, inp.model, cmp.cell_discrepancy, f"{inp.defn.title}: solver vs plybridge")
-    if fragment:
-        write_text(fragment, compare_section_html(summary))
     return summary
 
 

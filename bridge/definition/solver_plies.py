@@ -33,6 +33,7 @@ from typing import Any, Mapping
 import numpy as np
 
 from postproc.compare import POINTS
+from shells.components import ELEMENT_STRAIN, ELEMENT_STRESS, MATERIAL_STRAIN, MATERIAL_STRESS
 from shells.errors import DefinitionError
 
 from bridge.definition.schema import check_keys, expect_table
@@ -42,10 +43,8 @@ KEYS = ("pattern", "locations", "ply_base", "ply_order", "points", "axes", "vect
         "shear", "scale")
 AXES = ("material", "element", "laminate", "vectors", "global")
 #: Component names by quantity and kind of axes, in slot order (1, 2, 12, 13, 23) / (x, y, xy, xz, yz).
-NAMES = {("stress", "material"): ("sigma1", "sigma2", "tau12", "tau13", "tau23"),
-         ("strain", "material"): ("eps1", "eps2", "gamma12", "gamma13", "gamma23"),
-         ("stress", "plane"): ("sigma_x", "sigma_y", "tau_xy", "tau_xz", "tau_yz"),
-         ("strain", "plane"): ("eps_x", "eps_y", "gamma_xy", "gamma_xz", "gamma_yz")}
+NAMES = {("stress", "material"): MATERIAL_STRESS, ("strain", "material"): MATERIAL_STRAIN,
+         ("stress", "plane"): ELEMENT_STRESS, ("strain", "plane"): ELEMENT_STRAIN}
 _OLD = re.compile(r"^[se](1|2|12|13|23|x|y|xy|xz|yz)$")
 SKIP = "_"
 _PLACEHOLDER = re.compile(r"\{(\w*)\}")

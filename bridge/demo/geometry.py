@@ -130,10 +130,3 @@ def panel_of_cells(mesh: ShellMesh, s: Scenario = DEMO) -> np.ndarray:
     tag = np.asarray(mesh.cell_data[TAG_ARRAY]).reshape(-1)
     lookup = {p.tag: k for k, p in enumerate(panels(s))}
     return np.array([lookup[int(t)] for t in tag], dtype=np.int64)
-
-
-def camera_below(s: Scenario = DEMO) -> tuple[tuple[float, ...], tuple[float, ...], tuple[float, ...]]:
-    """An explicit camera (position, focal point, view-up) looking up at the floor from fore, port and below."""
-    c = np.asarray(s.centre)
-    d = np.array([1.0, -1.0, -0.8]) / np.linalg.norm([1.0, -1.0, -0.8])
-    return _t(c + 3.2 * max(s.size) * d), _t(c), (0.0, 0.0, 1.0)

@@ -7,10 +7,10 @@ from pathlib import Path
 
 import numpy as np
 
-from shells.errors import InputError
+from shells.errors import InputError, StoreError
 
 from bridge.atomic import atomic_path
-from bridge.pictures.render import FieldError, _case_index
+from bridge.pictures.fields import FieldError, case_index
 from bridge.results.store import StoreReader
 
 
@@ -35,34 +35,15 @@ def _cell_case(st: StoreReader, cell: int | None, case: str | None) -> tuple[int
     if case is None:
         k = int(st.h5["cells/case"][cell])
         return cell, max(k, 0)
-    k = _case_index(st, case)
+    k = case_index(st, case)
     return cell, 0 if k is None else k
 
 
-def profile_of(st: StoreReader, cell: int | None = None, case: str | None = None):
-    """(Profile, cell, case name) of a cell (default the worst) in a case (default its governing one).
-
-    From /hotspots when the cell is a hot spot (exact failure indices, thermal part held), else from /plies
-    (failure indices of the stored total state, nothing held).
-    """
-    from postproc.plots import Profile
+def _plies_route(st: StoreReader, cell: int, k: int, sec) -> tuple[np.ndarray, dict]:
+    """(total stress (nply, 3, 5), failure indices) of a cell from /plies (nothing held fixed)."""
     from shells.criteria import by_name, failure_index
 
-    cell, k = _cell_case(st, cell, case)
-    sec = _section_of_cell(st, cell)
     nply = len(sec.plies)
-    labels = [f"ply {i + 1}: {p.angle:g}° {p.material}" for i, p in enumerate(sec.plies)]
-    hot = list(st.array("hotspots/cell")) if st.has("hotspots/cell") else []
-    if cell in hot:
-        h = hot.index(cell)
-        total = st.h5["hotspots/mech"][k, h, :nply] + st.h5["hotspots/fixed"][k, h, :nply]
-        names = [c.decode() if isinstance(c, bytes) else str(c) for c in st.array("hotspots/criteria")]
-        fi = {n: failure_index(st.h5["hotspots/ratio"][j, k, h, :nply]) for j, n in enumerate(names)}
-        z = st.h5["hotspots/z"][h, :nply]
-        return Profile(z, total[..., :5], fi, np.asarray(sec.interfaces), labels), cell, st.case_names[k]
-    if not st.has("plies"):
-        raise FieldError(f"cell {cell} is not a hot spot and the store has no /plies; run plybridge recover "
-                         "with --store plies (or plot a hot-spot cell)", st.path)
     state = np.zeros((nply, 3, 6))
     state[..., :3] = st.h5["plies/stress"][k, cell, :nply]
     state[..., 3:5] = st.h5["plies/transverse_shear"][k, cell, :nply]
@@ -72,22 +53,57 @@ def profile_of(st: StoreReader, cell: int | None = None, case: str | None = None
         ratio = by_name(name).ratio
         fi[name] = failure_index(np.array([[ratio(state[i, j], np.zeros(6), params[i])[0] for j in range(3)]
                                            for i in range(nply)]))
+    return state[..., :5], fi
+
+
+def profile_of(st: StoreReader, cell: int | None = None, case: str | None = None):
+    """(Profile, cell, case name, source) of a cell (default the worst) in a case (default its governing one).
+
+    ``source`` is ``stored`` (a hot spot or a zone's worst cell: /hotspots), ``recovered`` (the cell recovered
+    again from the run's inputs) or ``plies`` (from /plies when the inputs are gone: failure indices of the
+    stored total state, nothing held fixed).
+    """
+    from postproc.profile import Profile
+    from shells.criteria import failure_index
+
+    from bridge.pictures.cellstate import cell_states
+
+    cell, k = _cell_case(st, cell, case)
+    sec = _section_of_cell(st, cell)
+    kind = {m.name: m.kind for m in st.run.materials}
+    plies, kinds = sec.plies, tuple(kind.get(p.material, "ply") for p in sec.plies)
     zi = np.asarray(sec.interfaces)
-    z = np.column_stack([zi[:-1], 0.5 * (zi[:-1] + zi[1:]), zi[1:]])
-    return Profile(z, state[..., :5], fi, zi, labels), cell, st.case_names[k]
+    try:
+        s = cell_states(st, cell)
+    except StoreError as err:
+        if not st.has("plies"):
+            raise FieldError(f"cell {cell} is not stored in full and cannot be recovered again: {err.detail}",
+                             st.path) from None
+        stress, fi = _plies_route(st, cell, k, sec)
+        z = np.column_stack([zi[:-1], 0.5 * (zi[:-1] + zi[1:]), zi[1:]])
+        return Profile(z, stress, fi, zi, plies, kinds), cell, st.case_names[k], "plies"
+    total = s.mech[k] + s.fixed[k]
+    fi = {name: failure_index(r[k]) for name, r in s.ratio.items()}
+    return Profile(s.z, total[..., :5], fi, zi, plies, kinds), cell, st.case_names[k], s.source
 
 
-def _stress_unit(st: StoreReader) -> str:
-    return st.run.label("stress")
+def profile_figure_of(st: StoreReader, cell: int | None = None, case: str | None = None,
+                      axis: str | None = None):
+    """(figure, what was plotted) of the through-thickness profile of a cell."""
+    from postproc.profile import profile_figure
 
-
-def profile_figure_of(st: StoreReader, cell: int | None = None, case: str | None = None):
-    from postproc.plots import profile_figure
-
-    prof, cell, name = profile_of(st, cell, case)
+    prof, cell, name, source = profile_of(st, cell, case)
     zone = st.run.zones[int(st.h5["model/zone"][cell])].name
-    return profile_figure(prof, title=f"Through-thickness: cell {cell} ({zone}, laminate "
-                          f"{_section_of_cell(st, cell).laminate}), case {name}", stress_unit=_stress_unit(st))
+    laminate = _section_of_cell(st, cell).laminate
+    axis = axis or prof.default_axis()
+    try:
+        fig = profile_figure(prof, title=f"Through the thickness: cell {cell} (zone {zone}, laminate {laminate}), "
+                             f"case {name}", stress_unit=st.run.label("stress"), length_unit=st.run.label("length"),
+                             axis=axis)
+    except ValueError as err:
+        raise FieldError(f"--kind profile --cell {cell} --case {name}: {err}", st.path) from None
+    return fig, {"cell": cell, "case": name, "zone": zone, "laminate": laminate, "axis": axis, "source": source,
+                 "plies": len(prof.plies)}
 
 
 @dataclass(frozen=True)
@@ -117,7 +133,8 @@ def _polar(st: StoreReader, laminate: str | None):
     stiffness = StoredStiffness(*(st.section_matrix(k, sec.id) for k in "ABD"), sec.thickness, sec.offset)
     angles = np.linspace(0.0, 360.0, 361)
     e = polar_moduli(stiffness, angles)
-    return polar_figure(angles, e["membrane"], e["flexural"], title=f"Laminate {laminate}", unit=_stress_unit(st))
+    fig = polar_figure(angles, e["membrane"], e["flexural"], title=f"Laminate {laminate}", unit=st.run.label("stress"))
+    return fig, {"laminate": laminate}
 
 
 def _envelope(st: StoreReader, material: str | None, criteria: str | None, cell: int | None):
@@ -133,31 +150,46 @@ def _envelope(st: StoreReader, material: str | None, criteria: str | None, cell:
     curves = {n: [trace_envelope(by_name(n).ratio, p, plane) for plane, _, _ in ENVELOPE_PLANES] for n in names}
     states, label = None, ""
     if cell is not None:
-        prof, cell, case = profile_of(st, cell, None)
+        prof, cell, case, _ = profile_of(st, cell, None)
         plies = [i for i, q in enumerate(_section_of_cell(st, cell).plies) if q.material == material]
         states = np.concatenate([np.pad(prof.stress[i], ((0, 0), (0, 1))) for i in plies]) if plies else None
         label = f"cell {cell}, case {case}: plies of {material}"
-    return envelope_figure(curves, states, title=f"Failure envelopes of {material}", unit=_stress_unit(st),
-                           states_label=label)
+    try:
+        fig = envelope_figure(curves, states, title=f"Failure envelopes of {material}", unit=st.run.label("stress"),
+                              states_label=label)
+    except ValueError as err:
+        raise FieldError(f"--kind envelope --material {material}: {err}; choose a ply material or other "
+                         "--criteria", st.path) from None
+    return fig, {"material": material, "criteria": ",".join(curves), "cell": cell}
 
 
 def plot_store(store_path: str | Path, output: str | Path, kind: str = "profile", cell: int | None = None,
                case: str | None = None, laminate: str | None = None, material: str | None = None,
-               criteria: str | None = None) -> None:
-    """Write a profile, polar or envelope figure of the store to ``output`` (.png or .svg, atomically)."""
+               criteria: str | None = None, axis: str | None = None) -> dict:
+    """Write a profile, polar or envelope figure of the store to ``output`` (.png or .svg, atomically).
+
+    Returns
+    -------
+    dict
+        ``output``, ``kind`` and what was plotted (cell, case, zone, laminate, axis, source of the states; the
+        laminate of a polar plot; the material and criteria of an envelope).
+    """
     from postproc.plots import save_figure
 
     fmt = Path(output).suffix.lower().lstrip(".")
     if fmt not in ("png", "svg"):
         raise InputError("write a .png or .svg figure", str(output))
+    if axis not in (None, "index", "z"):
+        raise InputError(f"--axis {axis!r}: use index (each ply the same height) or z (true z)")
     with StoreReader(store_path) as st:
         if kind == "profile":
-            fig = profile_figure_of(st, cell, case)
+            fig, info = profile_figure_of(st, cell, case, axis)
         elif kind == "polar":
-            fig = _polar(st, laminate)
+            fig, info = _polar(st, laminate)
         elif kind == "envelope":
-            fig = _envelope(st, material, criteria, cell)
+            fig, info = _envelope(st, material, criteria, cell)
         else:
             raise InputError(f"--kind {kind!r}: use profile, polar or envelope")
     with atomic_path(output) as tmp:
         save_figure(fig, tmp, fmt)
+    return {"output": str(output), "kind": kind, **info}

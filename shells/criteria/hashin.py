@@ -1,7 +1,7 @@
 """Hashin (1980) criterion with its four modes.
 
 Statement (Hashin, J. Applied Mechanics 47 (1980) 329–334), 3-D form, which
-for σ3 = 0 (plane-stress CLT) is the form of the brief:
+for σ3 = 0 (plane-stress CLT) reduces to the familiar plane form:
 
 - fibre tension, σ1 > 0: ``(σ1/Xt)² + (τ12² + τ13²)/S12² = 1``;
 - fibre compression, σ1 < 0: ``−σ1 = Xc``;

@@ -18,7 +18,7 @@ strengths Y_T = p[YT_IS], S_L = p[S12_IS]. Derived, as in the paper:
   form; ``<|τ12m| + η_L σ2m>/S_L = 1`` when σ2m < 0, else the matrix-tension
   form on (σ2m, τ12m).
 
-Where the spec was silent: the fracture toughness ratio g = G_Ic/G_IIc of #1 and
+Where the papers leave a choice open: the fracture toughness ratio g = G_Ic/G_IIc of #1 and
 #5 is not in the property vector and is taken as 1 (quadratic interaction).
 Exposures are written as degree-1 forms (square roots of the quadratic
 indices, failure at 1). With no fixed part and σ1 ≥ 0 along the load

@@ -1,0 +1,133 @@
+"""The report's account of the inputs: units, materials, laminates, zones, cases, settings and provenance."""
+
+from __future__ import annotations
+
+from .numbers import degrees, short, sig
+from .report_html import esc, num, table
+from .run_meta import MaterialInfo, RunMeta, SectionInfo
+
+#: What the definition keys of material properties mean (shown beside them).
+MEANINGS = {
+    "E1": "modulus along 1 (fibre)", "E2": "modulus along 2", "E": "Young's modulus", "Ez": "through-thickness modulus",
+    "G12": "in-plane shear modulus", "G13": "transverse shear modulus 13", "G23": "transverse shear modulus 23",
+    "nu12": "major Poisson's ratio", "nu23": "Poisson's ratio 23", "nu": "Poisson's ratio",
+    "alpha1": "expansion along 1 per degree", "alpha2": "expansion along 2 per degree", "alpha": "expansion per degree",
+    "beta1": "swelling along 1 per unit moisture", "beta2": "swelling along 2 per unit moisture",
+    "beta": "swelling per unit moisture", "density": "density", "thickness": "default ply thickness",
+    "Xt": "tensile strength along 1", "Xc": "compressive strength along 1", "Yt": "tensile strength along 2",
+    "Yc": "compressive strength along 2", "S12": "in-plane shear strength", "S13": "shear strength 13",
+    "S23": "shear strength 23", "ilss": "interlaminar shear strength", "Zc": "flatwise compressive strength",
+    "yield_strength": "yield strength", "cell_size": "honeycomb cell size",
+    "e1t": "tensile strain limit along 1", "e1c": "compressive strain limit along 1",
+    "e2t": "tensile strain limit along 2", "e2c": "compressive strain limit along 2",
+    "g12u": "in-plane shear strain limit", "F12star": "Tsai-Wu interaction term", "insitu": "in-situ strengths",
+    "p_tpl": "Puck inclination (tension)", "p_cpl": "Puck inclination (compression)",
+    "alpha0": "fracture angle in pure transverse compression",
+}
+#: Quantity kinds listed in the units table, with their names.
+UNIT_ROWS = (("stress", "stress, moduli, strengths, pressure"), ("length", "length, thickness, coordinates"),
+             ("temperature", "temperature change ΔT"), ("expansion", "thermal expansion"),
+             ("density", "density"), ("areal_mass", "mass per area"), ("force_per_length", "force per length (N, Q)"),
+             ("moment_per_length", "moment per length (M)"), ("angle", "ply and material angles"))
+
+
+def _value(p, m: RunMeta) -> tuple:
+    if isinstance(p.value, bool) or isinstance(p.value, str):
+        return str(p.value).lower(), ""
+    unit = m.label(p.kind)
+    return num(p.value), "-" if unit in ("-", "dimensionless") else unit
+
+
+def _material(x: MaterialInfo, m: RunMeta) -> str:
+    rows = [[p.key, MEANINGS.get(p.key, ""), *_value(p, m)] for p in x.properties]
+    parts = [f'<div class="material"><h3>{esc(x.name)} <small>({esc(x.kind)})</small></h3>',
+             f"<p>Source: {esc(x.source)}</p>" if x.source else
+             '<p class="note">No source given (add <code>source = "…"</code> to the material).</p>',
+             f'<p class="note">{esc(x.description)}</p>' if x.description else "",
+             table(["property", "meaning", "value", "unit"], rows)]
+    factors = [[f.name, num(f.value)] for f in x.knockdown_factors]
+    kd = [["knockdown (fraction of strength retained)", num(x.knockdown)]]
+    if factors:
+        parts.append(table(["knockdown factor", "value [-]"], factors + kd))
+    else:
+        parts.append(table(["knockdown", "value [-]"], kd))
+    return "".join(parts) + "</div>"
+
+
+def _laminate(s: SectionInfo, zones: list[str], m: RunMeta, open_details: bool) -> str:
+    L = m.label("length")
+    z = s.interfaces
+    ply_rows = [[num(k + 1), p.material, degrees(p.angle), num(p.thickness), num(z[k]), num(z[k + 1])]
+                for k, p in enumerate(s.plies)]
+    notation = (f'<span class="layup">{esc(s.layup)}</span>' if s.layup
+                else "explicit ply list (see below)")
+    constants = {c.name: c.value for c in s.membrane}
+    key = table(["item", "value"], [
+        ["zones", ", ".join(zones) or "—"], ["plies", num(len(s.plies))], [f"thickness [{L}]", num(s.thickness)],
+        [f"offset of the mid-plane from the reference surface [{L}]", num(s.offset)],
+        [f"mass per area [{m.label('areal_mass')}]", num(s.areal_mass)],
+        [f"membrane Ex, Ey, Gxy [{m.label('stress')}]",
+         ", ".join(sig(constants[k]) for k in ("Ex", "Ey", "Gxy") if k in constants) or "—"],
+        ["membrane νxy [-]", num(constants.get("nuxy"))],
+        ["properties of the stack", ", ".join(f.replace("_", "-") for f in s.flags) or "none of: symmetric, "
+         "balanced, quasi-isotropic"]])
+    folded = table(["ply", "material", "angle", f"thickness [{L}]", f"z bottom [{L}]", f"z top [{L}]"], ply_rows)
+    return (f"<h3>{esc(s.name)}</h3><p>Layup as written: {notation}</p>{key}"
+            f"<details{' open' if open_details else ''}><summary>Plies, bottom (1) to top ({len(s.plies)})</summary>"
+            f"{folded}</details>")
+
+
+def _combination_text(c) -> str:
+    if c.combination:
+        return "combination: " + " + ".join(f"{short(f.value)} × {f.name}" for f in c.combination)
+    if c.steps:
+        return ", ".join(f"step {f.name}" + ("" if f.value == 1 else f" × {short(f.value)}") for f in c.steps)
+    return ""
+
+
+def inputs_section(m: RunMeta, open_details: bool = False) -> str:
+    """Units, materials, laminates (layup as written, plies folded), zones and cases (combinations with factors)."""
+    units = table(["quantity", "unit"], [[name, m.label(kind)] for kind, name in UNIT_ROWS])
+    zones_of: dict[int, list[str]] = {}
+    for z in m.zones:
+        zones_of.setdefault(z.section, []).append(z.name)
+    laminates = "".join(_laminate(s, zones_of.get(s.id, []), m, open_details) for s in m.sections)
+    zones = table(["zone", "laminate", "section", "cells"],
+                  [[z.name, z.laminate, num(z.section), num(z.cells)] for z in m.zones])
+    T, S = m.label("temperature"), m.label("stress")
+    cases = table(["case", "kind", "built from", f"ΔT [{T}]", "temperature field", f"pressure [{S}]",
+                   "moisture change [-]", "factor of safety [-]", "held (fixed, not scaled)"],
+                  [[c.name, c.kind, _combination_text(c), num(c.delta_T), c.temperature_field or "—",
+                    num(c.pressure), num(c.delta_M), num(c.factor_of_safety), ", ".join(c.held) or "none"]
+                   for c in m.cases])
+    return ('<section id="inputs" class="page"><h2>Inputs</h2>'
+            f"<h3>Units ({esc(m.units)})</h3>{units}"
+            "<h2>Materials</h2>" + "".join(_material(x, m) for x in m.materials)
+            + "<h2>Laminates</h2>" + laminates + "<h3>Zones</h3>" + zones + "<h3>Cases and combinations</h3>"
+            + cases + "</section>")
+
+
+def settings_section(m: RunMeta) -> str:
+    a = m.analysis
+    fos = {f.name: f.value for f in a.factor_of_safety}
+    rows = [["criteria evaluated", ", ".join(a.criteria), "at the bottom, middle and top of every ply"],
+            ["factor of safety, limit cases [-]", num(fos.get("limit")), "knockdowns multiply the allowables before R is solved; margin = R / FoS − 1"],
+            ["factor of safety, ultimate cases [-]", num(fos.get("ultimate")), ""],
+            ["transverse shear stiffness", a.transverse_shear,
+             "equilibrium: energy-consistent (Rolfes & Rohwer 1997); factor: k × Σ Ḡ t"],
+            ["shear correction factor k [-]", num(a.shear_factor),
+             "used by the factor method only" if a.transverse_shear != "factor" else "used"],
+            ["face wrinkling coefficient [-]", num(a.wrinkling_coefficient), "σ_wr = k (Ef Ec Gc)^(1/3)"],
+            ["hot-spot rows of the run", num(a.hot_spots), "worst cells kept in full (/hotspots)"],
+            ["store", m.store_kind, "plies: every ply stress and strain kept"]]
+    rows += [[f"default relied on: {d.material}", d.criterion, d.note] for d in a.defaults]
+    return ('<section id="settings"><h2>Settings</h2>' + table(["setting", "value", "note"], rows) + "</section>")
+
+
+def provenance_section(m: RunMeta, store: str) -> str:
+    p = m.provenance
+    rows = [["tool", f"{p.tool} {p.tool_version}"], ["run created (UTC)", p.created], ["store", store],
+            ["conventions", m.conventions]]
+    files = [[f.role, f.path, f.sha256] for f in p.inputs]
+    return ('<section id="provenance"><h2>Provenance</h2>' + table(["item", "value"], rows)
+            + "<h3>Input files</h3>" + table(["role", "path", "SHA-256"], files, cls="mono") + "</section>")

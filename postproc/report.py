@@ -110,6 +110,10 @@ def _head(skip: Sequence[str] = ()) -> list[str]:
     return [h for k, h in zip(keys, _FACT_HEAD) if k not in skip]
 
 
+_CELL_ORDER = {"checked": "checked: the result file's own cells were matched to the mesh",
+               "assumed": "assumed: HDF5 resultants carry no cells and were taken in the mesh's order"}
+
+
 def _summary(r: ReportInputs) -> str:
     m, s = r.meta, r.meta.summary
     w = r.cells.get(s.worst.cell) if s.worst else None
@@ -126,14 +130,21 @@ def _summary(r: ReportInputs) -> str:
         ["strength ratio there [-]", num(w.strength_ratio if w else None)],
         ["cells with a negative margin", num(r.failing_cells)],
         ["cells", num(r.n_cells)], ["cases", num(len(m.cases))],
-        ["cells flagged (non-finite resultants in some case; those cases skipped)", num(s.flagged_cells)]],
+        ["cells flagged (non-finite resultants in some case; those cases skipped)", num(s.flagged_cells)],
+        ["cell order of the resultants", _CELL_ORDER.get(s.cell_order, s.cell_order or "—")],
+        ["material values checked against plausible ranges", "yes" if m.analysis.check_ranges else
+         "NO (check_ranges = false): exotic values were accepted unchecked"]],
         cls="summary")
     parts = ['<section id="summary"><h2>Summary</h2>', head, key]
     if s.flagged_cells:
         parts.append(f'<p class="note">Flagged cells include {esc(", ".join(map(str, s.flagged_examples[:10])))}.'
                      "</p>")
     if s.notes:
-        parts.append("<h3>Notes about the mesh</h3><ul>" + "".join(f"<li>{esc(x)}</li>" for x in s.notes) + "</ul>")
+        parts.append("<h3>Notes on the inputs</h3><ul>" + "".join(f"<li>{esc(x)}</li>" for x in s.notes) + "</ul>")
+    if s.shear_check:
+        parts.append("<h3>Transverse shear from the moment field: input Q against the field's Q</h3>" + table(
+            ["zone", "mean relative difference [-]", "largest relative difference [-]", "cells on the Q-only method"],
+            [[c.zone, num(c.mean), num(c.max), num(c.fallback_cells)] for c in s.shear_check]))
     parts.append(_minima(r))
     return "".join(parts) + "</section>"
 

@@ -241,6 +241,7 @@ class RunSummary:
     flagged_examples: tuple[int, ...] = ()
     notes: tuple[str, ...] = ()   # what the run assumed or found unusual, and about the mesh
     shear_check: tuple[ShearCheck, ...] = ()
+    cell_order: str = ""   # "checked" (the file's own cells matched to the mesh) or "assumed" (HDF5)
 
     @classmethod
     def from_result(cls, result: Mapping[str, Any]) -> "RunSummary":
@@ -255,7 +256,8 @@ class RunSummary:
         return cls(HotSpot(**worst) if worst else None, hot, groups("zones"), groups("laminates"),
                    groups("cases"), groups("criteria"), int(result.get("flagged_cells", 0)),
                    tuple(result.get("flagged_examples", ())), tuple(result.get("notes", ())),
-                   tuple(ShearCheck(name, v["mean"], v["max"], int(v["fallback_cells"])) for name, v in shear.items()))
+                   tuple(ShearCheck(name, v["mean"], v["max"], int(v["fallback_cells"])) for name, v in shear.items()),
+                   str(result.get("cell_order", "")))
 
 
 @dataclass(frozen=True)

@@ -125,6 +125,12 @@ def _face_allowables(lam: Laminate, params: np.ndarray,
     return tuple(faces), face_params
 
 
+def _regular(ABD: np.ndarray) -> bool:
+    """Whether a stiffness matrix is numerically regular (smallest eigenvalue above 1e-12 of the largest)."""
+    eig = np.linalg.eigvalsh(ABD)
+    return bool(eig.min() > 1e-12 * eig.max())
+
+
 def build_section(lam: Laminate, shear_method: str = TRANSVERSE_SHEAR, shear_factor: float = SHEAR_FACTOR,
                   wrinkling_coefficient: float = WRINKLING_COEFFICIENT) -> Section:
     """Compute a :class:`Section` from a laminate.
@@ -141,8 +147,13 @@ def build_section(lam: Laminate, shear_method: str = TRANSVERSE_SHEAR, shear_fac
         k of the face wrinkling allowable k·(Ef·Ec·Gc)^(1/3).
     """
     sp = section_properties(lam)
-    eig = np.linalg.eigvalsh(sp.ABD)
-    if not eig.min() > 1e-12 * eig.max():
+    if not _regular(sp.ABD):
+        if lam.offset != 0.0 and _regular(section_properties(lam.with_offset(0.0)).ABD):
+            raise LayupError(
+                f"laminate '{lam.name}': with the reference surface {abs(lam.offset):g} from the mid-plane "
+                f"({abs(lam.offset) / lam.thickness:.4g} laminate thicknesses) the stiffness matrix about it is "
+                "numerically singular (the bending stiffness is lost to round-off next to offset² times the "
+                "membrane stiffness); check the offset and its unit")
         raise LayupError(f"laminate '{lam.name}' has a singular stiffness matrix (a core or zero-stiffness layers "
                          "only?); add load-carrying plies")
     if shear_method not in SHEAR_METHODS:

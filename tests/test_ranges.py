@@ -7,6 +7,7 @@ reason in bridge/definition/ranges.py).
 
 from __future__ import annotations
 
+import re
 import tomllib
 
 import h5py
@@ -18,6 +19,7 @@ from hypothesis import strategies as st
 from bridge.definition.loader import parse_definition
 from bridge.definition.materials import parse_material
 from bridge.definition.ranges import RANGES, SI, si_factor
+from bridge.definition.slips import FAMILY, READINGS, suggestions
 from bridge.definition.units import SYSTEMS
 from bridge.mesh.formats import write_mesh
 from bridge.recover.resultants import write_resultants_h5
@@ -51,7 +53,7 @@ def _error(text: str) -> str:
 
 
 @pytest.mark.parametrize("units, key, value, needles", [
-    ("N-mm", "E1", "181", ("materials.cf.E1 = 181 MPa", "181 read as 181 MPa: did you mean \"181 GPa\"?")),
+    ("N-mm", "E1", "181", ("materials.cf.E1 = 181 MPa", "181 read as 181 MPa: did you mean \"181 GPa\" (= 181000 MPa)?")),
     ("N-mm", "E1", "26.25e6", ("looks like psi in an N-mm file",)),
     ("N-mm", "Xt", "217600", ("materials.cf.Xt", "looks like psi in an N-mm file")),
     ("N-m", "Xt", "1500", ("1500 read as 1500 Pa", "\"1500 MPa\"")),
@@ -64,12 +66,78 @@ def _error(text: str) -> str:
     ("N-mm", "nu12", "28", ("nu12 = 28", "percentage", "0.28")),
     ("N-mm", "strain_limits", "{ fibre_tension = 12000 }", ("strain_limits.fibre_tension", "microstrain", "0.012")),
     ("N-mm", "strain_limits", "{ fibre_tension = 1.2 }", ("strain_limits.fibre_tension", "percentage", "0.012")),
+    # The review's cases: a hint must give the intended value, in the file's own units.
+    ("N-mm", "Yt", '"0.04 MPa"', ('did you mean "0.04 GPa" (= 40 MPa)?',)),
+    ("N-mm", "Yt", "0.04", ('did you mean "0.04 GPa" (= 40 MPa)?',)),
+    ("N-mm", "alpha1", "8.6", ('"8.6e-6 /degC"',)),
+    ("N-mm", "alpha1", "12", ('"12e-6 /degC"',)),
+    ("lbf-in", "alpha1", "40", ('"40e-6 /degF"', "(|α| ≤ 111e-6 /°F)")),
+    ("lbf-in", "Xt", "0.2176", ("(14.5 psi–1.45 Msi)",)),
+    ("N-mm", "G_Ic", "280", ("materials.cf.G_Ic = 280 N/mm", 'did you mean "280 J/m^2" (= 0.28 N/mm)?')),
+    ("N-m", "G_IIc", "0.56", ('did you mean "0.56 kJ/m^2" (= 560 N/m)?',)),
+    ("lbf-in", "G_Ic", "280", ("looks like J/m^2 in an lbf-in file",)),
+    ("N-mm", "knockdown", "85", ("materials.cf.knockdown = 85", "percentage", "0.85")),
+    ("N-mm", "knockdown", "{ environment = 0.9, damage = 0.05 }", ("materials.cf.knockdown.damage = 0.05",)),
+    ("N-mm", "p_tpl", "3", ("materials.cf.p_tpl = 3", "Puck inclination")),
 ])
 def test_slips_are_named(units, key, value, needles):
     message = _error(_definition(units, **{key: value}))
     for needle in needles:
         assert needle in message, (needle, message)
     assert "check_ranges = false" in message
+
+
+@pytest.mark.parametrize("units, key, value", [
+    ("N-mm", "nu23", "0.99"),          # no percentage: 0.0099 is no transverse Poisson's ratio
+    ("N-mm", "alpha1", "300"),         # 300e-6 per degree is no expansion coefficient either
+    ("N-mm", "G_Ic", "1e9"),
+    ("N-mm", "F12star", "50"),         # never "a percentage": there is no plausible slip to a Tsai-Wu F12*
+])
+def test_no_hint_where_no_plausible_slip_fits(units, key, value):
+    message = _error(_definition(units, **{key: value}))
+    assert f"materials.cf.{key} = " in message and "plausible range" in message
+    assert "did you mean" not in message and "looks like" not in message, message
+
+
+def test_every_material_number_has_a_range():
+    """Every number a material table accepts (length, stress, density, expansion, toughness, ratios) is range-
+    checked: G_Ic, Puck's inclinations, F12*, knockdowns included, not only the elastic constants and strengths."""
+    from bridge.definition.materials import SPECS
+
+    for kind, spec in SPECS.items():
+        numbers = {k for k, q in spec.items() if q not in ("str", "bool")} - {"strain_limits"}
+        numbers |= {f"strain_limits.{k}" for k in ("fibre_tension", "fibre_compression", "matrix_tension",
+                                                    "matrix_compression", "shear")} if "strain_limits" in spec else set()
+        assert numbers <= set(RANGES[kind]), (kind, sorted(numbers - set(RANGES[kind])))
+
+
+def test_toughness_in_the_wrong_unit_is_refused_and_accepted_only_on_purpose():
+    """The review's case: in an N-mm file G_Ic written in J/m² (280 for 0.28 N/mm) raised the in-situ strengths of
+    LaRC03 by sqrt(1000) with no message. Now refused; accepted only with check_ranges = false."""
+    for value in ("280", "1e9"):
+        assert "materials.cf.G_Ic" in _error(_definition(G_Ic=value, insitu="true"))
+    ok = parse_definition(tomllib.loads(_definition(G_Ic="0.28", G_IIc="0.79", insitu="true")), "d.toml")
+    assert ok.materials["cf"].G_Ic == 0.28
+    exotic = _definition(extra="[analysis]\ncheck_ranges = false", G_Ic="280")
+    assert parse_definition(tomllib.loads(exotic), "d.toml").materials["cf"].G_Ic == 280.0
+
+
+def test_wrinkling_coefficient_and_offsets_are_checked(write_definition):
+    message = _error(_definition(extra="[analysis]\nwrinkling_coefficient = 5"))
+    assert "analysis.wrinkling_coefficient = 5" in message and "plausible range" in message
+    assert "must be positive" in _error(_definition(extra="[analysis]\ncheck_ranges = false\n"
+                                                          "wrinkling_coefficient = 0"))
+    # [0/90]s of 0.125 mm plies: h = 0.5 mm; 1000 mm is 2000 thicknesses away (a mould line is 0.5).
+    far = _definition().replace('material = "cf"', 'material = "cf"\noffset = 1000')
+    assert "laminates.l.offset = 1000 mm is 2000 laminate thicknesses" in _error(far)
+    zone = _definition().replace('laminate = "l"', 'laminate = "l"\nname = "z"\noffset = "-2 in"')
+    assert "zones.z.offset = -50.8 mm" in _error(zone)
+    near = _definition().replace('material = "cf"', 'material = "cf"\noffset = 0.25')
+    assert parse_definition(tomllib.loads(near), "d.toml").laminates["l"].offset == 0.25
+    # Unchecked, a far offset still gets the right cause from the section builder, not "a core only?".
+    unchecked = far.replace("\n[materials.cf]", "[analysis]\ncheck_ranges = false\n[materials.cf]")
+    proc = run_cli("section", write_definition(unchecked))
+    assert_one_line_error(proc, "with the reference surface 1000 from the mid-plane (2000 laminate thicknesses)")
 
 
 def test_absolute_temperature_as_change():
@@ -134,7 +202,7 @@ def test_duplicate_case_names_are_refused(tmp_path, write_definition):
 
 def test_cli_one_line_and_exit_2(write_definition):
     proc = run_cli("section", write_definition(_definition(E1="181")))
-    assert_one_line_error(proc, "did you mean \"181 GPa\"?")
+    assert_one_line_error(proc, "did you mean \"181 GPa\" (= 181000 MPa)?")
 
 
 @pytest.fixture(scope="module")
@@ -182,9 +250,58 @@ def test_every_range_has_a_reason_and_a_typical_value():
 
 
 _KEYS = [(kind, key) for kind, table in RANGES.items() for key in table
-         if table[key].kind in ("stress", "density", "length", "expansion", "dimensionless")]
+         if table[key].kind in ("stress", "density", "length", "expansion", "dimensionless", "force_per_length")]
 _REQUIRED = {"ply": {"E1": 181e9, "E2": 10.3e9, "G12": 7.17e9, "nu12": 0.28},
              "isotropic": {"E": 70e9, "nu": 0.3}, "core": {"G13": 50e6, "G23": 30e6}}
+
+
+def _parse(kind: str, key: str, value, units) -> str | None:
+    """parse_material on a minimal material of ``kind`` with ``key`` set to ``value``; the refusal or None."""
+    table = {"kind": kind, **{k: v / si_factor("stress", units) for k, v in _REQUIRED[kind].items()}}
+    outer, _, inner = key.partition(".")          # a key of a sub-table: strain_limits.fibre_tension
+    if outer == "knockdown" and inner:
+        table[outer] = {inner: value}
+    else:
+        table[outer] = {inner: value} if inner else value
+    try:
+        parse_material("m", table, units)
+    except DefinitionError as err:
+        return str(err)
+    return None
+
+
+_HINTED = [(kind, key) for kind, table in RANGES.items() for key in table if table[key].kind in READINGS]
+
+
+@settings(max_examples=400, deadline=None)
+@given(st.sampled_from(_HINTED), st.sampled_from(sorted(SYSTEMS)), st.floats(-12.0, 12.0), st.booleans())
+def test_following_a_hint_gives_a_value_inside_the_range(kind_key, system_name, exponent, negative):
+    """Property: for any value outside its range, every fix the refusal suggests, written into the file as
+    suggested, is accepted by the range check; a unit of the other family (psi in an SI file) is suggested only
+    as "looks like … in an … file", when no unit of the file's own family fits."""
+    kind, key = kind_key
+    r, units = RANGES[kind][key], SYSTEMS[system_name]
+    value = float(f"{(-1.0 if negative else 1.0) * 10.0 ** exponent:.3g}")      # as an analyst writes a number
+    if r.holds(value * si_factor(r.kind, units)):
+        return
+    message = _parse(kind, key, value, units)
+    assert message is not None and "plausible range" in message, message
+    fixes = re.findall(r'"([^"]+)"', message) + re.findall(r"plain ratio ([-+0-9.e]*[0-9])", message)
+    for fix in fixes:
+        refused = _parse(kind, key, fix if '"' + fix + '"' in message else float(fix), units)
+        assert refused is None or "plausible range" not in refused, (value, fix, refused)
+    own = FAMILY[system_name]
+    for s in suggestions(value, r, units):
+        if s.reading.family not in ("", own):
+            assert f"in an {system_name} file" in message
+            assert not any(t.family in ("", own) and r.usual_holds(value * t.scale * si_factor_of(t.unit, r.kind))
+                           for t in READINGS[r.kind])
+
+
+def si_factor_of(unit: str, kind: str) -> float:
+    from bridge.definition.units import registry
+
+    return float(registry().Quantity(1.0, unit).to(SI[kind]).magnitude)
 
 
 @settings(max_examples=150, deadline=None)

@@ -9,6 +9,7 @@ from shells.defaults import HOT_SPOTS, SHEAR_FACTOR, TRANSVERSE_SHEAR, WRINKLING
 from shells.errors import DefinitionError
 from shells.section import SHEAR_METHODS
 
+from bridge.definition.ranges import WRINKLING_COEFFICIENT as WRINKLING_RANGE, check_value
 from bridge.definition.schema import expect_table, take
 from bridge.definition.units import UnitSystem
 
@@ -85,9 +86,13 @@ def parse_analysis(table: Any, units: UnitSystem) -> Analysis:
     k = values.get("shear_factor", SHEAR_FACTOR)
     if not 0 < k <= 1.0:
         raise DefinitionError(f"analysis.shear_factor = {k} must lie in (0, 1]")
+    wrinkling = values.get("wrinkling_coefficient", WRINKLING_COEFFICIENT)
+    if not wrinkling > 0:
+        raise DefinitionError(f"analysis.wrinkling_coefficient = {wrinkling:g} must be positive")
+    if values.get("check_ranges", True):
+        check_value(wrinkling, "wrinkling_coefficient", WRINKLING_RANGE, units, "analysis.wrinkling_coefficient")
     hot = values.get("hot_spots", HOT_SPOTS)
     if not 1 <= hot <= 100000:
         raise DefinitionError(f"analysis.hot_spots = {hot} must lie between 1 and 100000")
-    return Analysis(tuple(dict.fromkeys(criteria)), tuple(fos.items()), method, k,
-                    values.get("wrinkling_coefficient", WRINKLING_COEFFICIENT), hot,
+    return Analysis(tuple(dict.fromkeys(criteria)), tuple(fos.items()), method, k, wrinkling, hot,
                     values.get("check_ranges", True))

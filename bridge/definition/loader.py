@@ -23,7 +23,7 @@ from bridge.definition.cases import Cases, parse_cases
 from bridge.definition.frames import FrameSettings, parse_frames
 from bridge.definition.laminates import parse_laminates
 from bridge.definition.materials import parse_materials
-from bridge.definition.ranges import check_laminates_and_cases
+from bridge.definition.ranges import check_laminates_and_cases, check_offsets
 from bridge.definition.result_files import ResultFiles, parse_result_files
 from bridge.definition.resultants import ResultantFields, ResultantSettings, parse_fields, parse_resultant_settings
 from bridge.definition.schema import check_keys, clean_document
@@ -101,12 +101,14 @@ def parse_definition(doc: Mapping[str, Any], source: str = "<definition>", sha25
         if not isinstance(title, str):
             raise DefinitionError("title must be a string")
         cases = parse_cases(doc.get("cases", {}), doc.get("combinations", {}), units)
+        zones = parse_zones(doc.get("zones", []), laminates, units)
         if analysis.check_ranges:
             check_laminates_and_cases(laminates, cases, units)
+            check_offsets(laminates, zones, units)
         return Definition(
             source=source, sha256=sha256, units=units, title=title,
             materials=materials, laminates=laminates, analysis=analysis,
-            zones=parse_zones(doc.get("zones", []), laminates, units),
+            zones=zones,
             cases=cases,
             frames=parse_frames(doc.get("frames", {})),
             fields=parse_fields(doc.get("fields", {})),

@@ -82,13 +82,14 @@ def parse_material(name: str, table: Mapping[str, Any], units: UnitSystem, check
     values = take(table, SPECS[kind], where, units, REQUIRED[kind])
     if "strain_limits" in values:
         values["strain_limits"] = _strain_limits(values["strain_limits"], f"{where}.strain_limits", units)
-    if check_ranges:
-        limits = vars(values.get("strain_limits", StrainLimits()))
-        check_material_values(where, kind, {**values, **{f"strain_limits.{k}": v for k, v in limits.items()}},
-                              units)
-    values.pop("kind", None)
     if "knockdown" in values:
         values["knockdown"], values["knockdown_factors"] = _knockdown(values["knockdown"], f"{where}.knockdown")
+    if check_ranges:
+        limits = vars(values.get("strain_limits", StrainLimits()))
+        factors = {f"knockdown.{name}": factor for name, factor in values.get("knockdown_factors", ())}
+        check_material_values(where, kind, {**factors, **values,
+                                            **{f"strain_limits.{k}": v for k, v in limits.items()}}, units)
+    values.pop("kind", None)
     for old, new in _RENAME.get(kind, {}).items():
         if old in values:
             values[new] = values.pop(old)

@@ -44,6 +44,10 @@ class Profile:
         Material, angle (degrees) and thickness of every ply, bottom to top.
     kinds : sequence of str
         Material kind of every ply (``core`` plies are shaded as one band).
+    factor_of_safety : float
+        Of the case: margin zero lies at 1/R = 1/FoS, drawn beside failure at 1/R = 1.
+    notes : sequence of str
+        One-line notes printed under the figure (where the states came from, what is left out and why).
     """
 
     z: np.ndarray
@@ -52,6 +56,8 @@ class Profile:
     interfaces: np.ndarray
     plies: Sequence[PlyInfo]
     kinds: Sequence[str]
+    factor_of_safety: float = 1.0
+    notes: Sequence[str] = ()
 
     @property
     def has_core(self) -> bool:
@@ -122,14 +128,20 @@ def profile_figure(profile: Profile, *, title: str, stress_unit: str, length_uni
     axes = fig.subplots(1, len(PANELS) + 1, sharey=True)
     pal = colors.palette(8)
     yy = _broken(y)
+    stress = without_roundoff(profile.stress)
     for ax, (name, comps, symbols) in zip(axes, PANELS):
         for j, (c, sym) in enumerate(zip(comps, symbols)):
-            ax.plot(_broken(profile.stress[..., c]), yy, color=pal[j], lw=1.8, label=sym, ls="-" if j == 0 else "--")
+            ax.plot(_broken(stress[..., c]), yy, color=pal[j], lw=1.8, label=sym, ls="-" if j == 0 else "--")
         ax.axvline(0.0, color="black", lw=0.6)
         ax.set_title(name, fontsize=10)
         ax.set_xlabel(f"stress [{plain(stress_unit)}]")
         ax.xaxis.set_major_locator(MaxNLocator(4, symmetric=False))
         ax.xaxis.set_major_formatter(FuncFormatter(lambda v, _: short(v)))
+        if not np.nan_to_num(stress[..., list(comps)]).any():        # nothing but zeros: say so, no noise axis
+            ax.set_xlim(-1.0, 1.0)
+            ax.set_xticks([0.0])
+            ax.text(0.5, 0.5, "zero through the thickness", transform=ax.transAxes, ha="center", va="center",
+                    fontsize=9, color=colors.INK_MUTED, rotation=90)
         ax.legend(fontsize=8, loc="upper center", bbox_to_anchor=(0.5, below), ncols=2, frameon=False)
     ax = axes[-1]
     finite_fi = [np.asarray(fi, float) for fi in profile.failure_index.values()]
@@ -138,7 +150,13 @@ def profile_figure(profile: Profile, *, title: str, stress_unit: str, length_uni
                 ms=3, label=plain(crit))
     top = max([1.05] + [1.05 * float(np.nanmax(f)) for f in finite_fi if np.isfinite(f).any()])
     ax.set_xlim(0.0, top)
-    ax.axvline(1.0, color=colors.BALANCE[0], lw=1.0, ls="--", label="failure (1)")
+    ax.axvline(1.0, color=colors.BALANCE[0], lw=1.0, ls="--", label="failure: R = 1")
+    fos = float(profile.factor_of_safety)
+    if fos != 1.0:
+        ax.axvline(1.0 / fos, color=colors.INK_MUTED, lw=1.0, ls=":", label=f"margin 0: R = FoS {fos:g}")
+    if not profile.failure_index:
+        ax.text(0.5, 0.5, "no failure index (see the note below)", transform=ax.transAxes, ha="center",
+                va="center", fontsize=9, color=colors.INK_MUTED, rotation=90)
     ax.set_title("failure index 1/R", fontsize=10)
     ax.set_xlabel("failure index [-]")
     ax.xaxis.set_major_locator(MaxNLocator(4))
@@ -157,7 +175,22 @@ def profile_figure(profile: Profile, *, title: str, stress_unit: str, length_uni
     else:
         axes[0].set_ylabel(f"z [{plain(length_unit)}]")
     fig.suptitle(plain(title), fontsize=11)
+    if profile.notes:
+        fig.supxlabel("\n".join(f"Note: {plain(t)}" for t in profile.notes), fontsize=8, x=0.01, ha="left",
+                      color=colors.INK_MUTED)
     return fig
+
+
+def without_roundoff(stress: np.ndarray) -> np.ndarray:
+    """A copy of ply stresses (…, 5) with values within ROUNDOFF of the largest magnitude set to zero, so that
+    a component that is zero up to round-off (τ13, τ23 with no transverse shear) is drawn as zero, not as an
+    autoscaled distribution of 1e-17 noise (:data:`shells.recovery_tables.ROUNDOFF`)."""
+    from shells.recovery_tables import ROUNDOFF
+
+    s = np.array(stress, dtype=float)
+    big = float(np.nanmax(np.abs(s), initial=0.0)) if np.isfinite(s).any() else 0.0
+    s[np.abs(s) <= ROUNDOFF * big] = 0.0
+    return s
 
 
 def _ply_labels(fig, ax, profile: Profile, axis: str, bounds: np.ndarray, length_unit: str) -> None:

@@ -67,6 +67,15 @@ def cell_states(criteria: Sequence[type], tables: SectionTables, cell_sec: np.nd
         ``ratio`` (ncrit, ncase, ncell, maxply, 3) strength ratios (NaN past a cell's ply count).
     """
     ref = ply_states(tables, cell_sec, phi_deg, R, dT, dM, pres, shear, held, held_pressure, held_shear)
+    return {"mech": ref["mech"], "fixed": ref["fixed"], "strain": ref["strain"], "z": ref["z"],
+            "ratio": ratios_of_states(criteria, tables, cell_sec, ref)}
+
+
+def ratios_of_states(criteria: Sequence[type], tables: SectionTables, cell_sec: np.ndarray,
+                     ref: dict) -> np.ndarray:
+    """Strength ratios (ncrit, ncase, ncell, maxply, 3) of point states ``ref["mech"]``, ``ref["fixed"]``
+    (ncase, ncell, maxply, 3, 6), as the run computes them: point criteria at every ply point, face-level
+    criteria on each sandwich face's mean stress (:func:`face_states`), shown at every point of the face."""
     n, mp = len(cell_sec), tables.max_plies
     pidx = np.full((n, mp), -1, dtype=np.int64)
     for i, s in enumerate(cell_sec):
@@ -90,5 +99,4 @@ def cell_states(criteria: Sequence[type], tables: SectionTables, cell_sec: np.nd
                 local = np.arange(row0, row0 + count) - tables.first[s]
                 out[i, :, local] = sr[i, :, g][:, None, :].transpose(1, 0, 2)
         ratios.append(out.transpose(1, 0, 2, 3))
-    return {"mech": ref["mech"], "fixed": ref["fixed"], "strain": ref["strain"], "z": ref["z"],
-            "ratio": np.stack(ratios)}
+    return np.stack(ratios)

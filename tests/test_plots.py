@@ -33,8 +33,8 @@ def test_plot_writes_the_file(store, tmp_path, args, ext):
 def test_every_route_to_a_profile_gives_the_same_states(store):
     """Invariant: zone-2 cells carry equal resultants and sections, so they have equal states. A hot spot (stored
     in /hotspots), a plain cell (recovered again from the inputs) must agree in both cases (b holds a temperature
-    change: the thermal part is held apart on both routes); in case a (ΔT = 0) nothing is held fixed, so the
-    failure index of the stored total state (/plies) must equal them too."""
+    change: the thermal part is held apart on both routes); the failure indices rebuilt from the stored total
+    state (/plies, the thermal part split off again as the run split it) must equal them too."""
     from bridge.pictures.plots import _plies_route, _section_of_cell, profile_of
     from bridge.results.store import StoreReader
 
@@ -52,12 +52,14 @@ def test_every_route_to_a_profile_gives_the_same_states(store):
             np.testing.assert_allclose(b.z, a.z)
             for crit in a.failure_index:
                 np.testing.assert_allclose(b.failure_index[crit], a.failure_index[crit], rtol=1e-9)
-        stress, fi = _plies_route(st, plain, 0, _section_of_cell(st, plain))
-        a, _, _, _ = profile_of(st, h, "a")
+        for k, case in enumerate(("a", "b")):
+            stress, fi, note = _plies_route(st, plain, k, _section_of_cell(st, plain))
+            a, _, _, _ = profile_of(st, h, case)
+            assert note == ""
+            np.testing.assert_allclose(stress, a.stress, rtol=1e-9, atol=1e-9)
+            for crit in a.failure_index:
+                np.testing.assert_allclose(fi[crit], a.failure_index[crit], rtol=1e-9)
     assert len(b.plies) == 8 and b.labels("mm")[1].startswith("ply 2: 45°")
-    np.testing.assert_allclose(stress, a.stress, rtol=1e-9, atol=1e-9)
-    for crit in a.failure_index:
-        np.testing.assert_allclose(fi[crit], a.failure_index[crit], rtol=1e-9)
 
 
 def test_envelope_meets_the_axes_at_the_strengths():
@@ -101,3 +103,47 @@ def test_an_envelope_with_no_curve_is_an_error(store, tmp_path):
     assert_one_line_error(run_cli("plot", store, "-o", out, "--kind", "envelope", "--criteria", "core-shear"),
                           "no", "envelope")
     assert not out.exists()
+
+
+def _synthetic_profile(fos: float, shear: float):
+    """Two 0.125 mm plies under σ1 = 300 MPa (an invented state) with τ13, τ23 = ±``shear``."""
+    from postproc.profile import Profile
+    from postproc.run_meta import PlyInfo
+
+    stress = np.zeros((2, 3, 5))
+    stress[..., 0] = 300.0
+    stress[..., 3] = shear * np.array([1.0, -1.0, 1.0])
+    stress[..., 4] = -shear
+    zi = np.array([-0.125, 0.0, 0.125])
+    z = np.column_stack([zi[:-1], 0.5 * (zi[:-1] + zi[1:]), zi[1:]])
+    fi = {"max-stress": np.full((2, 3), 0.2)}
+    return Profile(z, stress, fi, zi, [PlyInfo("m", 0.0, 0.125)] * 2, ("ply", "ply"), fos, ("a note",))
+
+
+def test_profile_marks_margin_zero_at_one_over_fos_and_failure_at_one():
+    """Margin = R/FoS − 1 is zero at 1/R = 1/FoS (0.667 for FoS 1.5, 14 CFR 25.303 on limit loads); failure
+    (R = 1) stays at 1/R = 1; an ultimate case (FoS 1) gets the failure line only."""
+    from postproc.profile import profile_figure
+
+    for fos, lines in ((1.5, {"failure: R = 1": 1.0, "margin 0: R = FoS 1.5": 1 / 1.5}),
+                       (1.0, {"failure: R = 1": 1.0})):
+        fig = profile_figure(_synthetic_profile(fos, 0.0), title="t", stress_unit="MPa", length_unit="mm")
+        found = {l.get_label(): float(l.get_xdata()[0]) for l in fig.axes[-1].get_lines()
+                 if l.get_label() in ("failure: R = 1", "margin 0: R = FoS 1.5")}
+        assert found == pytest.approx(lines)
+        assert any("a note" in t.get_text() for t in fig.findobj(lambda a: hasattr(a, "get_text")))
+
+
+def test_profile_draws_roundoff_as_zero():
+    """τ13, τ23 of ±6e-17 MPa next to σ1 = 300 MPa are round-off (below 1e-12 of the largest stress,
+    shells.recovery_tables.ROUNDOFF): drawn as zero on a fixed axis, not autoscaled into a distribution."""
+    from postproc.profile import profile_figure
+
+    fig = profile_figure(_synthetic_profile(1.0, 6e-17), title="t", stress_unit="MPa", length_unit="mm")
+    panel = fig.axes[2]
+    values = np.concatenate([np.asarray(l.get_xdata(), float) for l in panel.get_lines()
+                             if l.get_label() in ("τ13", "τ23")])
+    assert np.nan_to_num(values).tolist() == [0.0] * values.size
+    assert panel.get_xlim() == (-1.0, 1.0)
+    real = profile_figure(_synthetic_profile(1.0, 2.0), title="t", stress_unit="MPa", length_unit="mm")
+    assert real.axes[2].get_xlim() != (-1.0, 1.0)

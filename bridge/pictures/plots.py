@@ -7,6 +7,7 @@ from pathlib import Path
 
 import numpy as np
 
+from shells.criteria import by_name, failure_index
 from shells.errors import InputError, StoreError
 
 from bridge.atomic import atomic_path
@@ -39,32 +40,76 @@ def _cell_case(st: StoreReader, cell: int | None, case: str | None) -> tuple[int
     return cell, 0 if k is None else k
 
 
-def _plies_route(st: StoreReader, cell: int, k: int, sec) -> tuple[np.ndarray, dict]:
-    """(total stress (nply, 3, 5), failure indices) of a cell from /plies (nothing held fixed)."""
-    from shells.criteria import by_name, failure_index
+def _not_rebuilt(case) -> str:
+    """Why the run's split of a case into a scaled and a fixed part cannot be rebuilt from /plies, or ''."""
+    if case.held or case.held_steps:
+        return f"case {case.name} holds the resultants of {', '.join(case.held) or 'a held case'} fixed"
+    if case.temperature_field is not None:
+        return f"case {case.name} takes its temperature change from the mesh array '{case.temperature_field}'"
+    return ""
+
+
+def _plies_route(st: StoreReader, cell: int, k: int, sec) -> tuple[np.ndarray, dict, str]:
+    """(total stress (nply, 3, 5), failure indices, note) of a cell from /plies.
+
+    /plies keeps the total state only, while the run scales the mechanical part and holds the fixed part. The
+    fixed part is rebuilt here exactly as the run built it when the case's fixed part is its uniform ΔT and ΔM
+    (the same function on the section tables of /sections, knockdowns and in-situ strengths included; σ3 is
+    the case's −pressure), and every criterion is then evaluated as in the run (face-level ones on each face's
+    mean stress). A case that holds resultants, or takes ΔT from a mesh array, cannot be split again without
+    the inputs: its failure indices are left out, and the note says why.
+    """
+    from postproc.states import ratios_of_states
+    from shells.recovery_reference import ply_states
 
     nply = len(sec.plies)
-    state = np.zeros((nply, 3, 6))
-    state[..., :3] = st.h5["plies/stress"][k, cell, :nply]
-    state[..., 3:5] = st.h5["plies/transverse_shear"][k, cell, :nply]
-    params = _ply_params(st, sec.id)
-    fi = {}
+    total = np.zeros((nply, 3, 6))
+    total[..., :3] = st.h5["plies/stress"][k, cell, :nply]
+    total[..., 3:5] = st.h5["plies/transverse_shear"][k, cell, :nply]
+    case = st.run.cases[k]
+    why = _not_rebuilt(case)
+    if why:
+        return total[..., :5], {}, (f"failure indices not shown: {why}, and the run's inputs are gone; restore "
+                                    "them (or plot a hot-spot cell) to see them")
+    tables = st.tables()
+    sec_id = np.array([sec.id], dtype=np.int64)
+    phi = np.array([float(st.h5["model/material_angle"][cell])])
+    fixed = ply_states(tables, sec_id, phi, np.zeros((1, 1, 8)), np.array([[case.delta_T]]),
+                       np.array([case.delta_M]), np.zeros(1))["fixed"]
+    mech = np.zeros_like(fixed)
+    mech[0, 0, :nply] = total - np.nan_to_num(fixed[0, 0, :nply])
+    mech[0, 0, :nply, :, 5] = -case.pressure
+    crit = [by_name(n) for n in st.run.criteria_used]
+    ratio = ratios_of_states(crit, tables, sec_id, {"mech": mech, "fixed": fixed})
+    fi = {c.name: failure_index(ratio[j, 0, 0, :nply]) for j, c in enumerate(crit)}
+    return total[..., :5], fi, ""
+
+
+def _applicable(st: StoreReader, sec, kinds: tuple[str, ...]) -> tuple[set[str], list[str]]:
+    """(criteria of the run that apply to a section, those that do not): a point criterion applies when some
+    ply's material kind is one it checks, a face-level one when the section has sandwich faces."""
+    from shells.params import KIND_NAMES
+
+    codes = {KIND_NAMES.index(k) for k in kinds}
+    faces = int(st.h5["sections/face_count"][sec.id]) > 0
+    yes, no = set(), []
     for name in st.run.criteria_used:
-        ratio = by_name(name).ratio
-        fi[name] = failure_index(np.array([[ratio(state[i, j], np.zeros(6), params[i])[0] for j in range(3)]
-                                           for i in range(nply)]))
-    return state[..., :5], fi
+        c = by_name(name)
+        applies = faces if c.level == "face" else bool(codes & set(c.requires))
+        (yes.add(name) if applies else no.append(name))
+    return yes, no
 
 
 def profile_of(st: StoreReader, cell: int | None = None, case: str | None = None):
     """(Profile, cell, case name, source) of a cell (default the worst) in a case (default its governing one).
 
     ``source`` is ``stored`` (a hot spot or a zone's worst cell: /hotspots), ``recovered`` (the cell recovered
-    again from the run's inputs) or ``plies`` (from /plies when the inputs are gone: failure indices of the
-    stored total state, nothing held fixed).
+    again from the run's inputs) or ``plies`` (from /plies when the inputs are gone: the failure indices as
+    the run computes them where the fixed part can be rebuilt, else none, with a note; :func:`_plies_route`).
+    Criteria that do not apply to the cell's section (core criteria on a monolithic wall) are left out and named
+    in the profile's notes.
     """
     from postproc.profile import Profile
-    from shells.criteria import failure_index
 
     from bridge.pictures.cellstate import cell_states
 
@@ -73,18 +118,26 @@ def profile_of(st: StoreReader, cell: int | None = None, case: str | None = None
     kind = {m.name: m.kind for m in st.run.materials}
     plies, kinds = sec.plies, tuple(kind.get(p.material, "ply") for p in sec.plies)
     zi = np.asarray(sec.interfaces)
+    info = st.run.cases[k]
+    applies, other = _applicable(st, sec, kinds)
+    notes = [f"not applicable to this section: {', '.join(other)}"] if other else []
     try:
         s = cell_states(st, cell)
     except StoreError as err:
         if not st.has("plies"):
             raise FieldError(f"cell {cell} is not stored in full and cannot be recovered again: {err.detail}",
                              st.path) from None
-        stress, fi = _plies_route(st, cell, k, sec)
+        stress, fi, note = _plies_route(st, cell, k, sec)
         z = np.column_stack([zi[:-1], 0.5 * (zi[:-1] + zi[1:]), zi[1:]])
-        return Profile(z, stress, fi, zi, plies, kinds), cell, st.case_names[k], "plies"
+        notes = ["states from the store's /plies (the run's inputs are not available)", *([note] if note else []),
+                 *notes]
+        fi = {n: v for n, v in fi.items() if n in applies}
+        return (Profile(z, stress, fi, zi, plies, kinds, info.factor_of_safety, tuple(notes)), cell,
+                st.case_names[k], "plies")
     total = s.mech[k] + s.fixed[k]
-    fi = {name: failure_index(r[k]) for name, r in s.ratio.items()}
-    return Profile(s.z, total[..., :5], fi, zi, plies, kinds), cell, st.case_names[k], s.source
+    fi = {name: failure_index(r[k]) for name, r in s.ratio.items() if name in applies}
+    return (Profile(s.z, total[..., :5], fi, zi, plies, kinds, info.factor_of_safety, tuple(notes)), cell,
+            st.case_names[k], s.source)
 
 
 def profile_figure_of(st: StoreReader, cell: int | None = None, case: str | None = None,
@@ -103,7 +156,8 @@ def profile_figure_of(st: StoreReader, cell: int | None = None, case: str | None
     except ValueError as err:
         raise FieldError(f"--kind profile --cell {cell} --case {name}: {err}", st.path) from None
     return fig, {"cell": cell, "case": name, "zone": zone, "laminate": laminate, "axis": axis, "source": source,
-                 "plies": len(prof.plies)}
+                 "plies": len(prof.plies), "criteria": ",".join(prof.failure_index) or "none",
+                 "note": list(prof.notes)}
 
 
 @dataclass(frozen=True)
@@ -137,30 +191,69 @@ def _polar(st: StoreReader, laminate: str | None):
     return fig, {"laminate": laminate}
 
 
+def _plies_text(numbers: list[int]) -> str:
+    """``ply 3`` or ``plies 1, 2, 8``."""
+    return f"ply {numbers[0]}" if len(numbers) == 1 else f"plies {', '.join(map(str, numbers))}"
+
+
+def _envelope_params(st: StoreReader, material: str, cell: int | None) -> tuple[list[tuple[list[int], np.ndarray]], str]:
+    """The property vectors the run used for ``material``, as (ply numbers, vector) groups, and what they hold.
+
+    With a cell: the vectors of the cell's plies of that material (/sections: knockdown and in-situ strengths
+    by ply position as the run applied them), plies with equal vectors grouped. Without one, or when the cell has
+    no ply of the material: the material's vector with its knockdown applied (in-situ strengths, if any, those
+    of a thick embedded ply).
+    """
+    from shells.params import knocked_down
+
+    info = st.run.material(material)
+    held = f"allowables × knockdown {info.knockdown:.4g}" if info.knockdown != 1.0 else "allowables as given"
+    if cell is not None:
+        sec = _section_of_cell(st, cell)
+        rows = _ply_params(st, sec.id)
+        groups: list[tuple[list[int], np.ndarray]] = []
+        for i, q in enumerate(sec.plies):
+            if q.material != material:
+                continue
+            same = next((g for g in groups if np.array_equal(g[1], rows[i], equal_nan=True)), None)
+            (same[0].append(i + 1) if same else groups.append(([i + 1], rows[i])))
+        if groups:
+            return groups, f"{held}, as the run used them in cell {cell}"
+    return [([], knocked_down(st.material_params(material), info.knockdown))], f"{held}, as the run used them"
+
+
 def _envelope(st: StoreReader, material: str | None, criteria: str | None, cell: int | None):
     from postproc.plots import ENVELOPE_PLANES, envelope_figure, trace_envelope
-    from shells.criteria import by_name
 
     mats = [m.name for m in st.run.materials]
     material = mats[0] if material is None else material
     if material not in mats:
         raise FieldError(f"--material {material!r} is not in the store; use one of: {', '.join(mats)}", st.path)
     names = list(st.run.criteria_used) if not criteria else [c.strip() for c in criteria.split(",")]
-    p = st.material_params(material)
-    curves = {n: [trace_envelope(by_name(n).ratio, p, plane) for plane, _, _ in ENVELOPE_PLANES] for n in names}
     states, label = None, ""
     if cell is not None:
         prof, cell, case, _ = profile_of(st, cell, None)
         plies = [i for i, q in enumerate(_section_of_cell(st, cell).plies) if q.material == material]
         states = np.concatenate([np.pad(prof.stress[i], ((0, 0), (0, 1))) for i in plies]) if plies else None
         label = f"cell {cell}, case {case}: plies of {material}"
+    groups, held = _envelope_params(st, material, cell)
+    curves = {}
+    for n in names:
+        traced: list[tuple[list[int], list[np.ndarray]]] = []
+        for numbers, p in groups:
+            pair = [trace_envelope(by_name(n).ratio, p, plane) for plane, _, _ in ENVELOPE_PLANES]
+            same = next((t for t in traced if all(np.allclose(a, b, equal_nan=True) for a, b in zip(t[1], pair))),
+                        None)
+            (same[0].extend(numbers) if same else traced.append((list(numbers), pair)))
+        for numbers, pair in traced:
+            curves[n if len(traced) == 1 else f"{n} ({_plies_text(numbers)})"] = pair
     try:
-        fig = envelope_figure(curves, states, title=f"Failure envelopes of {material}", unit=st.run.label("stress"),
-                              states_label=label)
+        fig = envelope_figure(curves, states, title=f"Failure envelopes of {material} ({held})",
+                              unit=st.run.label("stress"), states_label=label)
     except ValueError as err:
         raise FieldError(f"--kind envelope --material {material}: {err}; choose a ply material or other "
                          "--criteria", st.path) from None
-    return fig, {"material": material, "criteria": ",".join(curves), "cell": cell}
+    return fig, {"material": material, "criteria": ",".join(curves), "cell": cell, "allowables": held}
 
 
 def plot_store(store_path: str | Path, output: str | Path, kind: str = "profile", cell: int | None = None,

@@ -45,17 +45,18 @@ criteria = ["max-stress", "max-strain", "tsai-wu", "hashin", "puck", "larc03", "
             "wrinkling", "dimpling"]
 hot_spots = 2
 [[zones]]
+select = { tag = "block", values = [0] }
 name = "sand"
 laminate = "sand"
-select = { tag = "block", values = [0] }
 [[zones]]
-name = "mono"
 laminate = "mono"
+name = "mono"
 [cases.mech]
+description = "resultants only"
 step = 1
 [cases.cold]
-step = 2
 kind = "ultimate"
+step = 2
 delta_T = -80
 delta_M = 0.004
 pressure = 0.1

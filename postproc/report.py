@@ -149,6 +149,19 @@ def _summary(r: ReportInputs) -> str:
     return "".join(parts) + "</section>"
 
 
+def _no_margin_note(infos, names) -> str:
+    """Why a case has no finite margin: nothing in it is scaled (a temperature change only, or a held case on
+    its own, whose resultants are part of the fixed state too)."""
+    if not names:
+        return ""
+    held = "held: its resultants, pressure and ΔT are all fixed"
+    thermal = "no mechanical load, a temperature change only"
+    why = [f"{esc(n)} ({held if c and (c.held or c.held_steps) else thermal})" for n, c in zip(names, infos)]
+    return ('<p class="note">No finite margin in ' + "; ".join(why) + ": nothing in the case is scaled, and the "
+            "strength ratio is the factor on the scaled part with the fixed part held (docs/conventions.md), "
+            "infinite while the fixed state holds (0, margin −1, if it failed).</p>")
+
+
 def _minima(r: ReportInputs) -> str:
     m, s, c = r.meta, r.meta.summary, r.cells
     zones = {z.name: z for z in m.zones}
@@ -168,9 +181,8 @@ def _minima(r: ReportInputs) -> str:
             for x in s.cases]
     out += ["<h3>By case</h3>",
             table(["case", "kind", "factor of safety [-]", "min margin [-]", *_head(where)], rows),
-            '<p class="note">A case with no mechanical load (a temperature change only) has no finite margin: the '
-            "strength ratio is the factor on the mechanical load with the thermal stress held (docs/conventions.md)."
-            "</p>" if any(x.min_margin is None for x in s.cases) else ""]
+            _no_margin_note([cases.get(x.name) for x in s.cases if x.min_margin is None], [x.name for x in s.cases
+                                                                                          if x.min_margin is None])]
     rows = [[x.name, margin(x.min_margin), *_fact_columns(c.get(x.cell), where)] for x in s.criteria]
     out += ["<h3>By criterion</h3>", table(["criterion", "min margin [-]", *_head(where)], rows),
             '<p class="note">By case and by criterion, the cell where the minimum occurs; the ply and failure mode '

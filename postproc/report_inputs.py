@@ -77,12 +77,17 @@ def _laminate(s: SectionInfo, zones: list[str], m: RunMeta, open_details: bool) 
             f"{folded}</details>")
 
 
+def _steps_text(steps) -> str:
+    return ", ".join(f"step {f.name}" + ("" if f.value == 1 else f" × {short(f.value)}") for f in steps)
+
+
 def _combination_text(c) -> str:
+    """How a case is built: a combination's factors, else its input steps, scaled and held."""
     if c.combination:
         return "combination: " + " + ".join(f"{short(f.value)} × {f.name}" for f in c.combination)
-    if c.steps:
-        return ", ".join(f"step {f.name}" + ("" if f.value == 1 else f" × {short(f.value)}") for f in c.steps)
-    return ""
+    parts = ([_steps_text(c.steps)] if c.steps else []) + ([f"held: {_steps_text(c.held_steps)}"]
+                                                          if c.held_steps else [])
+    return "; ".join(parts) or "—"
 
 
 def inputs_section(m: RunMeta, open_details: bool = False) -> str:

@@ -152,6 +152,18 @@ def test_held_case_through_recover(tmp_path, write_definition):
     assert [c.held for c in meta.cases] == [("cooldown",), (), ("cooldown",)]
     assert [tuple((n.name, n.value) for n in c.held_steps) for c in meta.cases] == [
         (("cool", 1.0),), (), (("cool", 1.0),)]
+    # The report says how each case is built (the held case's steps too) and why the held case has no margin.
+    from postproc.report_inputs import inputs_section
+
+    inputs = inputs_section(meta)
+    assert "<td>held: step cool</td>" in inputs and "<td>step pressure</td>" in inputs
+    assert "combination: 1 × cooldown + 1 × pressure" in inputs
+    report = tmp_path / "r.html"
+    proc = run_cli("report", out, "-o", report)
+    assert proc.returncode == 0, proc.stderr
+    html = report.read_text(encoding="utf-8")
+    assert "No finite margin in cooldown (held: its resultants, pressure and ΔT are all fixed)" in html
+    assert "a temperature change only)" not in html
 
 
 def test_held_part_with_a_transverse_shear_field():

@@ -53,7 +53,8 @@ def _error(text: str) -> str:
 
 
 @pytest.mark.parametrize("units, key, value, needles", [
-    ("N-mm", "E1", "181", ("materials.cf.E1 = 181 MPa", "181 read as 181 MPa: did you mean \"181 GPa\" (= 181000 MPa)?")),
+    ("N-mm", "E1", "181", ("materials.cf.E1 = 181 MPa",
+                           "181 read as 181 MPa: did you mean \"181 GPa\" (= 181000 MPa)?")),
     ("N-mm", "E1", "26.25e6", ("looks like psi in an N-mm file",)),
     ("N-mm", "Xt", "217600", ("materials.cf.Xt", "looks like psi in an N-mm file")),
     ("N-m", "Xt", "1500", ("1500 read as 1500 Pa", "\"1500 MPa\"")),
@@ -106,8 +107,9 @@ def test_every_material_number_has_a_range():
 
     for kind, spec in SPECS.items():
         numbers = {k for k, q in spec.items() if q not in ("str", "bool")} - {"strain_limits"}
-        numbers |= {f"strain_limits.{k}" for k in ("fibre_tension", "fibre_compression", "matrix_tension",
-                                                    "matrix_compression", "shear")} if "strain_limits" in spec else set()
+        if "strain_limits" in spec:
+            numbers |= {f"strain_limits.{k}" for k in ("fibre_tension", "fibre_compression", "matrix_tension",
+                                                        "matrix_compression", "shear")}
         assert numbers <= set(RANGES[kind]), (kind, sorted(numbers - set(RANGES[kind])))
 
 

@@ -196,7 +196,8 @@ def _plies_text(numbers: list[int]) -> str:
     return f"ply {numbers[0]}" if len(numbers) == 1 else f"plies {', '.join(map(str, numbers))}"
 
 
-def _envelope_params(st: StoreReader, material: str, cell: int | None) -> tuple[list[tuple[list[int], np.ndarray]], str]:
+def _envelope_params(st: StoreReader, material: str,
+                     cell: int | None) -> tuple[list[tuple[list[int], np.ndarray]], str]:
     """The property vectors the run used for ``material``, as (ply numbers, vector) groups, and what they hold.
 
     With a cell: the vectors of the cell's plies of that material (/sections: knockdown and in-situ strengths

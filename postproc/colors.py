@@ -9,11 +9,13 @@ Three kinds of field, three kinds of map:
   to deep teal above, resampled so that **zero sits at the pale centre whatever
   the limits** (a two-slope scale: below and above zero are stretched
   separately), so a negative margin always reads red;
-- ``categorical`` (critical ply, criterion, mode, case): our own palette,
-  generated in the OKLCh perceptual space (Ottosson 2020) by walking hue and
-  lightness along a two-dimensional low-discrepancy sequence (Roberts 2018,
-  the "R2" sequence), so any number of categories spreads evenly over hues and
-  lightness levels and neighbours in the list differ in both.
+- ``categorical`` (critical ply, criterion, mode, case): our own palette, built
+  in the OKLab perceptual space (Ottosson 2020) by farthest-point selection:
+  each next colour is the in-gamut candidate farthest from every colour taken
+  before it (and from the worst-cell mark, the no-value grey and the white
+  page), so any n first colours are as far apart as the sequence allows, and
+  categories listed together (the plies of one zone) never share a hue and
+  lightness.
 
 Cells without a value (NaN: flagged, past the ply count, not computed) are drawn
 in :data:`NO_VALUE`, a neutral grey that none of the maps contains.
@@ -21,6 +23,8 @@ All functions are pure; nothing here keeps state.
 """
 
 from __future__ import annotations
+
+import functools
 
 import numpy as np
 
@@ -38,9 +42,9 @@ SEQUENTIAL = "viridis"
 #: Anchor colours of the diverging map, from the negative end through zero to the positive end.
 BALANCE = ("#7a1020", "#c8462c", "#f1b27a", "#f3efe6", "#8fcfc4", "#2b8c8c", "#0c3f55")
 
-#: Categorical palette: R2 sequence steps (1/φ₂ and 1/φ₂², φ₂ the plastic number), start offsets of hue and
-#: lightness (fractions), lightness range and chroma in OKLCh.
-_R2, _START, _LIGHTNESS, _CHROMA = (0.7548776662, 0.5698402910), (0.62, 0.35), (0.42, 0.76), 0.15
+#: Categorical palette: candidates on an OKLab grid (lightness range, chroma range, grid steps), kept away from
+#: the page, the mark and the no-value grey.
+_LIGHTNESS, _CHROMA, _GRID = (0.40, 0.82), (0.05, 0.20), (15, 33)
 
 KINDS = ("sequential", "diverging", "categorical")
 
@@ -115,35 +119,52 @@ _LAB_TO_LMS = np.array([[1.0, 0.3963377774, 0.2158037573],
                         [1.0, -0.0894841775, -1.2914855480]])
 
 
-def _linear_rgb(lightness: float, chroma: float, hue_deg: float) -> np.ndarray:
-    """Linear-light sRGB of an OKLCh colour, not clipped (Ottosson, "A perceptual color space for image
-    processing", 2020: OKLab → LMS by the cube of a linear map, LMS → linear sRGB)."""
-    h = np.radians(hue_deg)
-    lab = np.array([lightness, chroma * np.cos(h), chroma * np.sin(h)])
-    return _LMS_TO_LINEAR @ (_LAB_TO_LMS @ lab) ** 3
+_RGB_TO_LMS = np.array([[0.4122214708, 0.5363325363, 0.0514459929],
+                        [0.2119034982, 0.6806995451, 0.1073969566],
+                        [0.0883024619, 0.2817188376, 0.6299787005]])
+_LMS_TO_LAB = np.array([[0.2104542553, 0.7936177850, -0.0040720468],
+                        [1.9779984951, -2.4285922050, 0.4505937099],
+                        [0.0259040371, 0.7827717662, -0.8086757660]])
 
 
-def oklch_to_rgb(lightness: float, chroma: float, hue_deg: float) -> np.ndarray:
-    """sRGB (0 … 1, clipped to the gamut, gamma-encoded) of an OKLCh colour."""
-    linear = np.clip(_linear_rgb(lightness, chroma, hue_deg), 0.0, 1.0)
-    return np.where(linear <= 0.0031308, 12.92 * linear, 1.055 * linear ** (1 / 2.4) - 0.055)
+def to_oklab(colours) -> np.ndarray:
+    """OKLab (L, a, b) of ``#rrggbb`` colours, shape (n, 3) (Ottosson 2020: sRGB decoded to linear light,
+    LMS by a linear map, cube root, OKLab by a second linear map). Euclidean distance is the perceptual
+    difference (about 0.02 just noticeable)."""
+    rgb = np.array([hex_to_rgb(c) for c in colours])
+    linear = np.where(rgb <= 0.04045, rgb / 12.92, ((rgb + 0.055) / 1.055) ** 2.4)
+    return (_LMS_TO_LAB @ np.cbrt(_RGB_TO_LMS @ linear.T)).T
+
+
+@functools.lru_cache(maxsize=8)
+def _sequence(n: int) -> tuple[str, ...]:
+    """The first ``n`` colours of the farthest-point sequence (see the module notes)."""
+    lightness = np.linspace(*_LIGHTNESS, _GRID[0])
+    ab = np.linspace(-_CHROMA[1], _CHROMA[1], _GRID[1])
+    L, a, b = np.meshgrid(lightness, ab, ab, indexing="ij")
+    lab = np.stack([L.ravel(), a.ravel(), b.ravel()], axis=1)
+    chroma = np.hypot(lab[:, 1], lab[:, 2])
+    lab = lab[(chroma >= _CHROMA[0]) & (chroma <= _CHROMA[1])]
+    linear = (_LMS_TO_LINEAR @ ((_LAB_TO_LMS @ lab.T) ** 3)).T
+    lab = lab[np.all((linear >= 0.0) & (linear <= 1.0), axis=1)]           # inside the sRGB gamut
+    avoid = to_oklab([MARK, NO_VALUE, "#ffffff"])
+    gap = np.min(np.linalg.norm(lab[:, None, :] - avoid[None], axis=-1), axis=1)
+    out = []
+    for _ in range(n):
+        j = int(np.argmax(gap))
+        out.append(lab[j])
+        gap = np.minimum(gap, np.linalg.norm(lab - lab[j], axis=1))
+    linear = np.clip((_LMS_TO_LINEAR @ ((_LAB_TO_LMS @ np.array(out).reshape(-1, 3).T) ** 3)).T, 0.0, 1.0)
+    encoded = np.where(linear <= 0.0031308, 12.92 * linear, 1.055 * linear ** (1 / 2.4) - 0.055)
+    return tuple(rgb_to_hex(c) for c in encoded)
 
 
 def palette(n: int) -> list[str]:
-    """``n`` categorical colours (hex): hue and lightness from the R2 sequence (see the module notes).
-
-    The chroma is lowered where a colour would leave the sRGB gamut, so every colour keeps its hue.
-    """
-    out = []
-    lo, hi = _LIGHTNESS
-    for i in range(n):
-        hue = 360.0 * ((_START[0] + i * _R2[0]) % 1.0)
-        lightness = lo + (hi - lo) * ((_START[1] + i * _R2[1]) % 1.0)
-        chroma = _CHROMA
-        while chroma > 0.03 and not np.all(np.abs(_linear_rgb(lightness, chroma, hue) - 0.5) <= 0.5):
-            chroma -= 0.01
-        out.append(rgb_to_hex(oklch_to_rgb(lightness, chroma, hue)))
-    return out
+    """``n`` categorical colours (hex), the first ``n`` of one fixed sequence (so ``palette(k)`` starts
+    ``palette(n)`` for k < n): each the in-gamut OKLab colour farthest from all before it."""
+    if n <= 0:
+        return []
+    return list(_sequence(max(int(n), 12))[:n])
 
 
 #: The first twelve categorical colours (hex, sRGB).

@@ -295,7 +295,8 @@ def _mark(fig, p: Plan, box: Box, mark: Mark) -> None:
 
 def columns(lines: list, cols: int, rows: int) -> list[list]:
     """Legend lines flowed into ``cols`` columns of at most ``rows``; a group cut by a column break has its
-    heading repeated (``… (continued)``); what does not fit ends in a line saying how many more there are."""
+    heading repeated (``… (continued)``), never an untitled group's (its blank heading ends the group before);
+    what does not fit ends in a line saying how many more there are."""
     out: list[list] = [[]]
     heading = None
     for k, (text, colour, head) in enumerate(lines):
@@ -309,6 +310,8 @@ def columns(lines: list, cols: int, rows: int) -> list[list]:
             out.append([])
             if not head and heading:
                 out[-1].append((f"{heading} (continued)", None, True))
+        if head and not text and not out[-1]:
+            continue                                    # a blank separator never opens a column
         out[-1].append((text, colour, head))
     return out
 

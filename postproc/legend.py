@@ -24,10 +24,11 @@ class Legend:
     groups: tuple[tuple[str, tuple[tuple[str, str], ...]], ...]
 
     def lines(self) -> list[tuple[str, str | None, bool]]:
-        """(text, colour or None, is a heading) in reading order."""
+        """(text, colour or None, is a heading) in reading order; an untitled group after others starts with an
+        empty heading (a blank line), so it is never shown as the continuation of the group before it."""
         out = []
         for title, entries in self.groups:
-            if title:
+            if title or out:
                 out.append((title, None, True))
             out += [(label, colour, False) for label, colour in entries]
         return out

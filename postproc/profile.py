@@ -140,23 +140,24 @@ def profile_figure(profile: Profile, *, title: str, stress_unit: str, length_uni
         if not np.nan_to_num(stress[..., list(comps)]).any():        # nothing but zeros: say so, no noise axis
             ax.set_xlim(-1.0, 1.0)
             ax.set_xticks([0.0])
-            ax.text(0.5, 0.5, "zero through the thickness", transform=ax.transAxes, ha="center", va="center",
-                    fontsize=9, color=colors.INK_MUTED, rotation=90)
+            ax.text(0.5, 0.5, "zero through\nthe thickness", transform=ax.transAxes, ha="center", va="center",
+                    fontsize=9, color=colors.INK_MUTED, bbox=dict(facecolor="white", edgecolor="none"))
         ax.legend(fontsize=8, loc="upper center", bbox_to_anchor=(0.5, below), ncols=2, frameon=False)
     ax = axes[-1]
     finite_fi = [np.asarray(fi, float) for fi in profile.failure_index.values()]
+    pal_fi = colors.palette(2 + len(profile.failure_index))[2:]      # none shared with the stress panels
     for j, (crit, fi) in enumerate(profile.failure_index.items()):
-        ax.plot(_broken(np.asarray(fi, float)), yy, color=pal[(j + 3) % len(pal)], lw=1.6, marker=MARKERS[j % 7],
+        ax.plot(_broken(np.asarray(fi, float)), yy, color=pal_fi[j], lw=1.6, marker=MARKERS[j % 7],
                 ms=3, label=plain(crit))
     top = max([1.05] + [1.05 * float(np.nanmax(f)) for f in finite_fi if np.isfinite(f).any()])
     ax.set_xlim(0.0, top)
-    ax.axvline(1.0, color=colors.BALANCE[0], lw=1.0, ls="--", label="failure: R = 1")
+    ax.axvline(1.0, color=colors.INK, lw=1.0, ls="--", label="failure: R = 1")
     fos = float(profile.factor_of_safety)
     if fos != 1.0:
         ax.axvline(1.0 / fos, color=colors.INK_MUTED, lw=1.0, ls=":", label=f"margin 0: R = FoS {fos:g}")
     if not profile.failure_index:
-        ax.text(0.5, 0.5, "no failure index (see the note below)", transform=ax.transAxes, ha="center",
-                va="center", fontsize=9, color=colors.INK_MUTED, rotation=90)
+        ax.text(0.5, 0.5, "no failure index\n(see the note below)", transform=ax.transAxes, ha="center",
+                va="center", fontsize=9, color=colors.INK_MUTED, bbox=dict(facecolor="white", edgecolor="none"))
     ax.set_title("failure index 1/R", fontsize=10)
     ax.set_xlabel("failure index [-]")
     ax.xaxis.set_major_locator(MaxNLocator(4))

@@ -123,3 +123,42 @@ def test_a_picture_too_small_for_its_views_is_an_error(spar, tmp_path):
     assert_one_line_error(run_cli("render", spar, "-o", out, "--view", "iso", "--view", "top", "--size", "40x40"),
                           "larger --size")
     assert not out.exists()
+
+
+def test_categorical_colours_stay_apart():
+    """Any first n colours of the palette are far apart in OKLab (Euclidean distance, the perceptual difference;
+    about 0.02 is just noticeable, common practice), and from the worst-cell mark and the no-value grey: the
+    review found ΔE 12–14 pairs within one zone (plies 3 and 9 of a 5-entry group). Conversion checked on sRGB
+    red, OKLab (0.62796, 0.22486, 0.12585) (Ottosson, "A perceptual color space for image processing", 2020;
+    from memory)."""
+    from postproc import colors
+
+    np.testing.assert_allclose(colors.to_oklab(["#ff0000", "#ffffff"]),
+                               [[0.62796, 0.22486, 0.12585], [1.0, 0.0, 0.0]], atol=2e-4)
+    for n, least in ((5, 0.2), (12, 0.15), (33, 0.1)):
+        pal = colors.palette(n)
+        lab = colors.to_oklab(pal + [colors.MARK, colors.NO_VALUE])
+        d = np.linalg.norm(lab[:, None] - lab[None], axis=-1)
+        np.fill_diagonal(d, np.inf)
+        assert d[:n].min() >= least, (n, d[:n].min())
+        assert pal == colors.palette(n + 5)[:n]          # one sequence: a category keeps its colour as n grows
+
+
+def test_an_untitled_group_is_never_shown_as_a_continuation():
+    """The review's demo legend put "ringed: the worst cell" under "lid-sandwich (lid) (continued)": a group cut by
+    a column break repeats its heading, but the untitled tail (no value, the mark) belongs to no group."""
+    from postproc.layout import columns
+    from postproc.legend import Legend
+
+    plies = tuple((f"ply {k}", "#000000") for k in range(1, 6))
+    legend = Legend((("floor", plies), ("lid", plies), ("", (("ringed: the worst cell (553)", "#ff2fa0"),))))
+    for rows in range(3, 14):
+        shown = columns(legend.lines(), 4, rows)
+        for col in shown:
+            texts = [t for t, _, _ in col]
+            if "ringed: the worst cell (553)" in texts:
+                above = [t for t, _, head in col[:texts.index("ringed: the worst cell (553)")] if head]
+                assert not above or above[-1] == "", (rows, col)
+            assert col[0][0] != "" or not col[0][2], (rows, col)      # no column opens with a blank line
+    # Grouped plies still continue under their heading.
+    assert columns(legend.lines(), 2, 4)[1][0] == ("floor (continued)", None, True)

@@ -10,7 +10,7 @@ from bridge.definition.loader import load_definition, parse_definition
 from bridge.model.sections import section_of
 from shells.errors import DefinitionError, LayupError, MaterialError
 
-from tests.common import EXAMPLE, assert_one_line_error, run_cli
+from tests.common import EXAMPLE, KAW_PLY_TOML, assert_one_line_error, run_cli
 
 BASE = """
 units = "{units}"
@@ -116,5 +116,28 @@ def test_unknown_laminate_option_suggests(tmp_path):
 
 
 def test_text_table_names_units():
-    proc = run_cli("section", EXAMPLE, "--laminate", "skin")
+    proc = run_cli("section", EXAMPLE, "--laminate", "skin", "--table")
     assert proc.returncode == 0 and "A [N/mm]" in proc.stdout and "quasi_isotropic" in proc.stdout
+    assert_one_line_error(run_cli("section", EXAMPLE, "--table", "--json"), "--json or --table")
+
+
+def test_default_output_is_key_tab_value_at_full_precision(write_definition):
+    """The default output is for scripts: quantity<TAB>laminate<TAB>values, every number reading back to the JSON
+    output's float exactly. Check value: a single 0° ply of 1 mm, A11 = Q11·t with Q11 = E1/(1 − ν12·ν21),
+    A66 = G12·t (Kaw, Mechanics of Composite Materials, 2nd ed. 2006, eqs 2.93 and 4.28; Table 2.1 values)."""
+    path = write_definition('units = "N-mm"\n[materials.cf]\n' + KAW_PLY_TOML + 'thickness = 1.0\n'
+                            '[laminates.one]\nlayup = "[0]"\nmaterial = "cf"\n')
+    proc = run_cli("section", path)
+    assert proc.returncode == 0, proc.stderr
+    rows = [line.split("\t") for line in proc.stdout.splitlines()]
+    assert all(len(r) >= 2 for r in rows) and rows[0] == ["units", "N-mm"]
+    by = {(r[0], r[1]): r[2:] for r in rows}
+    assert by[("unit", "A")] == ["N/mm"] and by[("unit", "modulus")] == ["MPa"]
+    A = np.array(by[("A", "one")], dtype=float).reshape(3, 3)
+    nu21 = 0.28 * 10300 / 181000
+    np.testing.assert_allclose([A[0, 0], A[2, 2]], [181000 / (1 - 0.28 * nu21), 7170], rtol=1e-12)
+    assert by[("ply", "one")] == ["1", "cf", "0.0", "1.0", "-0.5", "0.5"]
+    membrane = [r[2:] for r in rows if r[:2] == ["membrane", "one"]]
+    assert [m[0] for m in membrane] == ["restrained", "free"] and all(len(m) == 6 for m in membrane)
+    data = json.loads(run_cli("section", path, "--json").stdout)["laminates"]["one"]
+    assert [float(v) for v in by[("D", "one")]] == [v for row in data["D"] for v in row]

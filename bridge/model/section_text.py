@@ -1,8 +1,56 @@
-"""Readable text tables of section summaries (the default output of ``plybridge section``)."""
+"""Section summaries as text: ``key<TAB>value`` lines (the default output of ``plybridge section``, for scripts)
+and readable tables (``--table``, for a person).
+
+The lines are one quantity per line, the quantity first and the laminate second, then the values, every
+number at full precision (the shortest text that reads back to the same float)::
+
+    units        N-mm
+    unit         A  N/mm             (the unit of every quantity below)
+    laminate     skin
+    thickness    skin  1.0
+    ply          skin  1  cf  0.0  0.125  -0.5  -0.375     (ply number, material, angle, thickness, z bottom, z top)
+    A            skin  a11 a12 a16 a21 a22 a26 a61 a62 a66 (row by row; B, D likewise; H: h44 h45 h54 h55)
+    membrane     skin  restrained  Ex Ey Gxy nuxy nuyx    (also free; flexural likewise)
+
+so ``grep -P '^A\tskin\t'`` or ``awk -F'\t' '$1 == "D"'`` picks a value out. docs/fields.md lists the lines.
+"""
 
 from __future__ import annotations
 
 from bridge.definition.units import UnitSystem
+
+#: The engineering constants in the order of a ``membrane`` / ``flexural`` line.
+CONSTANTS = ("Ex", "Ey", "Gxy", "nuxy", "nuyx")
+
+
+def _n(value) -> str:
+    return repr(float(value))
+
+
+def section_lines(summaries: dict[str, dict], units: UnitSystem) -> str:
+    """``key<TAB>value`` lines of section summaries (see the module notes); ends with a newline."""
+    L, F, T = units.label("length"), units.force_symbol, units.label("temperature")
+    rows: list[list[str]] = [["units", units.name]]
+    for quantity, label in (("length", L), ("angle", "°"), ("areal_mass", units.label("areal_mass")),
+                            ("A", units.label("stiffness_A")), ("B", units.label("stiffness_B")),
+                            ("D", units.label("stiffness_D")), ("H", units.label("stiffness_A")),
+                            ("NT", f"{F}/{L}/{T}"), ("MT", f"{F}/{T}"), ("modulus", units.label("stress"))):
+        rows.append(["unit", quantity, label])
+    rows += [["laminate", name] for name in summaries]
+    for name, s in summaries.items():
+        rows += [["thickness", name, _n(s["thickness"])], ["offset", name, _n(s["offset"])],
+                 ["areal_mass", name, _n(s["areal_mass"])], ["plies", name, str(len(s["plies"]))],
+                 ["flags", name, *(k for k, v in s["flags"].items() if v)],
+                 ["shear_method", name, s["shear_method"]]]
+        rows += [["ply", name, str(k), p["material"], _n(p["angle"]), _n(p["thickness"]), _n(zb), _n(zt)]
+                 for k, (p, zb, zt) in enumerate(zip(s["plies"], s["z"][:-1], s["z"][1:]), start=1)]
+        for key in ("A", "B", "D", "H"):
+            rows.append([key, name, *(_n(v) for row in s[key] for v in row)])
+        rows += [["NT", name, *map(_n, s["NT"])], ["MT", name, *map(_n, s["MT"])]]
+        for kind in ("membrane", "flexural"):
+            for variant in ("restrained", "free"):
+                rows.append([kind, name, variant, *(_n(s[kind][variant][c]) for c in CONSTANTS)])
+    return "".join("\t".join(row) + "\n" for row in rows)
 
 
 def _matrix(name: str, rows: list[list[float]], unit: str) -> list[str]:

@@ -171,9 +171,10 @@ class Orthotropic(_Layer):
         """S_T of Hashin's matrix modes: S23 when given, else from the fracture plane (Dávila et al. 2005)."""
         return self.S23 if self.S23 is not None else defaults.fracture_plane_shear_strength(self.Yc, self.alpha0_deg)
 
-    def defaults_used(self) -> dict[str, str]:
-        """Criterion name → a one-line note on each default this material relies on for that criterion."""
-        return defaults.defaults_used(self)
+    def defaults_used(self, stress_unit: str = "") -> dict[str, str]:
+        """Criterion name → a one-line note on each default this material relies on for that criterion
+        (stresses labelled with ``stress_unit``)."""
+        return defaults.defaults_used(self, stress_unit)
 
     def Q(self) -> np.ndarray:
         """Plane-stress reduced stiffness in material axes, order (1, 2, 12)."""

@@ -73,13 +73,19 @@ def fracture_plane_shear_strength(Yc: float | None, alpha0_deg: float) -> float 
     return Yc * math.cos(a) * (math.sin(a) + math.cos(a) / math.tan(2.0 * a))
 
 
-def defaults_used(ply) -> dict[str, str]:
-    """Criterion name → a one-line note on each default an orthotropic ply relies on for that criterion."""
+def _g(value: float) -> str:
+    """Four significant figures without an exponent where a reader expects none (13440, 92.74, 0.0083)."""
+    return f"{float(f'{value:.4g}'):g}" if 1e-4 <= abs(value) < 1e6 else f"{value:.4g}"
+
+
+def defaults_used(ply, stress_unit: str = "") -> dict[str, str]:
+    """Criterion name → a one-line note on each default an orthotropic ply relies on for that criterion;
+    ``stress_unit`` (e.g. ``MPa``) labels the stresses of the notes."""
     notes = {}
     values, derived = strain_limit_values(ply)
     if derived:
         notes["max-strain"] = ("strain limits " + ", ".join(
-            f"{n} = {values[n]:.4g} ({'/'.join(STRAIN_DEFAULTS[n])})" for n in derived)
+            f"{n} = {_g(values[n])} ({'/'.join(STRAIN_DEFAULTS[n])})" for n in derived)
             + " derived as strength / modulus (common practice)")
     if ply.p_tpl is None or ply.p_cpl is None:
         pt, pc = puck_inclinations(ply)
@@ -87,15 +93,16 @@ def defaults_used(ply) -> dict[str, str]:
         notes["puck"] = f"inclinations p_tpl = {pt:g}, p_cpl = {pc:g} of {family} fibre (Puck, Kopp & Knops 2002)"
     if ply.S23 is None and ply.Yc is not None:
         st = fracture_plane_shear_strength(ply.Yc, ply.alpha0_deg)
-        notes["hashin"] = (f"transverse shear strength S_T = {st:.4g} from the fracture plane at alpha0 = "
-                           f"{ply.alpha0_deg:g} deg (Davila, Camanho & Rose 2005)")
+        unit = f" {stress_unit}" if stress_unit else ""
+        notes["hashin"] = (f"transverse shear strength S_T = {_g(st)}{unit} from the fracture plane at alpha0 = "
+                           f"{ply.alpha0_deg:g}° (Davila, Camanho & Rose 2005)")
     if ply.insitu and (ply.G_Ic is None or ply.G_IIc is None):
         notes["larc03"] = ("in-situ strengths without G_Ic, G_IIc: thick-ply values on embedded plies, the "
                            "unidirectional strengths on outer plies (conservative)")
     return notes
 
 
-def notes_for(materials, criteria: set[str] | frozenset[str]) -> dict[str, dict[str, str]]:
+def notes_for(materials, criteria: set[str] | frozenset[str], stress_unit: str = "") -> dict[str, dict[str, str]]:
     """Material name → {criterion: note} of the defaults the chosen criteria rely on (materials without any left out).
 
     Parameters
@@ -104,10 +111,13 @@ def notes_for(materials, criteria: set[str] | frozenset[str]) -> dict[str, dict[
         The materials a run uses (each once).
     criteria : set of str
         Names of the chosen criteria.
+    stress_unit : str
+        Label of the run's stress unit, shown with the stresses of the notes.
     """
     out = {}
     for m in materials:
-        used = {c: text for c, text in getattr(m, "defaults_used", dict)().items() if c in criteria}
+        used = {c: text for c, text in m.defaults_used(stress_unit).items() if c in criteria} \
+            if hasattr(m, "defaults_used") else {}
         if used:
             out[m.name] = used
     return out

@@ -108,6 +108,11 @@ def test_hashin_default_transverse_shear_strength():
     np.testing.assert_allclose(S_T, 0.3768 * YC, rtol=1e-4)
     assert PLY[P.S_T] == pytest.approx(S_T, rel=1e-14)
     assert "fracture plane" in Orthotropic("k", E1=E1, E2=E2, G12=G12, nu12=NU12, Yc=YC).defaults_used()["hashin"]
+    # The note gives S_T with its unit and four figures, no exponent (the review saw "1.344e+04" and "deg").
+    note = Orthotropic("k", E1=E1, E2=E2, G12=G12, nu12=NU12, Yc=YC).defaults_used("MPa")["hashin"]
+    assert f"S_T = {float(f'{S_T:.4g}'):g} MPa" in note and "alpha0 = 53°" in note
+    psi = Orthotropic("k", E1=E1, E2=E2, G12=G12, nu12=NU12, Yc=35680.0).defaults_used("psi")["hashin"]
+    assert "S_T = 13440 psi" in psi          # 0.3768 × 35 680 psi (35 680 psi = 246 MPa)
 
 
 @pytest.mark.parametrize("sm, want, mode", CASES)

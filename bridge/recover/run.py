@@ -104,12 +104,12 @@ def plan_cases(defn: Definition, model: Model, step_names: tuple[str, ...]) -> C
                     np.array([c.held_pressure for c in cases]) if held else None)
 
 
-def defaults_of(model: Model, crit) -> dict[str, dict[str, str]]:
+def defaults_of(model: Model, crit, stress_unit: str = "") -> dict[str, dict[str, str]]:
     """Material → {criterion: note} of the defaults the chosen criteria rely on (derived strain limits, ...)."""
     from shells.ply_defaults import notes_for
 
     materials = {p.material.name: p.material for s in model.sections for p in s.laminate.plies}
-    return notes_for(materials.values(), {c.name for c in crit})
+    return notes_for(materials.values(), {c.name for c in crit}, stress_unit)
 
 
 def criteria_of(defn: Definition, model: Model) -> tuple[type, ...]:
@@ -325,7 +325,7 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
             notes = notes + check_note(summary["transverse_shear"])
         summary["notes"] = notes
         summary["cell_order"] = cell_order(source)
-        summary["defaults"] = defaults_of(model, crit)
+        summary["defaults"] = defaults_of(model, crit, defn.units.label("stress"))
         summary["held"] = {c.name: list(c.held_parts) for c in plan.cases if c.held_parts}
         if progress is not None and note is not None:          # on stderr unless --quiet
             for mat, texts in summary["defaults"].items():

@@ -18,9 +18,13 @@ MEANINGS = {
     "Yc": "compressive strength along 2", "S12": "in-plane shear strength", "S13": "shear strength 13",
     "S23": "shear strength 23", "ilss": "interlaminar shear strength", "Zc": "flatwise compressive strength",
     "yield_strength": "yield strength", "cell_size": "honeycomb cell size",
-    "e1t": "tensile strain limit along 1", "e1c": "compressive strain limit along 1",
-    "e2t": "tensile strain limit along 2", "e2c": "compressive strain limit along 2",
-    "g12u": "in-plane shear strain limit", "F12star": "Tsai-Wu interaction term", "insitu": "in-situ strengths",
+    "F12star": "Tsai-Wu interaction term", "insitu": "in-situ strengths",
+    "strain_limits.fibre_tension": "tensile strain limit along 1",
+    "strain_limits.fibre_compression": "compressive strain limit along 1",
+    "strain_limits.matrix_tension": "tensile strain limit along 2",
+    "strain_limits.matrix_compression": "compressive strain limit along 2",
+    "strain_limits.shear": "in-plane shear strain limit", "fibre": "fibre family (Puck's inclinations)",
+    "G_Ic": "mode I fracture toughness", "G_IIc": "mode II fracture toughness",
     "p_tpl": "Puck inclination (tension)", "p_cpl": "Puck inclination (compression)",
     "alpha0": "fracture angle in pure transverse compression",
 }
@@ -38,13 +42,24 @@ def _value(p, m: RunMeta) -> tuple:
     return num(p.value), "-" if unit in ("-", "dimensionless") else unit
 
 
+#: Meanings that differ for a material kind.
+KIND_MEANINGS = {"core": {"E1": "in-plane modulus along 1 (ribbon)", "E2": "in-plane modulus along 2",
+                          "thickness": "default core thickness"}}
+
+
 def _material(x: MaterialInfo, m: RunMeta) -> str:
-    rows = [[p.key, MEANINGS.get(p.key, ""), *_value(p, m)] for p in x.properties]
+    meanings = {**MEANINGS, **KIND_MEANINGS.get(x.kind, {})}
+    # A core's zero in-plane moduli are the default "carries no in-plane load", said once rather than as data.
+    no_membrane = x.kind == "core" and all(p.value == 0 for p in x.properties if p.key in ("E1", "E2"))
+    rows = [[p.key, meanings.get(p.key, ""), *_value(p, m)] for p in x.properties
+            if not (no_membrane and p.key in ("E1", "E2"))]
     parts = [f'<div class="material"><h3>{esc(x.name)} <small>({esc(x.kind)})</small></h3>',
              f"<p>Source: {esc(x.source)}</p>" if x.source else
              '<p class="note">No source given (add <code>source = "…"</code> to the material).</p>',
              f'<p class="note">{esc(x.description)}</p>' if x.description else "",
-             table(["property", "meaning", "value", "unit"], rows)]
+             table(["property", "meaning", "value", "unit"], rows),
+             '<p class="note">In-plane moduli E1 = E2 = 0: the core carries no in-plane load.</p>'
+             if no_membrane else ""]
     factors = [[f.name, num(f.value)] for f in x.knockdown_factors]
     kd = [["knockdown (fraction of strength retained)", num(x.knockdown)]]
     if factors:

@@ -179,6 +179,10 @@ def test_spar_report_reads_as_a_checker_needs(spar_report, tmp_path):
     assert "<td>environment</td>" in dom and "<td>damage</td>" in dom and "<td>MPa</td>" in dom
     assert "[0/0/45/0/0/-45/0/0/90/0/0/45/0/0/-45/0/0]s" in dom and dom.count("<details") >= 4
     assert "combination: 1 × flap-up + 0.8 × torsion" in dom
+    # A core's default zero in-plane moduli are said once, not listed as data; defaults carry their units.
+    assert "In-plane moduli E1 = E2 = 0: the core carries no in-plane load." in dom
+    assert "<td>in-plane modulus along 1 (ribbon)</td>" not in dom
+    assert re.search(r"S_T = [0-9.]+ MPa from the fracture plane at alpha0 = 53°", dom)
     assert "ΔT [°C]" in dom and "pressure [MPa]" in dom
     # Settings as a table; the verification summary; maps one per row, full width; the caution twice.
     assert "<h2>Settings</h2>" in dom and "face wrinkling coefficient [-]" in dom

@@ -180,6 +180,9 @@ def test_demo_runs_end_to_end(demo_run):
     assert proc.returncode == 0, proc.stderr
     lines = [line.split("\t") for line in proc.stdout.strip().splitlines()]
     assert ["report", str(out / "report.html")] in lines and ["store", str(out / "results.h5")] in lines
+    assert ["margin_map", str(out / "margin.png")] in lines
+    assert ["critical_ply_map", str(out / "critical-ply.png")] in lines
+    assert len({line[0] for line in lines}) == len(lines)         # every key once
     html = (out / "report.html").read_text(encoding="utf-8")
     assert "<html" in html.lower() and "qualified engineer" in html
     for name in ("margin.png", "critical-ply.png"):

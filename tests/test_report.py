@@ -92,6 +92,8 @@ def test_report_is_self_contained_and_escaped(plate_report):
     assert html.escape(EVIL, quote=True) in text
     assert not re.search(r'(src|href)="(?!data:)', text)  # nothing fetched from elsewhere
     assert "never replace, review by a qualified engineer" in text and "@media print" in text
+    keys = [line.split("\t")[0] for line in proc.stdout.splitlines()]
+    assert "pdf" not in keys and len(keys) == len(set(keys))     # no empty pdf line without --pdf
     policy = re.search(r'http-equiv="Content-Security-Policy" content="([^"]+)"', text).group(1)
     assert "script-src 'none'" in policy and "default-src 'none'" in policy and "img-src data:" in policy
     from bridge.results.store import StoreReader

@@ -62,5 +62,7 @@ def demo(out_dir: str, as_json: bool) -> None:
     report = out / REPORT_NAME
     write_report(store, report)
     _note(start, f"wrote {report}")
-    echo_summary({"report": str(report), "store": str(store), "maps": [str(out / name) for _, name in MAPS],
+    # One key per map (a key given once reads into a dict): margin_map, critical_ply_map.
+    maps = {f"{field.replace('-', '_')}_map": str(out / name) for field, name in MAPS}
+    echo_summary({"report": str(report), "store": str(store), **maps,
                   "min_margin": w.get("min_margin"), "cell": w.get("cell"), "case": w.get("case")}, as_json)

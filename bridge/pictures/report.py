@@ -183,7 +183,7 @@ def write_report(store_path: str | Path, output: str | Path, compare: str | Path
     Returns
     -------
     dict
-        ``output``, ``pdf``, ``min_margin``, ``cell``, ``failing_cells``, ``hot_spots``, ``figures``.
+        ``output``, ``pdf`` (only when given), ``min_margin``, ``cell``, ``failing_cells``, ``hot_spots``, ``figures``.
     """
     from postproc.report import build_report
 
@@ -201,6 +201,6 @@ def write_report(store_path: str | Path, output: str | Path, compare: str | Path
 
         write_pdf(build_report(replace(inputs, open_details=True)), pdf)
     w = inputs.meta.summary.worst
-    return {"output": str(output), "pdf": str(pdf) if pdf else None, "min_margin": w.min_margin if w else None,
+    return {"output": str(output), **({"pdf": str(pdf)} if pdf else {}), "min_margin": w.min_margin if w else None,
             "cell": w.cell if w else None, "failing_cells": inputs.failing_cells, "hot_spots": len(inputs.hot),
             "figures": len(inputs.figures)}

@@ -94,6 +94,15 @@ def trace_envelope(ratio: Callable, params: np.ndarray, plane: tuple[int, int], 
 
 
 ENVELOPE_PLANES = (((0, 1), "σ1", "σ2"), ((1, 2), "σ2", "τ12"))
+#: Line styles of successive envelope curves (with their colours), so coinciding curves stay visible (maximum
+#: stress and Hashin share the σ1–σ2 rectangle when S_T comes from the fracture plane).
+ENVELOPE_DASHES = ("-", (0, (5, 3)), (0, (1, 2)), (0, (6, 2, 1, 2)))
+
+
+def drawable(curves: Mapping[str, Sequence[np.ndarray]]) -> dict[str, Sequence[np.ndarray]]:
+    """The curves that give an envelope in at least one plane (some finite point), in order."""
+    return {name: pair for name, pair in curves.items()
+            if any(np.isfinite(np.asarray(pts, float)).any() for pts in pair)}
 
 
 def envelope_figure(curves: Mapping[str, Sequence[np.ndarray]], states: np.ndarray | None, *, title: str,
@@ -107,8 +116,7 @@ def envelope_figure(curves: Mapping[str, Sequence[np.ndarray]], states: np.ndarr
     states : ndarray (k, 6) or None
         Stress states (σ1, σ2, τ12, τ13, τ23, σ3) to overlay as points.
     """
-    curves = {name: pair for name, pair in curves.items()
-              if any(np.isfinite(np.asarray(pts, float)).any() for pts in pair)}
+    curves = drawable(curves)
     if not curves:
         raise ValueError("none of the criteria gives an envelope in the σ1–σ2 or σ2–τ12 plane for this material "
                          "(a core carries transverse shear and through-thickness stress only)")
@@ -120,6 +128,7 @@ def envelope_figure(curves: Mapping[str, Sequence[np.ndarray]], states: np.ndarr
     axes = fig.subplots(1, 2)
     pal = colors.palette(max(len(curves), 1))
     for p, (ax, (plane, xs, ys)) in enumerate(zip(axes, ENVELOPE_PLANES)):
+        ax.set_prop_cycle(linestyle=ENVELOPE_DASHES)
         for j, (crit, pair) in enumerate(curves.items()):
             pts = np.asarray(pair[p])
             ax.plot(pts[:, 0], pts[:, 1], color=pal[j], lw=1.8, label=plain(crit))

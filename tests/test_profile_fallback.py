@@ -194,3 +194,19 @@ def test_envelope_draws_the_allowables_the_run_used(store, tmp_path):
     assert proc.returncode == 0, proc.stderr
     assert "allowables\tallowables × knockdown 0.72, as the run used them in cell" in proc.stdout
     shutil.copy(out, store.parent / "envelope.png")
+
+
+def test_envelope_of_a_sandwich_cell_leaves_face_criteria_out(store, tmp_path):
+    """Wrinkling and dimpling act on a sandwich face's mean stress (common practice), not on one ply's state: a
+    ply envelope of them would be a curve of nothing (the review's cell-553 plot ran to 1e34 MPa). They are left
+    out of a sandwich cell's envelope with a note, and asking for them alone is refused."""
+    out = tmp_path / "env.png"
+    proc = run_cli("plot", store, "-o", out, "--kind", "envelope", "--material", "cf", "--cell", 2)   # sandwich
+    assert proc.returncode == 0, proc.stderr
+    lines = dict(line.split("\t", 1) for line in proc.stdout.splitlines())
+    assert lines["criteria"] == "max-stress,max-strain,tsai-wu,hashin,puck,larc03"     # no core or face criteria
+    assert lines["note"].startswith("wrinkling, dimpling: checked on a sandwich face's mean stress")
+    proc = run_cli("plot", store, "-o", out, "--kind", "envelope", "--material", "cf")
+    assert "cell" not in dict(line.split("\t", 1) for line in proc.stdout.splitlines())    # no empty cell line
+    refused = run_cli("plot", store, "-o", tmp_path / "x.png", "--kind", "envelope", "--criteria", "wrinkling")
+    assert refused.returncode == 2 and "no ply envelope" in refused.stderr and not (tmp_path / "x.png").exists()

@@ -224,13 +224,19 @@ def _envelope_params(st: StoreReader, material: str,
 
 
 def _envelope(st: StoreReader, material: str | None, criteria: str | None, cell: int | None):
-    from postproc.plots import ENVELOPE_PLANES, envelope_figure, trace_envelope
+    from postproc.plots import ENVELOPE_PLANES, drawable, envelope_figure, trace_envelope
 
     mats = [m.name for m in st.run.materials]
     material = mats[0] if material is None else material
     if material not in mats:
         raise FieldError(f"--material {material!r} is not in the store; use one of: {', '.join(mats)}", st.path)
     names = list(st.run.criteria_used) if not criteria else [c.strip() for c in criteria.split(",")]
+    # Face-level criteria (wrinkling, dimpling) act on a sandwich face's mean stress, never on one ply's state.
+    face = [n for n in names if by_name(n).level == "face"]
+    names = [n for n in names if n not in face]
+    note = f"{', '.join(face)}: checked on a sandwich face's mean stress, not a ply's state; no ply envelope"
+    if not names:
+        raise FieldError(f"--kind envelope: {note}; choose other --criteria", st.path)
     states, label = None, ""
     if cell is not None:
         prof, cell, case, _ = profile_of(st, cell, None)
@@ -254,7 +260,8 @@ def _envelope(st: StoreReader, material: str | None, criteria: str | None, cell:
     except ValueError as err:
         raise FieldError(f"--kind envelope --material {material}: {err}; choose a ply material or other "
                          "--criteria", st.path) from None
-    return fig, {"material": material, "criteria": ",".join(curves), "cell": cell, "allowables": held}
+    return fig, {"material": material, "criteria": ",".join(drawable(curves)),
+                 **({"cell": cell} if cell is not None else {}), "allowables": held, **({"note": note} if face else {})}
 
 
 def plot_store(store_path: str | Path, output: str | Path, kind: str = "profile", cell: int | None = None,

@@ -193,3 +193,24 @@ def write_gmsh_binary(path, mesh: ShellMesh, file_format: str) -> None:
                     field_data={f"block{b + 1}": np.array([b + 1, 2]) for b in range(len(mesh.blocks))})
     with atomic_path(path, suffix=".msh") as tmp:
         meshio.write(str(tmp), m, file_format=file_format, binary=True)
+
+
+def write_cloud(path, points: np.ndarray, data: dict) -> None:
+    """A VTU of points and point arrays and no cells, as a solver's integration-point writer makes it."""
+    from vtkmodules.util.numpy_support import numpy_to_vtk
+    from vtkmodules.vtkCommonCore import vtkPoints
+    from vtkmodules.vtkCommonDataModel import vtkUnstructuredGrid
+    from vtkmodules.vtkIOXML import vtkXMLUnstructuredGridWriter
+
+    grid = vtkUnstructuredGrid()
+    pts = vtkPoints()
+    pts.SetData(numpy_to_vtk(np.ascontiguousarray(points, dtype=float), deep=True))
+    grid.SetPoints(pts)
+    for name, arr in data.items():
+        a = numpy_to_vtk(np.ascontiguousarray(arr), deep=True)
+        a.SetName(name)
+        grid.GetPointData().AddArray(a)
+    w = vtkXMLUnstructuredGridWriter()
+    w.SetFileName(str(path))
+    w.SetInputData(grid)
+    w.Write()

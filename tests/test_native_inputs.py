@@ -19,28 +19,7 @@ from bridge.model.frames import element_frames
 from bridge.recover.resultants import CellAxes, ResultantSource, read_resultants
 from bridge.recover.writers import resultant_arrays
 from shells.errors import ResultantsError
-from tests.meshes import cylinder, flat_plate
-
-
-def write_cloud(path, points: np.ndarray, data: dict) -> None:
-    """A VTU of points and point arrays and no cells, as a solver's integration-point writer makes it."""
-    from vtkmodules.util.numpy_support import numpy_to_vtk
-    from vtkmodules.vtkCommonCore import vtkPoints
-    from vtkmodules.vtkCommonDataModel import vtkUnstructuredGrid
-    from vtkmodules.vtkIOXML import vtkXMLUnstructuredGridWriter
-
-    grid = vtkUnstructuredGrid()
-    pts = vtkPoints()
-    pts.SetData(numpy_to_vtk(np.ascontiguousarray(points, dtype=float), deep=True))
-    grid.SetPoints(pts)
-    for name, arr in data.items():
-        a = numpy_to_vtk(np.ascontiguousarray(arr), deep=True)
-        a.SetName(name)
-        grid.GetPointData().AddArray(a)
-    w = vtkXMLUnstructuredGridWriter()
-    w.SetFileName(str(path))
-    w.SetInputData(grid)
-    w.Write()
+from tests.meshes import cylinder, flat_plate, write_cloud
 
 
 def tensor9(R: np.ndarray, part: str) -> np.ndarray:
@@ -142,3 +121,69 @@ def test_cloud_without_a_mapping_is_refused(tmp_path, plate):
         ResultantSource([str(tmp_path / "c.vtu")], plate.n_cells)
     with pytest.raises(ResultantsError, match="not 3 per cell"):
         ResultantSource([str(tmp_path / "c.vtu")], plate.n_cells, options=ResultFiles(points_per_cell=3))
+
+
+def distorted_plate():
+    """A 4 × 3 plate whose inner nodes are moved off the grid: every quad is a general (non-parallel) quad."""
+    mesh = flat_plate(4, 3)
+    pts = np.array(mesh.points)
+    inner = (pts[:, 0] > 0) & (pts[:, 0] < 2) & (pts[:, 1] > 0) & (pts[:, 1] < 1)
+    pts[inner, :2] += np.random.default_rng(11).uniform(-0.08, 0.08, size=(inner.sum(), 2))
+    return type(mesh)(pts, mesh.blocks)
+
+
+def gauss_points(mesh) -> np.ndarray:
+    """(n_cells, 4, 3) the 2 × 2 Gauss points of each bilinear quad, x(ξ, η) = Σ Nᵢ(ξ, η) xᵢ at ξ, η = ±1/√3
+    (the isoparametric map of a 4-node element; common practice)."""
+    g = 1 / np.sqrt(3)
+    xi = np.array([[-g, -g], [g, -g], [g, g], [-g, g]])
+    corner = np.array([[-1, -1], [1, -1], [1, 1], [-1, 1]])
+    shape = 0.25 * (1 + xi[:, None, 0] * corner[None, :, 0]) * (1 + xi[:, None, 1] * corner[None, :, 1])
+    return np.einsum("pk,ckd->cpd", shape, mesh.points[mesh.corners()[0]])
+
+
+def cloud_source(tmp_path, mesh, pts, vals, options=ResultFiles(points_per_cell=4), extra=None):
+    data = {"N": vals[:, 0:3], "M": vals[:, 3:6], "Q": vals[:, 6:8], **(extra or {})}
+    write_cloud(tmp_path / "gauss.vtu", pts, data)
+    return ResultantSource([str(tmp_path / "gauss.vtu")], mesh.n_cells, options=options, mesh=mesh)
+
+
+@pytest.mark.parametrize("how", ["reversed", "shuffled", "ids-contradict-positions"])
+def test_cloud_in_another_cell_order_is_mapped_by_position(tmp_path, how):
+    """Points and values listed in another cell order than the mesh: mapped by the points' positions (the mean
+    of a bilinear cell's 2 × 2 Gauss points is its parametric centre, the mean of its corners)."""
+    mesh = distorted_plate()
+    n = mesh.n_cells
+    R = np.random.default_rng(12).normal(size=(n, 8))
+    perm = np.arange(n)[::-1] if how == "reversed" else np.random.default_rng(13).permutation(n)
+    pts, vals = gauss_points(mesh)[perm].reshape(-1, 3), np.repeat(R[perm], 4, axis=0)
+    options, extra = ResultFiles(points_per_cell=4), None
+    if how == "ids-contradict-positions":                  # ids say cell order, the points say otherwise
+        options, extra = ResultFiles(point_cell_id="EID", id_base=0), {"EID": np.repeat(np.arange(n), 4)}
+    src = cloud_source(tmp_path, mesh, pts, vals, options, extra)
+    np.testing.assert_allclose(src.read(0, n)[0], R, atol=1e-12)
+    assert any("another cell order" in note and "by the points' positions" in note for note in src.notes)
+    in_order = cloud_source(tmp_path, mesh, gauss_points(mesh).reshape(-1, 3), np.repeat(R, 4, axis=0))
+    np.testing.assert_allclose(in_order.read(0, n)[0], R, atol=1e-12)
+    assert not in_order.notes
+
+
+@pytest.mark.parametrize("how", ["length-unit", "point-major", "shifted-one-point", "other-mesh"])
+def test_cloud_whose_points_sit_on_other_cells_is_refused(tmp_path, how):
+    """Points that sit on no cell they are given to, and cannot be mapped one group per cell: refused."""
+    mesh = distorted_plate()
+    n = mesh.n_cells
+    g = gauss_points(mesh)
+    pts = {"length-unit": 1000 * g.reshape(-1, 3),            # the solver's model in another length unit
+           "point-major": g.transpose(1, 0, 2).reshape(-1, 3),  # every cell's first point, then every second ...
+           "shifted-one-point": np.roll(g.reshape(-1, 3), 1, axis=0),
+           "other-mesh": gauss_points(flat_plate(4, 3, lx=4.0)).reshape(-1, 3)}[how]
+    with pytest.raises(ResultantsError, match="do not match the mesh's cells"):
+        cloud_source(tmp_path, mesh, pts, np.zeros((4 * n, 8)))
+
+
+def test_cloud_needs_the_mesh(tmp_path):
+    mesh = distorted_plate()
+    write_cloud(tmp_path / "c.vtu", gauss_points(mesh).reshape(-1, 3), {"N": np.zeros((4 * mesh.n_cells, 3))})
+    with pytest.raises(ResultantsError, match="give the model mesh"):
+        ResultantSource([str(tmp_path / "c.vtu")], mesh.n_cells, options=ResultFiles(points_per_cell=4))

@@ -135,3 +135,42 @@ def test_recover_reads_the_native_files(solved):
     assert out.exit_code == 0, out.output
     summary = json.loads(out.stdout)
     assert summary["flagged_cells"] == 0 and summary["worst"]["case"] in ("pull", "bend", "both")
+
+
+def test_clouds_in_another_cell_order_are_mapped_or_refused(solved):
+    """The solver's integration-point files with their cells listed backwards (points and values together) give
+    the same comparison and the same margins; the same files in metres on a millimetre mesh are refused."""
+    import h5py
+
+    from tests.meshes import write_cloud
+
+    folder, files = solved
+    (folder / "rev").mkdir(exist_ok=True)
+    rev, metres = {}, {}
+    for case, names in files.items():
+        cloud = read_point_cloud(str(names["points"]))
+        n = len(cloud.points) // 4
+        order = (np.arange(n)[::-1, None] * 4 + np.arange(4)).ravel()
+        (folder / "rev" / case).mkdir(exist_ok=True)
+        rev[case] = {"mesh": names["mesh"], "points": folder / "rev" / case / Path(names["points"]).name}
+        write_cloud(rev[case]["points"], cloud.points[order], {k: v[order] for k, v in cloud.point_data.items()})
+        (folder / "m" / case).mkdir(parents=True, exist_ok=True)
+        metres[case] = {"mesh": names["mesh"], "points": folder / "m" / case / Path(names["points"]).name}
+        write_cloud(metres[case]["points"], cloud.points / 1000, cloud.point_data)
+    code, summary = compare(folder, rev, variant(folder, "rev"))
+    assert code == 0 and summary["max_discrepancy"] < 1e-3
+    envelopes = []
+    for name, fs in (("fwd", files), ("rev", rev)):
+        out = CliRunner().invoke(main, ["recover", str(variant(folder, "recover")), str(fs["pull"]["mesh"]),
+                                        str(fs["pull"]["points"]), str(fs["bend"]["points"]), "-o",
+                                        str(folder / f"{name}.h5"), "--quiet"])
+        assert out.exit_code == 0, out.output
+        if name == "rev":
+            assert "another cell order" in out.stderr
+        with h5py.File(folder / f"{name}.h5") as h5:
+            envelopes.append(h5["envelope/margin"][()])
+    np.testing.assert_allclose(envelopes[1], envelopes[0], rtol=1e-12)
+    out = CliRunner().invoke(main, ["recover", str(variant(folder, "recover")), str(files["pull"]["mesh"]),
+                                    str(metres["pull"]["points"]), str(metres["bend"]["points"]), "-o",
+                                    str(folder / "m.h5"), "--quiet"])
+    assert out.exit_code == 2 and "do not match the mesh's cells" in out.stderr

@@ -11,6 +11,10 @@ Every mesh cell must find exactly one file cell, and matched cells must have the
 a reversed cell would carry its resultants in a mirrored frame. Anything else is refused. A file without
 topology (HDF5 ``/resultants``) is taken in the mesh's order, and the run summary says so
 (:data:`ASSUMED_NOTE`).
+
+Integration-point clouds (:mod:`bridge.recover.clouds`) are checked by position (:func:`match_points`): the
+points given to a cell (by ``points_per_cell`` or by cell ids) must sit on it; points listed in another cell
+order are mapped by position, and anything else is refused.
 """
 
 from __future__ import annotations
@@ -178,3 +182,102 @@ def match_cells(mesh: ShellMesh, other: ShellMesh, source: str = "") -> CellOrde
         return CellOrder()
     return CellOrder(perm, f"the resultants file lists its cells in another order than the mesh ({moved} of "
                            f"{len(perm)} cells elsewhere); mapped onto the mesh by {how}")
+
+
+#: A point of a cloud may lie this many times its cell's radius (largest corner distance from the centroid)
+#: from the centroid: room for points off the reference surface (through the thickness) and curved cells.
+POINT_REACH = 1.5
+
+
+def _radii(mesh: ShellMesh, centres: np.ndarray) -> np.ndarray:
+    """Largest distance of a cell's corners from its centroid; shape (n_cells,)."""
+    parts = [np.linalg.norm(mesh.points[c] - centres[i0:i0 + len(c), None, :], axis=2).max(axis=1)
+             for c, i0 in zip(mesh.corners(), mesh.block_offsets()[:-1])]
+    return np.concatenate(parts) if parts else np.zeros(0)
+
+
+def _group_means(points: np.ndarray, cells: np.ndarray, n_cells: int) -> tuple[np.ndarray, np.ndarray]:
+    count = np.bincount(cells, minlength=n_cells)
+    mean = np.column_stack([np.bincount(cells, points[:, j], minlength=n_cells) for j in range(3)])
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return mean / count[:, None], count
+
+
+def _far_points(points, cells, centres, radii) -> np.ndarray:
+    return np.flatnonzero(np.linalg.norm(points - centres[cells], axis=1) > POINT_REACH * radii[cells] + 1e-12)
+
+
+def match_points(mesh: ShellMesh, points: np.ndarray, cells: np.ndarray, source: str = "") -> tuple[np.ndarray, str]:
+    """Check the points of a point cloud against the cells they were given to; map them by position or refuse.
+
+    Each group of points (the points given to one cell) must have its mean nearer that cell's centroid than any
+    other's (within 1/1000 of the median cell size), and every point must lie within :data:`POINT_REACH` cell
+    radii of the centroid. When the groups sit on other cells — a cloud listed in another cell order than the
+    mesh — and each group's mean is clearly nearest one cell (less than half as far as from the next), one group
+    per cell, and the points then lie on their cells, the groups are mapped onto those cells with a note.
+
+    Parameters
+    ----------
+    mesh : ShellMesh
+        The model mesh.
+    points : ndarray, shape (n_points, 3)
+        The cloud's point coordinates, in the mesh's length unit.
+    cells : ndarray of int, shape (n_points,)
+        The cell each point was given to (0 … n_cells − 1).
+    source : str
+        The cloud's file, for messages.
+
+    Returns
+    -------
+    cells : ndarray of int, shape (n_points,)
+        The cell of each point (``cells`` itself when the positions agree).
+    note : str
+        What was mapped ('' when nothing).
+
+    Raises
+    ------
+    ResultantsError
+        Points that sit on other cells than given and cannot be mapped one group per cell by position.
+    """
+    from scipy.spatial import cKDTree
+
+    n = mesh.n_cells
+    points = np.asarray(points, dtype=np.float64)
+    if not np.isfinite(points).all():
+        bad = int(np.flatnonzero(~np.isfinite(points).all(axis=1))[0])
+        raise ResultantsError(f"point {bad} of the point cloud has a non-finite coordinate; give the solver's "
+                              "complete result file", source)
+    centres = mesh.centroids()
+    radii = _radii(mesh, centres)
+    tol = CENTROID_TOLERANCE * _cell_size(mesh)
+    mean, count = _group_means(points, cells, n)
+    groups = np.flatnonzero(count)
+    tree = cKDTree(centres)
+    dist, near = tree.query(mean[groups], k=min(2, n))
+    dist, near = dist.reshape(len(groups), -1), near.reshape(len(groups), -1)
+    own = np.linalg.norm(mean[groups] - centres[groups], axis=1)
+    wrong = groups[~(own <= dist[:, 0] + tol)]
+    if wrong.size == 0 and _far_points(points, cells, centres, radii).size == 0:
+        return cells, ""
+    target = near[:, 0]
+    clear = dist[:, 0] < 0.5 * dist[:, 1] if dist.shape[1] > 1 else np.ones(len(groups), bool)
+    to = np.full(n, -1, dtype=np.int64)
+    to[groups] = target
+    mapped = to[cells]
+    if clear.all() and len(np.unique(target)) == len(target) and _far_points(points, mapped, centres,
+                                                                              radii).size == 0:
+        moved = int(np.count_nonzero(target != groups))
+        return mapped, (f"the integration points of {source or 'the point cloud'} are listed in another cell order "
+                        f"than the mesh ({moved} of {len(groups)} cells elsewhere); mapped onto the mesh by the "
+                        "points' positions")
+    if wrong.size:
+        i = int(wrong[0])
+        where = (f"{wrong.size} cell(s) get points that sit on other cells (first: cell {i}, its points' mean at "
+                 f"{np.round(mean[i], 6).tolist()} is {np.linalg.norm(mean[i] - centres[i]):.3g} from its centroid)")
+    else:
+        k = int(_far_points(points, cells, centres, radii)[0])
+        where = (f"point {k} at {np.round(points[k], 6).tolist()} lies outside its cell {int(cells[k])} (centroid "
+                 f"{np.round(centres[cells[k]], 6).tolist()})")
+    raise ResultantsError(f"the integration points do not match the mesh's cells: {where}, and they cannot be mapped "
+                          "one cell each by position; check [result_files] points_per_cell / point_cell_id and that "
+                          "the file is of this mesh, in its length unit", source)

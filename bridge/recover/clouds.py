@@ -3,7 +3,9 @@
 A solver's integration-point file holds points and point arrays. Each point belongs to a cell, either by
 position (``points_per_cell`` points per cell, in cell order) or by a point array of cell ids
 (``point_cell_id``, mapped through the mesh array ``mesh_cell_id`` or taken as positions from ``id_base``).
-A cell's value is the mean of its points (``integration_points = "average"``) or the value at its point
+The points' positions are then checked against the mesh's cells (:func:`bridge.recover.cell_order.match_points`):
+points listed in another cell order are mapped by position, points that sit on no cell they could belong to are
+refused. A cell's value is the mean of its points (``integration_points = "average"``) or the value at its point
 nearest the cell centroid (``"nearest"``). Cells without points get NaN (flagged later as non-finite).
 """
 
@@ -16,16 +18,34 @@ from shells.errors import ResultantsError
 from bridge.definition.result_files import ResultFiles
 from bridge.mesh.cloud import PointCloud
 from bridge.mesh.shell import ShellMesh
+from bridge.recover.cell_order import match_points
 
 
-def point_cells(cloud: PointCloud, n_cells: int, options: ResultFiles, mesh: ShellMesh | None) -> np.ndarray:
-    """The cell (0 … n_cells − 1) of every point of ``cloud``.
+def point_cells(cloud: PointCloud, n_cells: int, options: ResultFiles,
+                mesh: ShellMesh | None) -> tuple[np.ndarray, str]:
+    """The cell (0 … n_cells − 1) of every point of ``cloud``, checked against the mesh by position.
+
+    Returns
+    -------
+    cells : ndarray of int, shape (n_points,)
+    note : str
+        What was mapped by position ('' when the points sat on the cells they were given to).
 
     Raises
     ------
     ResultantsError
-        When the file does not say how its points map to cells, or the mapping does not fit the mesh.
+        When the file does not say how its points map to cells, the mapping does not fit the mesh, or the
+        points sit on other cells and cannot be mapped by position (:func:`match_points`).
     """
+    cells = _declared_cells(cloud, n_cells, options, mesh)
+    if mesh is None:
+        raise ResultantsError("a point cloud is checked against the mesh's cells by position; give the model mesh",
+                              cloud.source)
+    return match_points(mesh, cloud.points, cells, cloud.source)
+
+
+def _declared_cells(cloud: PointCloud, n_cells: int, options: ResultFiles, mesh: ShellMesh | None) -> np.ndarray:
+    """The cell of every point as the file and ``[result_files]`` declare it (before the position check)."""
     n = len(cloud.points)
     src = cloud.source
     if options.points_per_cell is not None:
@@ -67,14 +87,13 @@ def point_cells(cloud: PointCloud, n_cells: int, options: ResultFiles, mesh: She
 
 
 def cloud_to_cells(cloud: PointCloud, n_cells: int, options: ResultFiles,
-                   mesh: ShellMesh | None) -> dict[str, np.ndarray]:
-    """Every point array of ``cloud`` as a cell array (n_cells, k): averaged, or taken at the nearest point."""
-    cells = point_cells(cloud, n_cells, options, mesh)
+                   mesh: ShellMesh | None) -> tuple[dict[str, np.ndarray], str]:
+    """Every point array of ``cloud`` as a cell array (n_cells, k): averaged, or taken at the nearest point;
+    with the note of :func:`point_cells`."""
+    cells, note = point_cells(cloud, n_cells, options, mesh)
     count = np.bincount(cells, minlength=n_cells)
     out = {}
     if options.integration_points == "nearest":
-        if mesh is None:
-            raise ResultantsError("integration_points = \"nearest\" needs the mesh (cell centroids)", cloud.source)
         d = np.linalg.norm(cloud.points - mesh.centroids()[cells], axis=1)
         order = np.lexsort((d, cells))                       # by cell, nearest first
         first = order[np.r_[True, cells[order][1:] != cells[order][:-1]]]
@@ -93,4 +112,4 @@ def cloud_to_cells(cloud: PointCloud, n_cells: int, options: ResultFiles,
             with np.errstate(invalid="ignore", divide="ignore"):
                 v /= count[:, None]
         out[name] = v
-    return out
+    return out, note

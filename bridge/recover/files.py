@@ -149,7 +149,10 @@ def _file_cases(path: str, head: bytes, n_cells: int, options: ResultFiles,
             if "no shell cells" not in err.detail:
                 raise
     if found is None:
-        return split_cases(cloud_to_cells(read_point_cloud(path), n_cells, options, mesh), default)
+        arrays, note = cloud_to_cells(read_point_cloud(path), n_cells, options, mesh)
+        if note:
+            notes.append(note)
+        return split_cases(arrays, default)
     return split_cases(_ordered(found, n_cells, path, mesh, notes).apply(found.cell_data), default)
 
 

@@ -1,8 +1,8 @@
 """What every command checks before it writes, and file-system faults as one-line errors.
 
 - :func:`guard_outputs`: no output (nor a file written beside it) is an input or another output, compared by
-  resolved path and by device and inode (symbolic and hard links included); every output folder exists and
-  is writable. One helper for every command (docs/scale.md, "Loading and safety rules").
+  resolved path and by device and inode (symbolic and hard links included); an XDMF output's ``<stem>.h5``
+  replaces only the heavy data of the XDMF file being replaced; every output folder exists and is writable. One helper for every command (docs/scale.md, "Loading and safety rules").
 - :func:`check_free_space` and :func:`check_memory`: refuse a run whose estimated size does not fit, with the
   estimate in the message.
 - :func:`fault_error`: a full disk, a read-only file system, a permission or an I/O error raised anywhere
@@ -116,6 +116,18 @@ def guard_outputs(inputs: Mapping[str, object], outputs: Mapping[str, object],
                     raise OutputError(f"{option} {path}{via} is the same file as {first} {fpath}; give each "
                                       "output its own path")
                 seen[ident] = (option, f)
+            _check_companions(option, Path(path))
+
+
+def _check_companions(option: str, path: Path) -> None:
+    """An XDMF output replaces ``<stem>.h5`` only when that is the heavy data of the XDMF file it replaces."""
+    from bridge.mesh.h5_rules import is_xdmf_companion
+
+    for side in side_files(path):
+        if os.path.lexists(side) and not is_xdmf_companion(path, side):
+            raise OutputError(f"{option} {path} writes {side.name} beside it, and {side} exists but is not the "
+                              f"heavy data of an existing {path.name} (writing would destroy it); choose another "
+                              f"output name or move {side.name} away")
 
 
 def _paths(value) -> list[str]:

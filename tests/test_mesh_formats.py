@@ -209,3 +209,28 @@ def test_xdmf_mixed_topology_property(blocks, seed):
     np.testing.assert_array_equal(np.concatenate([c.ravel() for _, c in back.blocks]),
                                   np.concatenate([c.ravel() for _, c in mesh.blocks]))
     np.testing.assert_array_equal(back.cell_data["i"], np.arange(mesh.n_cells))
+
+
+def test_xdmf_output_replaces_only_its_own_heavy_data(tmp_path):
+    """An XDMF pair replaces <stem>.h5 only when it is the heavy data of the XDMF file it replaces."""
+    import h5py
+
+    mesh = flat_plate(2, 1)
+    xdmf.write(tmp_path / "a.xdmf", mesh, {"s": np.arange(2.0)})
+    xdmf.write(tmp_path / "a.xdmf", mesh, {"t": np.arange(2.0)})            # its own pair: replaced
+    assert list(xdmf.read(tmp_path / "a.xdmf").cell_data) == ["t"]
+    with h5py.File(tmp_path / "b.h5", "w") as h5:                           # someone's results, no b.xdmf
+        h5["envelope/margin"] = np.ones(3)
+    before = (tmp_path / "b.h5").read_bytes()
+    with pytest.raises(MeshError, match="not the heavy data of an existing b.xdmf"):
+        xdmf.write(tmp_path / "b.xdmf", mesh)
+    xdmf.write(tmp_path / "c.xdmf", mesh)                                   # a stale pair: c.h5 then replaced
+    with h5py.File(tmp_path / "c.h5", "a") as h5:                           # ... or given more data
+        h5["extra"] = np.ones(2)
+    with pytest.raises(MeshError, match="not the heavy data"):
+        xdmf.write_series(tmp_path / "c.xdmf", mesh, [("one", {})])
+    (tmp_path / "d.h5").write_text("notes")                                 # not even HDF5
+    with pytest.raises(MeshError, match="not the heavy data"):
+        xdmf.write(tmp_path / "d.xdmf", mesh)
+    assert (tmp_path / "b.h5").read_bytes() == before and (tmp_path / "d.h5").read_text() == "notes"
+    assert not (tmp_path / "b.xdmf").exists() and not (tmp_path / "d.xdmf").exists()

@@ -278,6 +278,39 @@ def xdmf_data_files(xdmf_path: str | os.PathLike) -> list[Path]:
         return []
 
 
+def is_xdmf_companion(xdmf_path: str | os.PathLike, h5_path: str | os.PathLike) -> bool:
+    """True when ``h5_path`` is the heavy data of the XDMF file ``xdmf_path`` and holds nothing else.
+
+    The XDMF file must exist, name ``h5_path`` (same file by device and inode) in its ``HDF`` DataItems, and
+    every dataset of ``h5_path`` must be one of those items: replacing the pair then loses nothing. Anything
+    else (no XDMF file, another file's data, a results store or resultants that happen to share the stem, a
+    file that is not HDF5) is False. Never raises.
+    """
+    try:
+        check_prolog(xdmf_path)
+        root = ET.parse(xdmf_path).getroot()
+        if root.tag != "Xdmf":
+            return False
+        target = os.stat(h5_path)
+        folder = Path(xdmf_path).parent
+        used = set()
+        for el in root.iter("DataItem"):
+            if el.get("Format") != "HDF" or el.get("Reference"):
+                continue
+            ref, _, name = (el.text or "").strip().rpartition(":")
+            st = os.stat(folder / ref) if ref and (folder / ref).exists() else None
+            if st is not None and (st.st_dev, st.st_ino) == (target.st_dev, target.st_ino):
+                used.add("/" + name.strip("/"))
+        if not used:
+            return False
+        with open_h5(h5_path, MeshError) as h5:
+            held = []
+            h5.visititems(lambda key, obj: held.append("/" + key) if hasattr(obj, "shape") else None)
+        return all(key in used for key in held)
+    except (InputError, OSError, ET.ParseError, ValueError):
+        return False
+
+
 def dimensions(item: ET.Element, xdmf_path: str, error: type[InputError] = MeshError) -> tuple[int, ...]:
     """The ``Dimensions`` of a DataItem as whole numbers (empty when absent)."""
     text = item.get("Dimensions", "")

@@ -572,6 +572,25 @@ def previous_store(ctx: dict):
 
 
 @setup
+def stale_view_pair(ctx: dict):
+    """out/RESULT.xdmf from an earlier --view, whose RESULT.h5 was since replaced by a results store."""
+    from bridge.mesh.formats import xdmf
+    from tests.meshes import flat_plate
+
+    xdmf.write(ctx["out"] / "RESULT.xdmf", flat_plate(2, 1))
+    shutil.copy(ctx["store"], ctx["out"] / "RESULT.h5")
+
+
+@setup
+def earlier_view(ctx: dict):
+    """out/view.xdmf + view.h5 written by an earlier --view (replaced by the next run)."""
+    from bridge.mesh.formats import xdmf
+    from tests.meshes import flat_plate
+
+    xdmf.write(ctx["out"] / "view.xdmf", flat_plate(2, 1))
+
+
+@setup
 def hold_lock(ctx: dict):
     fd = os.open(ctx["out"] / ".RESULT.h5.lock", os.O_RDWR | os.O_CREAT, 0o644)
     fcntl.flock(fd, fcntl.LOCK_EX)

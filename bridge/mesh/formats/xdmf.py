@@ -13,7 +13,8 @@ Layout written
 - A time series is a ``Temporal`` collection of grids, one per step, each with
   ``<Time Value=i>`` and ``<Information Name="case" Value=...>``; all steps
   share the mesh datasets.
-- The .h5 is written first, then the XML; both are replaced atomically.
+- The .h5 is written first, then the XML; both are replaced atomically. An existing ``<stem>.h5`` is replaced
+  only when it is the heavy data of the XDMF file being replaced (:func:`check_companion`).
 
 Cell arrays are written so that VTK's XDMF reader sees their true component
 count (1: ``Scalar``; 2: ``Matrix`` (n, 1, 2); more: ``Vector``), meshio and our
@@ -170,10 +171,28 @@ def write(path: str | os.PathLike, mesh: ShellMesh, cell_data: Mapping[str, np.n
     _write(Path(path), mesh, [("mesh", {**mesh.cell_data, **(cell_data or {})})], temporal=False)
 
 
+def check_companion(path: str | os.PathLike) -> None:
+    """Refuse to write the XDMF pair ``path`` + ``<stem>.h5`` when ``<stem>.h5`` exists and is not the heavy data
+    of the XDMF file being replaced (:func:`bridge.mesh.h5_rules.is_xdmf_companion`): it is someone else's file.
+
+    Raises
+    ------
+    MeshError
+        Naming the existing ``.h5`` and the fix.
+    """
+    path = Path(path)
+    h5path = path.with_suffix(".h5")
+    if os.path.lexists(h5path) and not h5_rules.is_xdmf_companion(path, h5path):
+        raise MeshError(f"the XDMF output {path} writes its data to {h5path.name} beside it, and {h5path.name} "
+                        f"exists but is not the heavy data of an existing {path.name} (another file that would be "
+                        f"lost); choose another output name or move {h5path.name} away", str(h5path))
+
+
 def _write(path: Path, mesh: ShellMesh, steps, temporal: bool) -> None:
     h5path = path.with_suffix(".h5")
     if ":" in h5path.name:
         raise MeshError("XDMF data file names must not contain ':'; rename the target", str(path))
+    check_companion(path)
     steps = [(s, flatten_cell_data(d, mesh.n_cells, str(path))) for s, d in steps]
     grids = []
     # Both files or neither: the XML is written to its temporary file before the .h5 is renamed, and renamed

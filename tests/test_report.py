@@ -41,11 +41,18 @@ def dump_dom(page: Path, profile: Path) -> str:
     return subprocess.run(cmd, capture_output=True, text=True, timeout=120).stdout
 
 
-def comparison_file(path: Path, summary: dict) -> Path:
-    """A comparison file as plybridge compare writes it (format attribute and JSON summary)."""
+def comparison_file(path: Path, summary: dict, store: Path) -> Path:
+    """A comparison file as plybridge compare writes it (format attribute, JSON summary and the inputs' digests,
+    here those of ``store``'s own run)."""
+    from bridge.results.store import StoreReader
+
+    with StoreReader(store) as st:
+        inputs = {i.role: {"path": i.path, "sha256": i.sha256, "data_sha256": list(i.data_sha256)}
+                  for i in st.run.provenance.inputs}
     with h5py.File(path, "w") as h5:
         h5.attrs["format"] = "plybridge-compare"
         h5.attrs["summary"] = json.dumps(summary)
+        h5.attrs["inputs"] = json.dumps({**inputs, "solver_plies0": {"path": "plies.vtu", "sha256": "0" * 64}})
     return path
 
 
@@ -69,7 +76,7 @@ def hostile_summary() -> dict:
 def plate_report(tmp_path_factory):
     store = build_store(tmp_path_factory.getbasetemp())
     folder = tmp_path_factory.mktemp("report")
-    cmp = comparison_file(folder / "cmp.h5", hostile_summary())
+    cmp = comparison_file(folder / "cmp.h5", hostile_summary(), store)
     out = folder / "report.html"
     proc = run_cli("report", store, "-o", out, "--compare", cmp)
     assert proc.returncode == 0, proc.stderr
@@ -232,3 +239,22 @@ def test_units_follow_the_unit_system(tmp_path):
     for label in ("ΔT [°F]", "pressure [psi]", "thickness [in]", "x [in]", "<td>psi</td>", "<td>1/°F</td>"):
         assert label in text, label
     assert "length]" not in text and "[N-mm" not in text and "cte" not in text
+
+
+@pytest.mark.parametrize("which", ["definition", "mesh", "resultants", "no-inputs"])
+def test_a_comparison_of_other_inputs_is_refused(plate_report, tmp_path, which):
+    """A comparison made from another definition, mesh or resultants than the store is not shown as its check."""
+    store, _, _ = plate_report
+    cmp = comparison_file(tmp_path / "cmp.h5", hostile_summary(), store)
+    with h5py.File(cmp, "a") as h5:
+        inputs = json.loads(h5.attrs["inputs"])
+        if which == "no-inputs":
+            del h5.attrs["inputs"]
+        else:
+            role = next(r for r in inputs if r.startswith(which))
+            inputs[role]["sha256"] = "f" * 64
+            h5.attrs["inputs"] = json.dumps(inputs)
+    out = tmp_path / "r.html"
+    need = "records no inputs" if which == "no-inputs" else f"made from another {which} than the results store"
+    assert_one_line_error(run_cli("report", store, "-o", out, "--compare", cmp), "cmp.h5", need)
+    assert not out.exists()

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import json
 import re
+import shutil
 from pathlib import Path
 
 import numpy as np
@@ -174,3 +175,25 @@ def test_clouds_in_another_cell_order_are_mapped_or_refused(solved):
                                     str(metres["pull"]["points"]), str(metres["bend"]["points"]), "-o",
                                     str(folder / "m.h5"), "--quiet"])
     assert out.exit_code == 2 and "do not match the mesh's cells" in out.stderr
+
+
+def test_report_shows_a_comparison_of_the_stores_own_inputs_only(solved):
+    """recover and compare of the same native files: the report shows the comparison; a comparison with
+    another definition (a planted frame error) is refused in one line."""
+    folder, files = solved
+    store = folder / "own.h5"
+    out = CliRunner().invoke(main, ["recover", str(variant(folder, "recover")), str(files["pull"]["mesh"]),
+                                    str(files["pull"]["points"]), str(files["bend"]["points"]), "-o", str(store),
+                                    "--quiet"])
+    assert out.exit_code == 0, out.output
+    compare(folder, files, variant(folder, "base"))
+    shutil.copy(folder / "cmp.h5", folder / "own-cmp.h5")
+    out = CliRunner().invoke(main, ["report", str(store), "-o", str(folder / "r.html"), "--compare",
+                                    str(folder / "own-cmp.h5")])
+    assert out.exit_code == 0, out.output
+    assert "Comparison with the solver" in (folder / "r.html").read_text(encoding="utf-8")
+    compare(folder, files, variant(folder, "frame", ('frame = "element"', 'frame = "laminate"')))
+    out = CliRunner().invoke(main, ["report", str(store), "-o", str(folder / "r2.html"), "--compare",
+                                    str(folder / "cmp.h5")])
+    assert out.exit_code == 2 and "made from another definition than the results store" in out.stderr
+    assert len(out.stderr.strip().splitlines()) == 1 and not (folder / "r2.html").exists()

@@ -15,6 +15,7 @@ import numpy as np
 from shells.errors import InputError
 
 from bridge.atomic import atomic_path, write_text
+from bridge.mesh.h5_rules import HDF5_SIGNATURE, open_h5
 from bridge.pictures.plots import profile_figure_of
 from bridge.pictures.render import draw_store_field, png_bytes
 from bridge.results.store import StoreReader
@@ -86,31 +87,103 @@ def _figures(st: StoreReader) -> list:
     return out
 
 
-def read_comparison(path: str | Path) -> dict:
-    """The ``summary`` of a comparison file written by ``plybridge compare -o X.h5`` (docs/compare.md)."""
-    import h5py
+def _meta_text(h5, key: str, path: str) -> str:
+    """A metadata value of a comparison file: the attribute, or the string dataset ``/meta/KEY`` of a long one."""
+    if key in h5.attrs:
+        text = h5.attrs[key]
+    elif f"meta/{key}" in h5:
+        import h5py
 
-    path = str(path)
-    try:
-        with h5py.File(path, "r", locking=False) as h5:
-            if h5.attrs.get("format") != "plybridge-compare":
-                raise CompareFileError("not a comparison file (attribute format != 'plybridge-compare'); give the "
-                                       "file written by plybridge compare -o X.h5", path)
-            text = h5.attrs.get("summary", "")
-    except FileNotFoundError:
-        raise CompareFileError("no such file; give the file written by plybridge compare -o X.h5", path) from None
-    except OSError:
-        raise CompareFileError("not an HDF5 file; give the file written by plybridge compare -o X.h5", path) from None
+        obj = h5[f"meta/{key}"]
+        if not isinstance(obj, h5py.Dataset) or obj.shape != () or h5py.check_string_dtype(obj.dtype) is None:
+            raise CompareFileError(f"/meta/{key} is not a text value; write the comparison again", path)
+        text = obj[()]
+    else:
+        return ""
     if isinstance(text, bytes):
         text = text.decode("utf-8", "replace")
     if not isinstance(text, str) or len(text) > MAX_SUMMARY:
-        raise CompareFileError("the comparison summary is missing or too large; write the comparison again", path)
+        raise CompareFileError(f"the comparison's {key} is not text or too large; write the comparison again", path)
+    return text
+
+
+def _json(text: str, key: str, path: str) -> dict:
     try:
-        summary = json.loads(text)
+        value = json.loads(text)
     except ValueError:
-        raise CompareFileError("the comparison summary is not JSON; write the comparison again", path) from None
-    if not isinstance(summary, dict):
-        raise CompareFileError("the comparison summary is not an object; write the comparison again", path)
+        raise CompareFileError(f"the comparison {key} is missing or not JSON; write the comparison again",
+                               path) from None
+    if not isinstance(value, dict):
+        raise CompareFileError(f"the comparison {key} is not an object; write the comparison again", path)
+    return value
+
+
+#: Inputs a comparison and the results store it is reported with must share (sha256 of the file and its heavy data).
+SHARED_INPUTS = ("definition", "mesh", "resultants")
+
+
+def _digests(entries: dict, role: str) -> list[tuple]:
+    """Sorted (sha256, heavy-data sha256s) of the inputs of one role (``resultants`` gathers resultants0, 1, …)."""
+    out = []
+    for name, e in entries.items():
+        if name == role or (role == "resultants" and name.startswith("resultants") and name[10:].isdigit()):
+            data = e.get("data_sha256", ()) if isinstance(e, dict) else ()
+            out.append((str(e.get("sha256", "")) if isinstance(e, dict) else "",
+                        tuple(str(d) for d in ([data] if isinstance(data, str) else data))))
+    return sorted(out)
+
+
+def check_same_inputs(comparison_inputs: dict, run, path: str) -> None:
+    """Refuse a comparison made from another definition, mesh or resultants than the store (sha256 digests).
+
+    Raises
+    ------
+    CompareFileError
+        Naming the first input that differs, both digests and the fix.
+    """
+    store = {i.role: {"sha256": i.sha256, "data_sha256": list(i.data_sha256)} for i in run.provenance.inputs}
+    for role in SHARED_INPUTS:
+        ours, theirs = _digests(store, role), _digests(comparison_inputs, role)
+        if ours != theirs:
+            def show(d):
+                return ", ".join(s[:12] + "…" for s, _ in d) or "none"
+
+            raise CompareFileError(
+                f"the comparison was made from another {role} than the results store {run_store_name(run)} "
+                f"(sha256 {show(theirs)} in the comparison, {show(ours)} in the store); report a comparison of "
+                "the store's own definition, mesh and resultants (plybridge compare with the inputs of that "
+                "recover run)", path)
+
+
+def run_store_name(run) -> str:
+    return f"'{run.title}'" if getattr(run, "title", "") else ""
+
+
+def read_comparison(path: str | Path, run=None) -> dict:
+    """The ``summary`` of a comparison file written by ``plybridge compare -o X.h5`` (docs/compare.md).
+
+    With ``run`` (the results store's :class:`bridge.results.meta.RunMeta`), the comparison must have been made
+    from the store's own definition, mesh and resultants (:func:`check_same_inputs`).
+    """
+    path = str(path)
+    try:
+        with open(path, "rb") as fh:
+            head = fh.read(8)
+    except OSError:
+        head = HDF5_SIGNATURE                              # open_h5 names what is wrong with the path
+    if head != HDF5_SIGNATURE:
+        raise CompareFileError("not an HDF5 file; give the file written by plybridge compare -o X.h5", path)
+    with open_h5(path, CompareFileError, "a comparison file (HDF5)") as h5:
+        if h5.attrs.get("format") != "plybridge-compare":
+            raise CompareFileError("not a comparison file (attribute format != 'plybridge-compare'); give the "
+                                   "file written by plybridge compare -o X.h5", path)
+        summary = _json(_meta_text(h5, "summary", path), "summary", path)
+        inputs = _meta_text(h5, "inputs", path) if run is not None else ""
+    if run is not None:
+        if not inputs:
+            raise CompareFileError("the comparison file records no inputs, so it cannot be matched to the results "
+                                   "store; write the comparison again with plybridge compare", path)
+        check_same_inputs(_json(inputs, "inputs", path), run, path)
     return summary
 
 
@@ -191,8 +264,8 @@ def write_report(store_path: str | Path, output: str | Path, compare: str | Path
         raise InputError("write an .html report (give -o NAME.html)", str(output))
     if pdf is not None and not str(pdf).lower().endswith(".pdf"):
         raise InputError("write a .pdf file (give --pdf NAME.pdf)", str(pdf))
-    comparison = read_comparison(compare) if compare is not None else None
     with StoreReader(store_path) as st:
+        comparison = read_comparison(compare, st.run) if compare is not None else None
         inputs = report_inputs(st, comparison, str(compare or ""), verification)
     text = build_report(inputs)
     write_text(output, text)

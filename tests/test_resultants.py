@@ -211,3 +211,38 @@ def test_xdmf_case_names_fall_back_to_time_values(tmp_path, mesh, R):
     names, got = read_resultants(tmp_path / "t.xdmf", mesh.n_cells)
     assert names == ("0", "2.5", "2")
     np.testing.assert_array_equal(got, R)
+
+
+def _h5_with_columns(path, R, components):
+    """An HDF5 /resultants file whose columns are in the order ``components`` says (None: no attribute)."""
+    from bridge.definition.resultants import COMPONENTS
+
+    order = [COMPONENTS.index(c) for c in components] if components and len(set(components)) == 8 and \
+        set(components) <= set(COMPONENTS) else list(range(8))
+    with h5py.File(path, "w") as h5:
+        ds = h5.create_dataset("resultants", data=R[..., order])
+        h5["case_names"] = np.array(CASES, dtype=h5py.string_dtype())
+        if components is not None:
+            ds.attrs["components"] = np.array(components, dtype=h5py.string_dtype())
+    return path
+
+
+def test_h5_columns_follow_the_components_attribute(tmp_path, mesh, R):
+    """Columns named in another order are read by name; their order is never assumed silently."""
+    from bridge.recover.resultants import ResultantSource
+
+    swapped = ["Nx", "Ny", "Nxy", "Mx", "My", "Mxy", "Qy", "Qx"]
+    shuffled = ["Qy", "Mxy", "Nx", "My", "Qx", "Ny", "Mx", "Nxy"]
+    for components in (swapped, shuffled):
+        src = ResultantSource(_h5_with_columns(tmp_path / "c.h5", R, components), mesh.n_cells)
+        np.testing.assert_array_equal(src.read(0, mesh.n_cells), R)
+        np.testing.assert_array_equal(src.read_cells(np.array([1, 4])), R[:, [1, 4]])
+        assert any("mapped by name" in n for n in src.notes)
+    src = ResultantSource(_h5_with_columns(tmp_path / "n.h5", R, None), mesh.n_cells)
+    np.testing.assert_array_equal(src.read(0, mesh.n_cells), R)
+    assert any("no components attribute" in n for n in src.notes)
+    for bad, needle in ((["Nx", "Nx", "Nxy", "Mx", "My", "Mxy", "Qx", "Qy"], "twice"),
+                        (["Nx", "Ny", "Nxy", "Mx", "My", "Mxy", "Vx", "Qy"], "unknown names Vx"),
+                        (["Nx", "Ny", "Nxy", "Mx", "My", "Mxy", "Qx"], "has 7 names")):
+        with pytest.raises(ResultantsError, match=needle):
+            ResultantSource(_h5_with_columns(tmp_path / "b.h5", R, bad), mesh.n_cells)

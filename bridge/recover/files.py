@@ -75,7 +75,8 @@ class StepFiles:
         return self.steps[i]
 
 
-def _h5_names(path: str, n_cells: int) -> list[str]:
+def _h5_names(path: str, n_cells: int) -> tuple[list[str], str]:
+    """The case names of an HDF5 ``/resultants`` file and a note on its columns ('' in our order)."""
     with open_h5(path, ResultantsError) as h5:
         if H5_DATASET not in h5:
             raise ResultantsError(f"no dataset /{H5_DATASET}; found {', '.join(h5) or 'nothing'}", path)
@@ -87,13 +88,49 @@ def _h5_names(path: str, n_cells: int) -> list[str]:
         names = read_names(ds, "case_names", path, ds.shape[0], ResultantsError)
         if len(names) != ds.shape[0]:
             raise ResultantsError(f"attribute case_names has {len(names)} names for {ds.shape[0]} cases", path)
-    return names
+        if "components" not in ds.attrs:
+            note = (f"/{H5_DATASET} has no components attribute: its columns were taken in the documented order "
+                    "Nx, Ny, Nxy, Mx, My, Mxy, Qx, Qy")
+        else:
+            note = "" if h5_columns(ds, path) is None else (
+                f"/{H5_DATASET} lists its columns in another order (attribute components); mapped by name")
+    return names, note
+
+
+def h5_columns(ds, path: str) -> np.ndarray | None:
+    """The columns of ``/resultants`` in our order (Nx, Ny, Nxy, Mx, My, Mxy, Qx, Qy) from its ``components``
+    attribute: None when they are already in that order (or the attribute is absent: the documented order),
+    else the column of each component.
+
+    Raises
+    ------
+    ResultantsError
+        An attribute that is not the eight names, each once.
+    """
+    from bridge.definition.resultants import COMPONENTS
+
+    if "components" not in ds.attrs:
+        return None
+    names = read_names(ds, "components", path, None, ResultantsError)
+    if sorted(names) != sorted(COMPONENTS):
+        twice = sorted({n for n in names if names.count(n) > 1})
+        unknown = sorted(set(names) - set(COMPONENTS))
+        what = (f"names {', '.join(twice)} twice" if twice else f"holds unknown names {', '.join(unknown)}"
+                if unknown else f"has {len(names)} names")
+        raise ResultantsError(f"/{H5_DATASET} attribute components {what}; give each of "
+                              f"{', '.join(COMPONENTS)} once (the column order of the dataset)", path)
+    order = np.array([names.index(c) for c in COMPONENTS])
+    return None if np.array_equal(order, np.arange(len(COMPONENTS))) else order
 
 
 def read_h5_cells(path: str, cells: slice | np.ndarray) -> np.ndarray:
-    """(n_steps, ncell, 8) raw values of a cell slice (or increasing cell ids) of an HDF5 ``/resultants`` file."""
+    """(n_steps, ncell, 8) values of a cell slice (or increasing cell ids) of an HDF5 ``/resultants`` file, in
+    the file's units and axes, columns in our order (:func:`h5_columns`)."""
     with open_h5(path, ResultantsError) as h5:
-        return dataset(h5, H5_DATASET, path, ResultantsError)[:, cells, :]
+        ds = dataset(h5, H5_DATASET, path, ResultantsError)
+        order = h5_columns(ds, path)
+        values = ds[:, cells, :]
+    return values if order is None else values[..., order]
 
 
 def split_cases(cell_data: Mapping[str, np.ndarray], default: str) -> tuple[dict[str, dict], dict]:
@@ -187,8 +224,9 @@ def open_step_files(path_or_paths: str | Sequence[str], n_cells: int, options: R
             raise ResultantsError("an HDF5 /resultants file holds every case; give it alone", label)
         from bridge.recover.cell_order import ASSUMED_NOTE
 
-        return StepFiles(tuple(_h5_names(paths[0], n_cells)), label, paths[0],
-                         notes=(ASSUMED_NOTE,) if mesh is not None else ())
+        names, column_note = _h5_names(paths[0], n_cells)
+        notes = ((ASSUMED_NOTE,) if mesh is not None else ()) + ((column_note,) if column_note else ())
+        return StepFiles(tuple(names), label, paths[0], notes=notes)
     notes: list[str] = []
     merged: dict[str, dict] = {}
     origin: dict[tuple[str, str], str] = {}

@@ -1,5 +1,7 @@
 """How a map picture is laid out and put together: title band, views, captions, colour bar and legend.
 
+Every text is drawn as written (``parse_math=False``: a ``$`` in a user's name is a dollar sign).
+
 The picture is planned in reserved boxes that never overlap: a title band at the top; the views in a grid,
 each with a caption strip under it; the colour bar and the legend either in a margin on the right or, when the
 views are wide (a slender model), in a band at the bottom. Views are rendered to the exact size of their box
@@ -203,7 +205,8 @@ def _fit_text(fig, renderer, p: Plan, box: Box, text: str, font: float, colour: 
               row: float | None = None) -> None:
     """One line of text at the left of ``box``, shrunk (down to 60 %) to fit its width, else cut with …."""
     x, y = _xy(p, (box.top + box.height / 2) if row is None else row, box.left + 0.3 * font)
-    t = fig.text(x, y, text, fontsize=_pt(font), color=colour, va="center", ha="left", weight=weight)
+    t = fig.text(x, y, text, fontsize=_pt(font), color=colour, va="center", ha="left", weight=weight,
+                 parse_math=False)
     size = font
     while t.get_window_extent(renderer).width > box.width - 0.6 * font and size > 0.6 * font:
         size *= 0.92
@@ -242,7 +245,7 @@ def _colour_bar(fig, p: Plan, bar: ColourBar) -> None:
     cb.ax.tick_params(labelsize=_pt(0.9 * f), colors=colors.INK)
     cb.outline.set_edgecolor(colors.INK_MUTED)
     x, y = _xy(p, box.top + 0.9 * f, box.left + 0.3 * f)
-    fig.text(x, y, bar.title, fontsize=_pt(f), color=colors.INK, va="center", ha="left")
+    fig.text(x, y, bar.title, fontsize=_pt(f), color=colors.INK, va="center", ha="left", parse_math=False)
 
 
 def _legend(fig, renderer, p: Plan, legend: Legend) -> None:
@@ -289,7 +292,7 @@ def _mark(fig, p: Plan, box: Box, mark: Mark) -> None:
     lx, ly = _xy(p, box.top + top + h / 2, box.left + left + 0.5 * f)
     fig.add_artist(Line2D([x, _xy(p, 0, box.left + left + (0 if left > c else w))[0]], [y, ly], color=colors.MARK,
                           linewidth=1.2, transform=fig.transFigure))
-    fig.text(lx, ly, mark.label, fontsize=_pt(f), color=colors.INK, va="center", ha="left",
+    fig.text(lx, ly, mark.label, fontsize=_pt(f), color=colors.INK, va="center", ha="left", parse_math=False,
              bbox=dict(boxstyle="round,pad=0.25", facecolor="white", edgecolor=colors.MARK, linewidth=1.0))
 
 

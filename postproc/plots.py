@@ -2,8 +2,9 @@
 
 Figures are built as :class:`matplotlib.figure.Figure` objects on the Agg
 canvas, never through ``pyplot``: nothing is registered globally, so nothing
-stays open; callers save them with :func:`save_figure` (or ``savefig``) and drop
-them. Colours come from :mod:`postproc.colors`.
+stays open; callers save them with :func:`save_figure` and drop them. Every text is drawn as written
+(:func:`literal_text`: a ``$`` in a user's name is a dollar sign, shown without any escape). Colours come
+from :mod:`postproc.colors`.
 """
 
 from __future__ import annotations
@@ -13,11 +14,6 @@ from typing import Callable, Mapping, Sequence
 import numpy as np
 
 from . import colors
-
-def plain(text: str) -> str:
-    """Text shown literally by matplotlib (a ``$`` never starts mathematics)."""
-    return str(text).replace("$", r"\$")
-
 
 def new_figure(width: float = 10.0, height: float = 6.0):
     """A Figure on the Agg canvas (not registered with pyplot)."""
@@ -56,7 +52,7 @@ def polar_figure(angles_deg: np.ndarray, membrane: np.ndarray, flexural: np.ndar
     pal = colors.palette(2)
     ax.plot(t, membrane, color=pal[0], lw=2.0, label="membrane E(θ)")
     ax.plot(t, flexural, color=pal[1], lw=2.0, ls="--", label="flexural E(θ)")
-    ax.set_title(f"{plain(title)}\nmoduli [{plain(unit)}] against direction from laminate x", fontsize=10)
+    ax.set_title(f"{title}\nmoduli [{unit}] against direction from laminate x", fontsize=10)
     ax.legend(loc="lower left", bbox_to_anchor=(0.0, -0.12), fontsize=8, ncols=2)
     return fig
 
@@ -131,20 +127,20 @@ def envelope_figure(curves: Mapping[str, Sequence[np.ndarray]], states: np.ndarr
         ax.set_prop_cycle(linestyle=ENVELOPE_DASHES)
         for j, (crit, pair) in enumerate(curves.items()):
             pts = np.asarray(pair[p])
-            ax.plot(pts[:, 0], pts[:, 1], color=pal[j], lw=1.8, label=plain(crit))
+            ax.plot(pts[:, 0], pts[:, 1], color=pal[j], lw=1.8, label=crit)
         if states is not None and len(states):
             s = np.asarray(states)
             ax.scatter(s[:, plane[0]], s[:, plane[1]], s=14, color=colors.MARK, edgecolor="black", lw=0.4,
-                       zorder=5, label=plain(states_label) or "ply states")
+                       zorder=5, label=states_label or "ply states")
         ax.axhline(0.0, color="black", lw=0.6)
         ax.axvline(0.0, color="black", lw=0.6)
-        ax.set_xlabel(f"{xs} [{plain(unit)}]")
-        ax.set_ylabel(f"{ys} [{plain(unit)}]")
+        ax.set_xlabel(f"{xs} [{unit}]")
+        ax.set_ylabel(f"{ys} [{unit}]")
         ax.set_title(f"{xs}–{ys} plane (other components zero)", fontsize=10)
         ax.grid(True, lw=0.3)
         ax.xaxis.set_major_locator(MaxNLocator(5))
         ax.xaxis.set_major_formatter(FuncFormatter(lambda v, _: short(v)))
         ax.yaxis.set_major_formatter(FuncFormatter(lambda v, _: short(v)))
         ax.legend(fontsize=8, loc="upper center", bbox_to_anchor=(0.5, -0.13), ncols=4, frameon=False)
-    fig.suptitle(plain(title), fontsize=11)
+    fig.suptitle(title, fontsize=11)
     return fig

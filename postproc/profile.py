@@ -15,7 +15,7 @@ import numpy as np
 
 from . import colors
 from .numbers import degrees, short, sig
-from .plots import new_figure, plain
+from .plots import new_figure
 from .run_meta import PlyInfo
 
 #: Panels: (title, component indices into (σ1, σ2, τ12, τ13, τ23), symbols).
@@ -134,7 +134,7 @@ def profile_figure(profile: Profile, *, title: str, stress_unit: str, length_uni
             ax.plot(_broken(stress[..., c]), yy, color=pal[j], lw=1.8, label=sym, ls="-" if j == 0 else "--")
         ax.axvline(0.0, color="black", lw=0.6)
         ax.set_title(name, fontsize=10)
-        ax.set_xlabel(f"stress [{plain(stress_unit)}]")
+        ax.set_xlabel(f"stress [{stress_unit}]")
         ax.xaxis.set_major_locator(MaxNLocator(4, symmetric=False))
         ax.xaxis.set_major_formatter(FuncFormatter(lambda v, _: short(v)))
         if not np.nan_to_num(stress[..., list(comps)]).any():        # nothing but zeros: say so, no noise axis
@@ -148,7 +148,7 @@ def profile_figure(profile: Profile, *, title: str, stress_unit: str, length_uni
     pal_fi = colors.palette(2 + len(profile.failure_index))[2:]      # none shared with the stress panels
     for j, (crit, fi) in enumerate(profile.failure_index.items()):
         ax.plot(_broken(np.asarray(fi, float)), yy, color=pal_fi[j], lw=1.6, marker=MARKERS[j % 7],
-                ms=3, label=plain(crit))
+                ms=3, label=crit)
     top = max([1.05] + [1.05 * float(np.nanmax(f)) for f in finite_fi if np.isfinite(f).any()])
     ax.set_xlim(0.0, top)
     ax.axvline(1.0, color=colors.INK, lw=1.0, ls="--", label="failure: R = 1")
@@ -174,10 +174,10 @@ def profile_figure(profile: Profile, *, title: str, stress_unit: str, length_uni
                            fontsize=7)
         axes[0].set_ylim(0, n)
     else:
-        axes[0].set_ylabel(f"z [{plain(length_unit)}]")
-    fig.suptitle(plain(title), fontsize=11)
+        axes[0].set_ylabel(f"z [{length_unit}]")
+    fig.suptitle(title, fontsize=11)
     if profile.notes:
-        fig.supxlabel("\n".join(f"Note: {plain(t)}" for t in profile.notes), fontsize=8, x=0.01, ha="left",
+        fig.supxlabel("\n".join(f"Note: {t}" for t in profile.notes), fontsize=8, x=0.01, ha="left",
                       color=colors.INK_MUTED)
     return fig
 
@@ -196,7 +196,7 @@ def without_roundoff(stress: np.ndarray) -> np.ndarray:
 
 def _ply_labels(fig, ax, profile: Profile, axis: str, bounds: np.ndarray, length_unit: str) -> None:
     """One label per ply beside the last panel, never overlapping (every k-th ply when they cannot fit)."""
-    labels = [plain(t) for t in profile.labels(length_unit)]
+    labels = list(profile.labels(length_unit))
     mids = 0.5 * (bounds[:-1] + bounds[1:])
     fig.canvas.draw()
     bbox = ax.get_window_extent()

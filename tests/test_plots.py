@@ -147,3 +147,51 @@ def test_profile_draws_roundoff_as_zero():
     assert panel.get_xlim() == (-1.0, 1.0)
     real = profile_figure(_synthetic_profile(1.0, 2.0), title="t", stress_unit="MPa", length_unit="mm")
     assert real.axes[2].get_xlim() != (-1.0, 1.0)
+
+
+def test_a_dollar_in_a_name_is_drawn_as_a_dollar():
+    """Labels are drawn as written: a $ is a dollar sign, with no mathematics and no backslash shown."""
+    import io
+
+    import matplotlib
+
+    from postproc.plots import envelope_figure, polar_figure, save_figure
+
+    name = "zone $x^2$ of s$k$in"
+    a = np.linspace(0, 360, 5)
+    figs = [polar_figure(a, a + 1, a + 2, title=name, unit="$/in"),
+            envelope_figure({name: [np.array([[1.0, 0], [0, 1], [-1, 0], [0, -1], [1, 0]])] * 2}, None, title=name,
+                            unit="$/in", states_label=name)]
+    for fig in figs:
+        buf = io.BytesIO()
+        with matplotlib.rc_context({"svg.fonttype": "none"}):
+            save_figure(fig, buf, "svg")
+        texts = [t.get_text() for t in fig.findobj(matplotlib.text.Text)]
+        assert any(name in t for t in texts) and not any("\\$" in t for t in texts)
+        svg = buf.getvalue().decode("utf-8")
+        assert "zone $x^2$ of s$k$in" in svg and "\\$" not in svg
+
+
+def test_a_dollar_in_a_map_label_is_drawn_as_a_dollar(monkeypatch):
+    """Map pictures (title, colour-bar title, legend, mark label) draw a $ literally too."""
+    pytest.importorskip("pyvista")
+    import matplotlib.text
+
+    from postproc.render import render_field
+    from tests.meshes import flat_plate
+
+    drawn = []
+    original = matplotlib.text.Text.draw
+
+    def record(self, renderer):
+        drawn.append((self.get_text(), self.get_parse_math()))
+        return original(self, renderer)
+
+    monkeypatch.setattr(matplotlib.text.Text, "draw", record)
+    mesh = flat_plate(4, 3)
+    render_field(mesh.points, mesh.blocks, np.arange(mesh.n_cells) % 2, kind="categorical",
+                 labels=["zone $x^2$", "s$k$in"], title="zone $x^2$ of s$k$in", bar_title="margin $a$", mark=3,
+                 mark_label="cell $3$")
+    with_dollar = [(t, math) for t, math in drawn if "$" in t]
+    assert {"zone $x^2$ of s$k$in"} <= {t for t, _ in with_dollar}
+    assert with_dollar and not any(math for _, math in with_dollar)

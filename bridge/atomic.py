@@ -1,7 +1,8 @@
 """Atomic output files: write to a temporary file beside the target, then rename.
 
 A crash, a signal or an exception while writing leaves the target untouched
-(either absent or the previous complete version) and no stray temporary file.
+(either absent or the previous complete version) and no stray temporary file. A file-system fault (full disk,
+read-only file system, permission, I/O error) met while writing comes out as one line naming the target.
 """
 
 from __future__ import annotations
@@ -34,17 +35,32 @@ def atomic_path(target: str | os.PathLike, suffix: str | None = None) -> Iterato
     target = Path(target)
     folder = target.parent if str(target.parent) else Path(".")
     suffix = target.suffix if suffix is None else suffix
-    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.tmp", suffix=suffix, dir=folder)
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.tmp", suffix=suffix, dir=folder)
+    except OSError as exc:
+        _raise_fault(exc, target)
+        raise
     os.close(fd)
     tmp_path = Path(tmp)
     os.chmod(tmp_path, 0o666 & ~_umask())   # mkstemp makes 0600; outputs get the usual permissions
     try:
         yield tmp_path
         os.replace(tmp_path, target)
-    except BaseException:
+    except BaseException as exc:
         with contextlib.suppress(FileNotFoundError):
             tmp_path.unlink()
+        _raise_fault(exc, target)
         raise
+
+
+def _raise_fault(exc: BaseException, target: Path) -> None:
+    """A full disk, a read-only file system, a permission or an I/O error while writing ``target``: raised again
+    as one line naming ``target`` (:func:`bridge.guards.fault_error`), whichever writer met it."""
+    from bridge.guards import fault_error
+
+    fault = fault_error(exc, target)
+    if fault is not None:
+        raise fault from None
 
 
 def _umask() -> int:

@@ -259,15 +259,16 @@ def is_fault(exc: BaseException) -> bool:
 
 
 def fault_error(exc: BaseException, path: str | os.PathLike | None = None) -> InputError | None:
-    """One-line :class:`ResourceError` for a file-system fault (``None`` when ``exc`` is not one)."""
+    """One-line :class:`ResourceError` for a file-system fault (``None`` when ``exc`` is not one), naming ``path``
+    (the output being written) when given, else the file the error names."""
     if not isinstance(exc, (OSError, RuntimeError)):
         return None
     code = fault_errno(exc)
     if code is None:
         return None
-    name = getattr(exc, "filename", None)
+    name = str(path) if path is not None else getattr(exc, "filename", None)
     if not name:
         m = _H5_NAME.search(str(exc))
-        name = m.group(1) if m else (str(path) if path is not None else None)
+        name = m.group(1) if m else None
     what, fix = FAULTS[code]
     return ResourceError(f"{what}; {fix}", str(name) if name else None)

@@ -126,18 +126,18 @@ def test_full_disk_while_writing_the_store(model):
         assert _listing(disk) == before
 
 
-@pytest.mark.parametrize("command", ["assign", "section", "report", "plot"])
+@pytest.mark.parametrize("command", ["assign", "section", "report", "plot", "render"])
 def test_full_disk_other_commands(model, command, tmp_path):
     with tmpfs("1m") as disk:
         out = {"assign": disk / "a.vtu", "section": disk / "s.txt", "report": disk / "r.html",
-               "plot": disk / "p.png"}[command]
+               "plot": disk / "p.png", "render": disk / "m.png"}[command]
         out.write_bytes(b"previous output")
         _fill(disk)
         before = _listing(disk)
         args = {"assign": [model["definition"], model["mesh"]], "section": [model["definition"]],
-                "report": [model["store"]], "plot": [model["store"]]}[command]
+                "report": [model["store"]], "plot": [model["store"]], "render": [model["store"]]}[command]
         proc = run_cli(command, *args, "-o", out, timeout=300)
-        assert_one_line_error(proc, "no space left on the device")
+        assert_one_line_error(proc, str(out), "no space left on the device", "free some space")
         assert _listing(disk) == before
 
 

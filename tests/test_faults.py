@@ -282,6 +282,58 @@ def test_altered_store_refused_by_render_and_report(model, tmp_path):
     assert sorted(p.name for p in tmp_path.iterdir()) == ["s.h5"]
 
 
+#: An altered dataset and the commands that read it (render: the margin map; plot: the worst cell's profile
+#: from /hotspots; report: all of these).
+READERS = {"cells/min_margin": ("render", "report"), "mesh/points": ("render", "report"),
+           "model/zone": ("plot", "report"), "hotspots/ratio": ("plot", "report"),
+           "meta/run": ("render", "plot", "report")}
+
+
+@pytest.mark.parametrize("dataset", list(READERS))
+def test_a_value_altered_after_the_run_is_refused_by_its_readers(model, tmp_path, dataset):
+    """One value changed after the run (a float by its last bit): every command that reads it refuses the store
+    in one line, never works around it."""
+    store = tmp_path / "s.h5"
+    shutil.copy(model["store"], store)
+    with h5py.File(store, "r+") as h5:
+        ds = h5[dataset]
+        if dataset == "meta/run":
+            text = ds[()].replace(b'"title":"', b'"title":"x', 1)
+            assert text != ds[()]
+            del h5[dataset]
+            h5.create_dataset(dataset, data=text, dtype=h5py.string_dtype())
+        else:
+            at = (min(4000, ds.shape[0] - 1),) + (0,) * (ds.ndim - 1)
+            ds[at] = ds[at] + 1 if ds.dtype.kind in "iu" else np.nextafter(ds[at], np.inf)
+    out = {"render": "m.png", "plot": "p.png", "report": "r.html"}
+    for command in READERS[dataset]:
+        proc = run_cli(command, store, "-o", tmp_path / out[command], timeout=300)
+        assert_one_line_error(proc, "s.h5", "altered after the run", f"/{dataset}", "run plybridge recover again")
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["s.h5"]
+
+
+def test_only_the_blocks_read_are_verified(tmp_path):
+    """Reads are checked block by block, ply states included: an altered block is refused when it is read,
+    and cells of the other blocks read as usual."""
+    from bridge.results.store import StoreReader
+    from shells.errors import StoreError
+
+    paths = write_model(tmp_path, nx=20, ny=10, n_cases=2)
+    store = tmp_path / "plies.h5"
+    run_recover(str(paths["definition"]), str(paths["mesh"]), [str(paths["resultants"])], str(store),
+                store_plies=True, block_cells=50)
+    with h5py.File(store, "r+") as h5:
+        assert h5["check/parts"].shape == (4, len(h5["check/names"]))
+        h5["plies/stress"][1, 120, 0, 0, 0] += 1.0                      # block 2 (cells 100 … 149)
+    with StoreReader(store) as st:
+        assert np.isfinite(st.h5["plies/stress"][0, 10]).all()          # block 0: verified, read
+        st.array("cells/min_margin")                                    # every block of another dataset
+        with pytest.raises(StoreError, match=r"/plies/stress, cells 100…149"):
+            st.h5["plies/stress"][0, 130]
+        with pytest.raises(StoreError, match="altered after the run"):
+            st.array("plies/stress")
+
+
 def test_giving_up_an_hdf5_file_on_a_full_disk():
     """close_h5(discard=True) after HDF5 met ENOSPC: the close succeeds and nothing is printed or crashes."""
     with tmpfs("2m") as disk:

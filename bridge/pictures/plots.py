@@ -112,6 +112,7 @@ def profile_of(st: StoreReader, cell: int | None = None, case: str | None = None
     from postproc.profile import Profile
 
     from bridge.pictures.cellstate import cell_states
+    from bridge.results.verified import AlteredStoreError
 
     cell, k = _cell_case(st, cell, case)
     sec = _section_of_cell(st, cell)
@@ -124,6 +125,8 @@ def profile_of(st: StoreReader, cell: int | None = None, case: str | None = None
     try:
         s = cell_states(st, cell)
     except StoreError as err:
+        if isinstance(err, AlteredStoreError):
+            raise
         if not st.has("plies"):
             raise FieldError(f"cell {cell} is not stored in full and cannot be recovered again: {err.detail}",
                              st.path) from None

@@ -3,9 +3,13 @@
 ``plybridge recover`` writes ``/check`` when every block is done: ``blocks`` (n_blocks, 2) cell ranges
 ``[start, stop)`` in order, ``digests`` the SHA-256 of each block's arrays (envelope rows, cell summary, ply
 states when stored; names, number types, shapes and bytes), and the attribute ``digest`` over all of them
-and the cell count. :func:`check_complete` (called by :class:`bridge.results.store.StoreReader`, so by
-render, plot, report and ``--view``) refuses a store without a valid record or with a cell that holds no
-result; :func:`verify_blocks` re-reads every block and compares its checksum.
+and the cell count; ``names`` and ``parts`` the SHA-256 of each dataset's slice of each block;
+``static_names`` and ``static_digests`` the SHA-256 of every other dataset (mesh, model, hot spots, sections,
+materials, metadata), each whole.
+:func:`check_complete` (called by :class:`bridge.results.store.StoreReader`, so by render, plot, report and
+``--view``) refuses a store without a valid record or with a cell that holds no result; the datasets a reader
+then reads are checked against ``parts`` as they are read (:mod:`bridge.results.verified`);
+:func:`verify_blocks` re-reads every block and compares its checksum.
 """
 
 from __future__ import annotations
@@ -41,6 +45,47 @@ def digest(arrays: Mapping[str, np.ndarray]) -> str:
         h.update(f"{name}|{a.dtype.str}|{a.shape}|".encode())
         h.update(a.data)
     return h.hexdigest()
+
+
+def part_digests(arrays: Mapping[str, np.ndarray]) -> dict[str, str]:
+    """SHA-256 of each named array of a block on its own (:func:`digest` of one array)."""
+    return {name: digest({name: a}) for name, a in arrays.items()}
+
+
+def write_parts(chk, parts: list[dict[str, str]]) -> None:
+    """``/check/names`` (the block datasets) and ``/check/parts`` (n_blocks, n_names): the checksum of each
+    dataset's slice of each block, so a reader can verify just what it reads (:mod:`bridge.results.verified`)."""
+    import h5py
+
+    names = list(parts[0]) if parts else []
+    chk.create_dataset("names", data=np.array(names, dtype=object), dtype=h5py.string_dtype())
+    table = np.array([[p[name].encode() for name in names] for p in parts], dtype="S64").reshape(len(parts),
+                                                                                                   len(names))
+    chk.create_dataset("parts", data=table, dtype=h5py.string_dtype("ascii", 64))
+
+
+def value_digest(name: str, a: np.ndarray) -> str:
+    """SHA-256 of a dataset's whole value; text (object) arrays by their UTF-8 bytes."""
+    a = np.asarray(a)
+    if a.dtype.kind == "O":
+        h = hashlib.sha256(f"{name}|text|{a.shape}|".encode())
+        for v in a.ravel():
+            h.update((v if isinstance(v, bytes) else str(v).encode("utf-8")) + b"\0")
+        return h.hexdigest()
+    return digest({name: a})
+
+
+def write_static_digests(h5, chk, block_names) -> None:
+    """``/check/static_names`` and ``/check/static_digests``: the SHA-256 of every other dataset of the store
+    (mesh, model, hot spots, sections, materials, metadata), each whole, checked when a reader reads it."""
+    import h5py
+
+    names = []
+    h5.visititems(lambda key, obj: names.append(key) if isinstance(obj, h5py.Dataset) and key not in block_names
+                  and not key.startswith(CHECK_GROUP + "/") else None)
+    chk.create_dataset("static_names", data=np.array(names, dtype=object), dtype=h5py.string_dtype())
+    chk.create_dataset("static_digests", data=np.array([value_digest(n, h5[n][()]).encode() for n in names],
+                                                       dtype="S64"), dtype=h5py.string_dtype("ascii", 64))
 
 
 def covered(h5, start: int, stop: int) -> bool:

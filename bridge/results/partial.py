@@ -37,7 +37,8 @@ from shells.errors import InputError, StoreError
 
 from bridge.atomic import close_h5, write_text
 from bridge.guards import is_fault
-from bridge.results.complete import CELL_TABLES, CHECK_GROUP, block_arrays, check_complete, covered, digest, total_digest
+from bridge.results.complete import (CELL_TABLES, CHECK_GROUP, block_arrays, check_complete, covered, digest,
+                                     part_digests, total_digest, write_parts, write_static_digests)
 from bridge.results.store import CELLS, ENVELOPE, PLIES, StoreLayout, StoreWriter
 
 JOURNAL_FORMAT = "plybridge-partial"
@@ -115,6 +116,7 @@ class PartialStore:
         self.step = int(block_cells or layout.chunk)
         self.h5_path, self.journal_path, self.lock_path = partial_paths(target)
         self.done: dict[int, str] = {}
+        self.parts: dict[int, dict[str, str]] = {}
         self.writer: StoreWriter | None = None
         self._lock: int | None = None
         self._h5 = None
@@ -164,6 +166,7 @@ class PartialStore:
         self.writer.write_block(start, stop, env, cel, pl)
         self._h5.flush()
         self.done[int(index)] = digest(arrays)
+        self.parts[int(index)] = part_digests(arrays)
         self._write_journal()
 
     def _check_space(self, index: int, nbytes: int) -> None:
@@ -193,6 +196,8 @@ class PartialStore:
         chk.create_dataset("digests", data=digests, dtype=h5py.string_dtype("ascii", 64))
         chk.attrs["digest"] = total_digest(digests, self.layout.n_cells)
         chk.attrs["algorithm"] = "sha256 of each block's arrays (docs/results.md)"
+        write_parts(chk, [self.parts[i] for i in range(self.n_blocks)])
+        write_static_digests(self._h5, chk, set(block_datasets(self._h5)))
         check_complete(self._h5, str(self.h5_path))
         close_h5(self._h5)
         self._h5 = None
@@ -265,7 +270,7 @@ class PartialStore:
                 path.unlink()  # a link is removed, never followed
         self._h5 = h5py.File(self.h5_path, "w-")  # O_EXCL: fails on anything planted since
         self.writer = StoreWriter(self._h5, self.layout)
-        self.done = {}
+        self.done, self.parts = {}, {}
         self._h5.flush()
         self._write_journal()
 
@@ -285,8 +290,10 @@ class PartialStore:
             if not 0 <= index < self.n_blocks:
                 continue
             start, stop = self.block_range(index)
-            if digest(block_arrays(self._h5, start, stop)) == want and covered(self._h5, start, stop):
+            arrays = block_arrays(self._h5, start, stop)
+            if digest(arrays) == want and covered(self._h5, start, stop):
                 done[index] = want
+                self.parts[index] = part_digests(arrays)
             else:
                 bad.append(index)
         if bad:

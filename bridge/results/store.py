@@ -198,7 +198,8 @@ class StoreReader:
 
     This is the one place where a store is opened for reading: ``render``, ``plot``, ``report``, ``recover
     --view`` and the Python API all come through here, so checks of a finished store belong in
-    :meth:`_check`.
+    :meth:`_check`; the block datasets read through :attr:`h5` are verified against their checksums as they
+    are read (:mod:`bridge.results.verified`).
     """
 
     def __init__(self, path: str | Path):
@@ -216,6 +217,10 @@ class StoreReader:
         except BaseException:
             self.h5.close()
             raise
+        from bridge.results.verified import verified
+
+        self._file = self.h5
+        self.h5 = verified(self._file, self.path)   # block datasets verified against /check as they are read
 
     def _check(self) -> None:
         """Refuse what is not a complete store of this layout (one line naming the fix)."""
@@ -242,7 +247,7 @@ class StoreReader:
         return self
 
     def __exit__(self, *exc) -> None:
-        self.h5.close()
+        self._file.close()
 
     @cached_property
     def run(self) -> RunMeta:

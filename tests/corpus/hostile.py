@@ -20,6 +20,7 @@ from typing import Callable
 import h5py
 import numpy as np
 
+from bridge.definition.resultants import COMPONENTS
 from bridge.mesh.formats import write_mesh
 from bridge.recover.resultants import resultant_arrays, write_resultants_h5, write_resultants_xdmf
 from tests.corpus.models import resultants
@@ -185,6 +186,7 @@ def res_soft_dangling(folder: Path, good: dict) -> Path:
 def res_soft_inside(folder: Path, good: dict) -> Path:
     def make(h5):
         h5.create_dataset("data", data=resultants(600, 2))
+        h5["data"].attrs["components"] = np.array(COMPONENTS, dtype=h5py.string_dtype())
         _link("/data")(h5)
     return _hostile(folder, "res-soft.h5", make)
 
@@ -271,6 +273,17 @@ def res_xdmf_outside(folder: Path, good: dict) -> Path:
     (sub / "series.xdmf").write_text(text)
     (folder / "series.xdmf").unlink()
     return sub / "series.xdmf"
+
+
+@generator
+def res_xdmf_reshaped(folder: Path, good: dict) -> Path:
+    """XDMF resultants whose N DataItem declares the right number of values in the wrong shape (300 × 6)."""
+    path = folder / "reshaped.xdmf"
+    write_resultants_xdmf(path, flat_plate(30, 20), NAMES2, resultants(600, 2))
+    text = path.read_text()
+    at = text.index('<Attribute Name="N"')
+    path.write_text(text[:at] + text[at:].replace('Dimensions="600 3"', 'Dimensions="300 6"', 1))
+    return path
 
 
 # ----------------------------------------------------------------------------- XDMF meshes

@@ -314,24 +314,27 @@ class _Reader:
             return np.column_stack([self.data(d).ravel() for d in geo.findall("DataItem")]).astype(np.float64)
         raise _Unsupported(f"geometry {gtype!r}")
 
-    def cell_arrays(self, grid: ET.Element, lazy: bool = False) -> dict[str, np.ndarray]:
+    def cell_arrays(self, grid: ET.Element, lazy: bool = False, n: int | None = None) -> dict[str, np.ndarray]:
+        """The grid's cell arrays; with ``n`` (its cell count) an array of another row count is refused."""
         out = {}
         for i, a in enumerate(grid.findall("Attribute")):
             if a.get("Center", "Node") == "Cell":
-                d = self.data(a.find("DataItem"), lazy)
-                out[a.get("Name", f"array{i}")] = d[:, 0] if d.ndim == 3 and d.shape[1] == 1 else d
+                d, name, item = self.data(a.find("DataItem"), lazy), a.get("Name", f"array{i}"), a.find("DataItem")
+                if n is not None and (rows := d.shape[0] if d.ndim else 1) != n:
+                    raise MeshError(f"cell array {name!r}: Dimensions=\"{item.get('Dimensions')}\" give {rows} rows but "
+                                    f"the grid has {n} cells (one row per cell); fix its Dimensions", self.path)
+                out[name] = d[:, 0] if d.ndim == 3 and d.shape[1] == 1 else d
         return out
 
 
 def _per_block(arrays: Mapping[str, np.ndarray], blocks) -> dict[str, list[np.ndarray]]:
     off = np.concatenate([[0], np.cumsum([len(c) for _, c in blocks])])
-    return {k: [a[off[i]:off[i + 1]] for i in range(len(blocks))]
-            for k, a in arrays.items() if a.ndim and a.shape[0] == off[-1]}
+    return {k: [a[off[i]:off[i + 1]] for i in range(len(blocks))] for k, a in arrays.items()}
 
 
 def _mesh_of(reader: _Reader, grid: ET.Element, with_data: bool = True) -> ShellMesh:
     blocks = reader.cells(grid)
-    data = _per_block(reader.cell_arrays(grid), blocks) if with_data else {}
+    data = _per_block(reader.cell_arrays(grid, n=sum(len(c) for _, c in blocks)), blocks) if with_data else {}
     return shell_mesh_from_blocks(reader.points(grid), blocks, data, source=reader.path)
 
 
@@ -391,8 +394,7 @@ def read_series(path: str | os.PathLike, lazy: bool = False) -> tuple[ShellMesh,
                                             for t, c in reader.cells(g if g.find("Topology") is not None
                                                                      else grids[0])])
             keep = kept[key]
-            arrays = {k: a if keep.all() else a[keep] for k, a in reader.cell_arrays(g, lazy).items()
-                      if a.ndim and a.shape[0] == len(keep)}
+            arrays = {k: a if keep.all() else a[keep] for k, a in reader.cell_arrays(g, lazy, len(keep)).items()}
             steps.append(Step(*_step_name(g, i), arrays))
     except _Unsupported as exc:
         raise MeshError(f"XDMF construct not supported here: {exc}; write plain HDF DataItems", path) from None

@@ -284,9 +284,15 @@ class Thermal(Hypothesis):
         return [z.with_ours(z.ours + t[:, None, None, None, None] * unit, "set " + "; ".join(words))]
 
 
+#: The pound-force in newtons and the inch in metres, exact by definition (pound = 0.45359237 kg, standard
+#: gravity 9.80665 m/s², inch = 0.0254 m; NIST SP 811, 2008, appendix B), so a suggested scale that should be
+#: 1 is printed as 1 (a factor rounded to 7 digits left 0.9999997).
+LBF, INCH = 0.45359237 * 9.80665, 0.0254
+
 #: Unit factors tried, and what they are (value in the definition's units = solver value / factor).
-UNIT_FACTORS = ((1e3, "1e3"), (1e6, "1e6"), (1e9, "1e9"), (6894.757, "psi → Pa"), (145.0377, "MPa → psi"),
-                (175.1268, "lbf/in → N/m"), (0.1751268, "lbf/in → N/mm"), (100.0, "per cent strain"))
+UNIT_FACTORS = ((1e3, "1e3"), (1e6, "1e6"), (1e9, "1e9"), (LBF / INCH ** 2, "psi → Pa"),
+                (1e6 * INCH ** 2 / LBF, "MPa → psi"), (LBF / INCH, "lbf/in → N/m"),
+                (LBF / INCH / 1e3, "lbf/in → N/mm"), (100.0, "per cent strain"))
 
 
 class UnitFactor(Hypothesis):

@@ -76,3 +76,34 @@ def test_bad_tables(extra, needle):
     with pytest.raises((DefinitionError, ResultantsError)) as err:
         _options(extra)
     assert needle in str(err.value) and "def.toml" in str(err.value)
+
+
+@pytest.mark.parametrize("units, entry, example", [
+    ("N-mm", 'force_scale = "1 in"', "'1 lbf'"), ("lbf-in", 'force_scale = "1 in"', "'1 N'"),
+    ("N-mm", 'length_scale = "1 lbf"', "'0.125 mm'"), ("lbf-in", 'length_scale = "1 N"', "'0.005 in'")])
+def test_a_scale_of_the_wrong_dimension_gets_an_example_of_its_own_kind(units, entry, example):
+    """A force scale given as a length is answered with a force example, never a stress (no '181 GPa')."""
+    text = (BASE.replace('units = "N-mm"', f'units = "{units}"').replace("thickness = 1", 'thickness = "1 mm"')
+            + f"[resultants]\n{entry}\n")
+    with pytest.raises(DefinitionError) as err:
+        parse_definition(tomllib.loads(text), "def.toml")
+    assert "wrong dimension" in str(err.value) and example in str(err.value)
+    assert "GPa" not in str(err.value) and "Msi" not in str(err.value)
+
+
+def test_every_quantity_kind_has_an_example_of_its_own_dimension():
+    """example() gives, for every kind of every system, a string pint converts to that kind's unit (pint is the
+    reference: a general-purpose unit library)."""
+    from bridge.definition.units import SYSTEMS, example, registry
+
+    ureg = registry()
+    for units in SYSTEMS.values():
+        for kind in ("stress", "length", "force", "force_per_length", "moment_per_length", "density",
+                     "expansion", "temperature", "dimensionless"):
+            text = example(kind, units)
+            if kind in ("expansion", "temperature"):
+                text = text.replace("degC", "delta_degC").replace("degF", "delta_degF")
+            q = ureg.Quantity(text)
+            if kind == "density" and q.check("[force]/[length]**3"):
+                q = q / ureg.Quantity(1.0, "g_0")
+            q.to(units.unit_of(kind))          # raises DimensionalityError on an example of another kind

@@ -90,18 +90,19 @@ EXTRA_UNITS = ("Msi = 1e6 * psi", "msi = Msi", "lbm = pound")
 
 #: An example entry of each quantity kind in each system, for error messages.
 EXAMPLES = {
-    "N-mm": {"stress": "181 GPa", "length": "0.125 mm", "density": "1.6 g/cm^3", "expansion": "22.5e-6 /degC",
+    "N-mm": {"stress": "181 GPa", "length": "0.125 mm", "force": "1 lbf", "density": "1.6 g/cm^3", "expansion": "22.5e-6 /degC",
              "temperature": "-155 degC"},
-    "N-m": {"stress": "181 GPa", "length": "0.125 mm", "density": "1600 kg/m^3", "expansion": "22.5e-6 /degC",
+    "N-m": {"stress": "181 GPa", "length": "0.125 mm", "force": "1 lbf", "density": "1600 kg/m^3", "expansion": "22.5e-6 /degC",
             "temperature": "-155 degC"},
-    "lbf-in": {"stress": "26.3 Msi", "length": "0.005 in", "density": "0.058 lb/in^3",
+    "lbf-in": {"stress": "26.3 Msi", "length": "0.005 in", "force": "1 N", "density": "0.058 lb/in^3",
                "expansion": "12.5e-6 /degF", "temperature": "-280 degF"},
 }
 
 
 def example(kind: str, units: UnitSystem) -> str:
-    """A quantity string of ``kind`` that fits the unit system, e.g. '26.3 Msi' in lbf-in."""
-    return EXAMPLES[units.name].get(kind, EXAMPLES[units.name]["stress"])
+    """A quantity string of ``kind`` that fits the unit system, e.g. '26.3 Msi' in lbf-in; a kind with no
+    example of its own gets one of the system's unit (never another kind's example)."""
+    return EXAMPLES[units.name].get(kind) or f"1 {units.unit_of(kind)}"
 
 
 @functools.lru_cache(maxsize=1)

@@ -19,8 +19,17 @@ KNOWN = {"verdict", "quantity", "tolerance", "max_discrepancy", "fraction_cells_
          "zones", "plies", "worst_cells", "diagnosis", "cases", "units", "title", "coverage", "skipped_cases"}
 
 
-def _number(value: Any) -> float | None:
-    return float(value) if isinstance(value, (int, float)) and not isinstance(value, bool) else None
+def _number(value: Any) -> int | float | None:
+    """A number of the file as it is (an integer stays an integer); anything else None."""
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        return None
+    return value if isinstance(value, int) else float(value)
+
+
+def _count(value: Any) -> Cell:
+    """A count or an index (cells, values, ply points, a ply number): shown as an integer, never as 192.0."""
+    v = _number(value)
+    return num(int(v) if isinstance(v, float) and v.is_integer() else v)
 
 
 def _percent(value: Any) -> Cell:
@@ -65,7 +74,7 @@ def comparison_section(summary: Mapping | None, source: str = "") -> str:
     figures = [["largest relative difference [-]", num(_number(s.get("max_discrepancy")))],
                ["tolerance [-]", num(_number(s.get("tolerance")))],
                ["cells within tolerance [%]", _percent(s.get("fraction_cells_within"))],
-               ["values compared", num(_number(s.get("compared_values")))]]
+               ["values compared", _count(s.get("compared_values"))]]
     scalars = [[k, num(v) if _number(v) is not None else str(v)] for k, v in s.items()
                if k not in KNOWN and not isinstance(v, (Mapping, list)) and v is not None]
     if isinstance(s.get("skipped_cases"), list) and s["skipped_cases"]:
@@ -76,18 +85,18 @@ def comparison_section(summary: Mapping | None, source: str = "") -> str:
     parts.append(_coverage(s.get("coverage")))
     parts += [_generic(k, v) for k, v in s.items() if k not in KNOWN and isinstance(v, (Mapping, list))]
     zones = s.get("zones") if isinstance(s.get("zones"), Mapping) else {}
-    rows = [[z, num(_number(v.get("cells"))), num(_number(v.get("max_discrepancy"))), _percent(v.get("within"))]
+    rows = [[z, _count(v.get("cells")), num(_number(v.get("max_discrepancy"))), _percent(v.get("within"))]
             for z, v in zones.items() if isinstance(v, Mapping)]
     parts += ["<h3>Zones</h3>", table(["zone", "cells compared", "largest relative difference [-]",
                                        "cells within [%]"], rows)]
     plies = sorted(_dicts(s.get("plies")), key=lambda r: -(_number(r.get("max_rel")) or 0.0))[:MAX_PLY_ROWS]
-    rows = [[r.get("zone", ""), num(_number(r.get("ply"))), r.get("component", ""), num(_number(r.get("scale"))),
+    rows = [[r.get("zone", ""), _count(r.get("ply")), r.get("component", ""), num(_number(r.get("scale"))),
              num(_number(r.get("max_abs"))), num(_number(r.get("max_rel"))), _percent(r.get("within"))] for r in plies]
     parts += ["<h3>Plies, largest differences first</h3>",
               table(["zone", "ply", "component", "value scale", "largest |difference|", "largest relative [-]",
                      "within [%]"], rows)]
-    rows = [[num(_number(w.get("cell"))), w.get("zone", ""), num(_number(w.get("discrepancy"))), w.get("case", ""),
-             num(_number(w.get("ply"))), w.get("point", ""), w.get("component", "")] for w in _dicts(s.get("worst_cells"))]
+    rows = [[_count(w.get("cell")), w.get("zone", ""), num(_number(w.get("discrepancy"))), w.get("case", ""),
+             _count(w.get("ply")), w.get("point", ""), w.get("component", "")] for w in _dicts(s.get("worst_cells"))]
     parts += ["<h3>Worst cells</h3>", table(["cell", "zone", "relative difference [-]", "case", "ply", "point",
                                              "component"], rows)]
     parts.append(_diagnosis(_dicts(s.get("diagnosis"))))
@@ -99,7 +108,7 @@ def _coverage(cov: Any) -> str:
     if not isinstance(cov, Mapping):
         return ""
     zones = cov.get("zones") if isinstance(cov.get("zones"), Mapping) else {}
-    rows = [[z, num(_number(v.get("checked"))), num(_number(v.get("total"))),
+    rows = [[z, _count(v.get("checked")), _count(v.get("total")),
              ", ".join(map(str, v.get("plies_checked", []))) if isinstance(v.get("plies_checked"), list) else "",
              str(v.get("text", ""))] for z, v in zones.items() if isinstance(v, Mapping)]
     head = (f"<h3>Coverage</h3><p>{esc(cov.get('text', ''))}"

@@ -386,6 +386,26 @@ def test_comparison_section_escapes_every_string():
     assert "<script" not in html and "&lt;script&gt;" in html
 
 
+def test_comparison_section_shows_counts_as_integers():
+    """Counts (values compared, cells, ply points, ply and cell numbers) read as integers, also when a file holds
+    them as whole floats; real numbers keep their four significant figures."""
+    import re
+
+    summary = {"verdict": "pass", "tolerance": 1e-3, "max_discrepancy": 2.0e-5, "compared_values": 192,
+               "zones": {"z": {"cells": 16.0, "max_discrepancy": 2.0e-5, "within": 1.0}},
+               "plies": [{"zone": "z", "ply": 3.0, "component": "sigma1", "scale": 100.0, "max_abs": 1.0,
+                          "max_rel": 2.0e-5, "within": 1.0}],
+               "worst_cells": [{"cell": 7, "zone": "z", "discrepancy": 2.0e-5, "case": "a", "ply": 3, "point": "top",
+                                "component": "sigma1"}],
+               "coverage": {"text": "2 of 24 ply points", "fraction": 2 / 24,
+                            "zones": {"z": {"checked": 2, "total": 24.0, "plies_checked": [1, 8]}}}}
+    cells = re.findall(r'<td class="num">([^<]*)</td>', comparison_section(summary))
+    for count in ("192", "16", "3", "7", "2", "24"):
+        assert count in cells
+    assert not {"192.0", "16.00", "3.000", "7.000", "2.000", "24.00"} & set(cells)
+    assert "2.000e−05" in cells and "100.0" in cells          # the minus sign is U+2212
+
+
 def test_bad_tolerance_is_input_error(world):
     path, model, spec, ours = base(world)
     with pytest.raises(InputError, match="tolerance"):
@@ -409,3 +429,20 @@ def test_reversed_element_axes_output_of_an_unsymmetric_stack(world):
     code, summary = run(world, path, world["dir"] / "reversed.vtu")
     assert code == 1
     assert summary["diagnosis"][0]["explained"][0]["name"] == "stacking-order"
+
+
+def test_a_unit_factor_fix_that_should_be_one_reads_one():
+    """[solver_plies] scale = "1 psi" on a solver that wrote MPa: the suggested scale is 1 (the product of the
+    declared scale and the MPa → psi factor), not 0.9999997 from a factor rounded to 7 digits. pint (a general-
+    purpose unit library) is the reference for psi in MPa and Pa."""
+    import pint
+
+    from postproc.hypotheses import UNIT_FACTORS, UnitFactor
+
+    ureg = pint.UnitRegistry()
+    factors = {what: f for f, what in UNIT_FACTORS}
+    assert factors["psi → Pa"] == pytest.approx(ureg.Quantity("1 psi").to("Pa").magnitude, rel=1e-14)
+    assert factors["lbf/in → N/m"] == pytest.approx(ureg.Quantity("1 lbf/in").to("N/m").magnitude, rel=1e-14)
+    psi_in_mpa = ureg.Quantity("1 psi").to("MPa").magnitude
+    fix = UnitFactor.fix.format(scale=psi_in_mpa / (1.0 / factors["MPa → psi"]), what="1/(MPa → psi)")
+    assert fix.startswith("set [solver_plies] scale = 1 (")

@@ -11,10 +11,12 @@ from __future__ import annotations
 
 import numpy as np
 
+from .defaults import WRINKLING_COEFFICIENT
 from .errors import MaterialError
 
-#: Wrinkling coefficient for design (after Hoff & Mautner 1945; common practice).
-WRINKLING_K_DESIGN = 0.5
+# The design wrinkling coefficient (0.5, after Hoff & Mautner 1945) is the analysis default, declared once:
+# shells.defaults.WRINKLING_COEFFICIENT.
+
 #: Allen, *Analysis and Design of Structural Sandwich Panels*, 1969.
 WRINKLING_K_ALLEN = 0.78
 #: Theoretical value for a thick core (Hoff & Mautner 1945).
@@ -32,7 +34,7 @@ def _positive(**values) -> list[np.ndarray]:
     return out
 
 
-def wrinkling_stress(Ef, Ec, Gc, k=WRINKLING_K_DESIGN):
+def wrinkling_stress(Ef, Ec, Gc, k=WRINKLING_COEFFICIENT):
     """Face wrinkling allowable ``σ_wr = k·(Ef·Ec·Gc)^(1/3)`` (compressive, positive magnitude).
 
     Parameters
@@ -44,7 +46,8 @@ def wrinkling_stress(Ef, Ec, Gc, k=WRINKLING_K_DESIGN):
     Gc : float or array
         Core transverse shear modulus in the plane of the load (stress).
     k : float
-        Coefficient: 0.5 by default (design value after Hoff & Mautner 1945),
+        Coefficient: :data:`shells.defaults.WRINKLING_COEFFICIENT` (0.5) by default (design value after Hoff &
+        Mautner 1945),
         0.78 (Allen 1969), 0.91 (theory).
 
     Returns

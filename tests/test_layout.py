@@ -49,3 +49,30 @@ def test_bridge_is_grouped_by_data_flow():
     assert len(loose) <= MAX_LOOSE_BRIDGE_MODULES, loose
     for sub in ("definition", "mesh", "model", "recover", "results", "pictures", "compare", "commands", "demo"):
         assert (ROOT / "bridge" / sub / "__init__.py").is_file(), sub
+
+
+def test_developers_guide_names_every_loose_bridge_module():
+    text = (ROOT / "DEVELOPERS.md").read_text(encoding="utf-8")
+    missing = [p.name for p in (ROOT / "bridge").glob("*.py") if p.name != "__init__.py" and f"`{p.name}`" not in text]
+    assert not missing, f"add these to the layout section of DEVELOPERS.md: {missing}"
+
+
+def test_the_caution_and_the_wrinkling_coefficient_are_declared_once():
+    """The caution sentence (and the design wrinkling coefficient) live in shells/defaults.py; code elsewhere
+    imports them, never restates them (a restated copy drifts)."""
+    from shells.defaults import CAUTION
+
+    needle = " ".join(CAUTION.split()[3:8])                  # "never replace, review by a"
+    restated = []
+    for package in PACKAGES:
+        for path in _modules(package):
+            words = " ".join(path.read_text(encoding="utf-8").replace("#", " ").replace("'", " ").split())
+            if needle in words and path.name != "defaults.py":
+                restated.append(str(path.relative_to(ROOT)))
+            if path.name != "defaults.py":
+                tree = ast.parse(path.read_text(encoding="utf-8"))
+                restated += [f"{path.relative_to(ROOT)}: {t.id}" for node in ast.walk(tree)
+                             if isinstance(node, ast.Assign) and isinstance(node.value, ast.Constant)
+                             and node.value.value == 0.5 for t in node.targets
+                             if isinstance(t, ast.Name) and "WRINKLING" in t.id]
+    assert not restated, restated

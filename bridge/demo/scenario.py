@@ -13,7 +13,10 @@ planes, two bulkheads in Y–Z planes). Every shell normal points out of the box
 
 from __future__ import annotations
 
+import textwrap
 from dataclasses import dataclass
+
+from shells.defaults import CAUTION
 
 #: Standard gravity in the N-mm system (mm/s²); masses are in tonnes.
 G_MM = 9806.65
@@ -167,9 +170,9 @@ def definition_text(cases_toml: str, s: Scenario = DEMO) -> str:
         A complete definition in the N-mm system (docs/definition.md).
     """
     cx, cy, _ = s.centre
+    caution = textwrap.wrap(CAUTION, 100, initial_indent="# ", subsequent_indent="# ")
     head = ('# plybridge demo: battery bay of a small electric aircraft (written by `plybridge demo`).\n'
-            '# Invented data for the demo only; see docs/demo.md. Results support, and never replace, review\n'
-            '# by a qualified engineer under the applicable regulations and local codes.\n\n'
+            '# Invented data for the demo only; see docs/demo.md.\n' + "\n".join(caution) + "\n\n"
             'units = "N-mm"\ntitle = "Demo: battery bay (floor, walls, lid)"\n')
     return (head + _MATERIALS + _LAMINATES + _ANALYSIS.format(frame=FRAME_ARRAY, tag=TAG_ARRAY, cx=cx, cy=cy)
             + "\n# ---------------------------------------------------------------- load cases\n" + cases_toml)

@@ -16,7 +16,8 @@ from .report_html import Cell, esc, num, table
 MAX_PLY_ROWS = 30
 #: Keys rendered in their own tables; anything else goes to the generic part.
 KNOWN = {"verdict", "quantity", "tolerance", "max_discrepancy", "fraction_cells_within", "compared_values", "note",
-         "zones", "plies", "worst_cells", "diagnosis", "cases", "units", "title", "coverage", "skipped_cases"}
+         "zones", "plies", "worst_cells", "diagnosis", "cases", "units", "title", "coverage", "skipped_cases",
+         "unmatched_solver_cases"}
 
 
 def _number(value: Any) -> int | float | None:
@@ -79,6 +80,9 @@ def comparison_section(summary: Mapping | None, source: str = "") -> str:
                if k not in KNOWN and not isinstance(v, (Mapping, list)) and v is not None]
     if isinstance(s.get("skipped_cases"), list) and s["skipped_cases"]:
         figures.append(["combinations not compared (no solver values)", ", ".join(map(str, s["skipped_cases"]))])
+    if isinstance(s.get("unmatched_solver_cases"), list) and s["unmatched_solver_cases"]:
+        figures.append(["solver cases not compared (no case of that name)",
+                        ", ".join(map(str, s["unmatched_solver_cases"]))])
     parts = [head, table(["figure", "value"], figures + scalars)]
     if s.get("note"):
         parts.append(f'<p class="note">{esc(s["note"])}</p>')

@@ -140,6 +140,23 @@ def test_clean_output_passes(world):
     assert summary["max_discrepancy"] < 1e-9 and summary["fraction_cells_within"] == 1.0
 
 
+def test_an_extra_solver_case_is_named_not_silently_dropped(world):
+    """The solver's file holds a third case the definition does not name: the comparison passes on the two it
+    has, and says on stdout, in the summary and its note that the third was not compared."""
+    path, model, spec, ours = base(world)
+    arrays = {}
+    for j, c in enumerate(CASES + ("thermal-soak",)):
+        arrays.update({f"{k}@{c}": v for k, v in solver_arrays(ours[min(j, 1)], spec, model).items()})
+    vtu.write(world["dir"] / "extra.vtu", world["mesh"], arrays)
+    code, summary = run(world, path, world["dir"] / "extra.vtu")
+    assert code == 0 and summary["verdict"] == "pass" and summary["cases"] == list(CASES)
+    assert summary["unmatched_solver_cases"] == ["thermal-soak"] and "thermal-soak" in summary["note"]
+    out = CliRunner().invoke(main, ["compare", str(path), str(world["dir"] / "mesh.vtu"), str(world["dir"] / "res.vtu"),
+                                    str(world["dir"] / "extra.vtu"), "-o", str(world["dir"] / "cmp.h5"), "--quiet"])
+    assert "unmatched_solver_cases\tthermal-soak\n" in out.stdout
+    assert "thermal-soak" in comparison_section(summary)
+
+
 def test_noise_at_1e6_passes(world):
     path, model, spec, ours = base(world)
     noisy = ours * (1 + 1e-6 * np.random.default_rng(2).standard_normal(ours.shape))

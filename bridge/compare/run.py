@@ -170,11 +170,15 @@ def compare_inputs(inp: CompareInputs, tolerance: float, runner=None, progress: 
                                  zone_plies=inp.zone_plies())
     summary["cases"] = list(inp.case_names)
     summary["skipped_cases"] = list(inp.skipped)
+    summary["unmatched_solver_cases"] = list(inp.solver.unmatched)
     summary["units"] = inp.defn.units.name
     summary["title"] = inp.defn.title
     notes = []
     if inp.skipped:
         notes.append(f"combination(s) {', '.join(inp.skipped)} not checked: the solver gives no ply values for them")
+    if summary["unmatched_solver_cases"]:
+        notes.append(f"solver case(s) {', '.join(summary['unmatched_solver_cases'])} not compared: no load case or "
+                     "combination of the definition has that name")
     if cmp.compared == 0:
         notes.append("no value compared: the solver's ply arrays hold no finite value where plies exist")
     if inp.spec.axes != "global" and not {3, 4} & set(inp.spec.slots):
@@ -283,6 +287,8 @@ def verdict_lines(summary: dict) -> str:
     rows += [("coverage_zone", f"{z}\t{c['text']}") for z, c in summary["coverage"]["zones"].items()]
     if summary.get("skipped_cases"):
         rows.append(("skipped_cases", ", ".join(summary["skipped_cases"])))
+    if summary.get("unmatched_solver_cases"):
+        rows.append(("unmatched_solver_cases", ", ".join(summary["unmatched_solver_cases"])))
     for d in summary.get("diagnosis", []):
         top = d["explained"][0] if d["explained"] else None
         rows.append(("cause", f"{d['zone']}\t{top['name']}\t{top['fix']}" if top else f"{d['zone']}\tunexplained"))

@@ -120,6 +120,8 @@ class SolverPlySource:
         self.case_index = tuple(j for j, _ in pairs)
         self._steps = tuple(i for _, i in pairs)
         self.file_cases = names
+        #: The files' cases paired with no case of the run (not compared; said in the summary).
+        self.unmatched = tuple(c for i, c in enumerate(names) if i not in self._steps)
         self.vectors = None
         if self.spec.axes == "vectors":
             if self.spec.vectors not in self.files.extra:

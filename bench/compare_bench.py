@@ -5,7 +5,9 @@ A flat grid of quads (about --cells cells), the 8-ply [0/45/-45/90]s laminate of
 resultants, so the comparison passes — written as an XDMF series (one grid per case, HDF5 heavy data): the
 bottom and top of every ply (16 of 24 ply points), three material-axes components each. Inputs are generated
 once per size in --work, block by block (bounded memory), and reused. The run is measured in its own
-subprocess so its peak resident memory (``ru_maxrss``) is its own. Goals (issue 13): under 1 GiB at
+subprocess so its peak resident memory (``ru_maxrss``) is its own, and the inputs are generated in another
+subprocess: a child's ``ru_maxrss`` starts from its parent's resident memory when it is started (Linux carries
+the old address space's high-water mark across exec), so the parent stays small. Goals (issue 13): under 1 GiB at
 30,000 cells × 5 cases and under 2 GiB at 1,000,000 cells × 4 cases.
 
     python bench/compare_bench.py [--cells 30000] [--cases 5] [--workers N] [--work /tmp/plybridge-bench]
@@ -40,7 +42,7 @@ components = ["sigma1", "sigma2", "tau12"]
 DEFINITION = (ROOT / "tests" / "corpus" / "base.toml").read_text(encoding="utf-8") + SOLVER_PLIES
 
 
-def inputs(work: Path, n_cells: int, n_cases: int) -> dict[str, str]:
+def inputs(work: Path | str, n_cells: int, n_cases: int) -> dict[str, str]:
     """Definition, mesh (.xdmf), resultants (.h5) and solver ply values (.xdmf + .h5), generated once."""
     import h5py
 
@@ -51,7 +53,7 @@ def inputs(work: Path, n_cells: int, n_cases: int) -> dict[str, str]:
     from bridge.recover.files import H5_DATASET
     from postproc.compare import reference_values
 
-    folder = work / f"cmp-c{n_cells}-k{n_cases}"
+    folder = Path(work) / f"cmp-c{n_cells}-k{n_cases}"
     paths = {"definition": folder / "def.toml", "mesh": folder / "mesh.xdmf", "resultants": folder / "res.h5",
              "solver": folder / "plies.xdmf"}
     if all(p.exists() for p in paths.values()):
@@ -120,6 +122,13 @@ def child(paths: dict, out: str, workers) -> None:
                       "children_peak_mib": resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss / 1024.0}))
 
 
+def _inputs_apart(work: str, n_cells: int, n_cases: int) -> dict[str, str]:
+    """:func:`inputs` generated in a subprocess, so this process (the measuring run's parent) stays small."""
+    proc = subprocess.run([sys.executable, __file__, "--inputs", json.dumps([work, n_cells, n_cases])],
+                          capture_output=True, text=True, cwd=ROOT, check=True)
+    return json.loads(proc.stdout.strip().splitlines()[-1])
+
+
 def main(argv=None) -> None:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--cells", type=int, default=30_000)
@@ -127,16 +136,20 @@ def main(argv=None) -> None:
     ap.add_argument("--workers", type=int, default=None)
     ap.add_argument("--work", default="/tmp/plybridge-bench")
     ap.add_argument("--child", help=argparse.SUPPRESS)
+    ap.add_argument("--inputs", help=argparse.SUPPRESS)
     args = ap.parse_args(argv)
     if args.child:
         child(*json.loads(args.child))
         return
+    if args.inputs:
+        print(json.dumps(inputs(*json.loads(args.inputs))))
+        return
     t = time.perf_counter()
-    paths = inputs(Path(args.work), args.cells, args.cases)
+    paths = _inputs_apart(args.work, args.cells, args.cases)
     print(f"inputs ready in {time.perf_counter() - t:.1f} s: {args.cells} cells, {args.cases} cases, 8 plies, "
           "solver values at 16 of 24 ply points", flush=True)
     out = str(Path(args.work) / "compare-out.h5")
-    small = inputs(Path(args.work), 2000, args.cases)          # warm-up: caches filled, imports compiled
+    small = _inputs_apart(args.work, 2000, args.cases)          # warm-up: caches filled, imports compiled
     subprocess.run([sys.executable, __file__, "--child", json.dumps([small, out, None])], capture_output=True,
                    cwd=ROOT, check=True)
     proc = subprocess.run([sys.executable, __file__, "--child", json.dumps([paths, out, args.workers])],

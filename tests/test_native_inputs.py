@@ -187,3 +187,25 @@ def test_cloud_needs_the_mesh(tmp_path):
     write_cloud(tmp_path / "c.vtu", gauss_points(mesh).reshape(-1, 3), {"N": np.zeros((4 * mesh.n_cells, 3))})
     with pytest.raises(ResultantsError, match="give the model mesh"):
         ResultantSource([str(tmp_path / "c.vtu")], mesh.n_cells, options=ResultFiles(points_per_cell=4))
+
+
+def test_a_vtu_too_big_to_read_whole_is_refused_before_reading(tmp_path, plate, monkeypatch):
+    """VTU files are read whole: one whose estimate (3 × its size) exceeds the memory available is refused in one
+    line naming it and the way out (XDMF + HDF5); over 1 GiB of estimate a note says so."""
+    import bridge.guards
+    import bridge.recover.files as files
+
+    R = np.random.default_rng(3).normal(size=(plate.n_cells, 8))
+    path = tmp_path / "big.vtu"
+    vtu.write(path, plate, resultant_arrays(R))
+    size = path.stat().st_size
+    monkeypatch.setattr(bridge.guards, "available_memory", lambda: 2 * size)
+    with pytest.raises(bridge.guards.ResourceError) as err:
+        files.open_step_files(str(path), plate.n_cells, mesh=plate)
+    assert "big.vtu" in str(err.value) and "XDMF with HDF5" in str(err.value) and "of memory" in str(err.value)
+    monkeypatch.setattr(bridge.guards, "available_memory", lambda: 1 << 50)
+    monkeypatch.setattr(files, "WHOLE_READ_NOTE_BYTES", size)
+    opened = files.open_step_files(str(path), plate.n_cells, mesh=plate)
+    assert any("big.vtu read whole" in n and "XDMF with HDF5" in n for n in opened.notes)
+    monkeypatch.setattr(files, "WHOLE_READ_NOTE_BYTES", 1 << 30)
+    assert not any("read whole" in n for n in files.open_step_files(str(path), plate.n_cells, mesh=plate).notes)

@@ -29,6 +29,7 @@ from bridge.compare.blocks import CompareContext, CompareSpec, block_cells as bl
 from bridge.compare.solver_plies import SolverPlySource, axes_angle
 from bridge.definition.cases import combine_steps
 from bridge.definition.solver_plies import SolverPlies
+from bridge.recover.files import WHOLE_READ_MARK
 from bridge.recover.resultants import ResultantSource
 from bridge.recover.run import CasePlan, plan_cases, provenance
 
@@ -176,6 +177,7 @@ def compare_inputs(inp: CompareInputs, tolerance: float, runner=None, progress: 
     notes = []
     if inp.skipped:
         notes.append(f"combination(s) {', '.join(inp.skipped)} not checked: the solver gives no ply values for them")
+    notes += [n for n in (*inp.source.notes, *inp.solver.files.notes) if WHOLE_READ_MARK in n]
     if summary["unmatched_solver_cases"]:
         notes.append(f"solver case(s) {', '.join(summary['unmatched_solver_cases'])} not compared: no load case or "
                      "combination of the definition has that name")

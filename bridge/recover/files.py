@@ -193,6 +193,35 @@ def _file_cases(path: str, head: bytes, n_cells: int, options: ResultFiles,
     return split_cases(_ordered(found, n_cells, path, mesh, notes).apply(found.cell_data), default)
 
 
+#: Peak memory of reading a VTU, VTK or other meshio file whole, per byte of the file (measured with
+#: bench/compare_bench.py inputs written as VTU, base64 arrays: 2.1 at 200,000 cells; the text, its decoded bytes
+#: and the arrays are held at once), and the estimate above which a note suggests XDMF + HDF5.
+WHOLE_READ_FACTOR = 3
+WHOLE_READ_NOTE_BYTES = 1 << 30
+#: The words that mark that note (compare repeats it in its summary).
+WHOLE_READ_MARK = " read whole (about "
+
+
+def whole_read_notes(paths: Sequence[str], heads: Sequence[bytes]) -> list[str]:
+    """Refuse, before reading, result files read whole (all but XDMF and HDF5) whose estimated memory
+    (:data:`WHOLE_READ_FACTOR` × their size) exceeds what is available; a note when it is over 1 GiB."""
+    import os
+
+    from bridge.guards import check_memory, size_text
+
+    whole = [p for p, h in zip(paths, heads) if b"<Xdmf" not in h and not h.startswith(HDF5_SIGNATURE)]
+    if not whole:
+        return []
+    need = WHOLE_READ_FACTOR * sum(os.path.getsize(p) for p in whole)
+    fix = "give the values as XDMF with HDF5 data (read by row blocks), or use a machine with more memory"
+    check_memory(need, f"reading {', '.join(Path(p).name for p in whole)} whole (VTU and other meshio files are "
+                 "not read by blocks)", fix, whole[0])
+    if need <= WHOLE_READ_NOTE_BYTES:
+        return []
+    return [f"{', '.join(Path(p).name for p in whole)}{WHOLE_READ_MARK}{size_text(need)} of memory): at this "
+            "size give the values as XDMF with HDF5 data, which is read by row blocks"]
+
+
 def open_step_files(path_or_paths: str | Sequence[str], n_cells: int, options: ResultFiles = ResultFiles(),
                     mesh: ShellMesh | None = None) -> StepFiles:
     """Find the kind of a result input (once), name its steps and merge several files by case name.
@@ -227,7 +256,7 @@ def open_step_files(path_or_paths: str | Sequence[str], n_cells: int, options: R
         names, column_note = _h5_names(paths[0], n_cells)
         notes = ((ASSUMED_NOTE,) if mesh is not None else ()) + ((column_note,) if column_note else ())
         return StepFiles(tuple(names), label, paths[0], notes=notes)
-    notes: list[str] = []
+    notes: list[str] = whole_read_notes(paths, heads)
     merged: dict[str, dict] = {}
     origin: dict[tuple[str, str], str] = {}
     extra: dict[str, np.ndarray] = {}

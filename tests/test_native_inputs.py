@@ -190,8 +190,9 @@ def test_cloud_needs_the_mesh(tmp_path):
 
 
 def test_a_vtu_too_big_to_read_whole_is_refused_before_reading(tmp_path, plate, monkeypatch):
-    """VTU files are read whole: one whose estimate (3 × its size) exceeds the memory available is refused in one
-    line naming it and the way out (XDMF + HDF5); over 1 GiB of estimate a note says so."""
+    """VTU files are read whole: one whose estimate (its text and twice its arrays, uncompressed sizes read from
+    the block headers of a compressed file) exceeds the memory available is refused in one line naming it and
+    the way out (XDMF + HDF5); over 1 GiB of estimate a note says so."""
     import bridge.guards
     import bridge.recover.files as files
 
@@ -199,12 +200,15 @@ def test_a_vtu_too_big_to_read_whole_is_refused_before_reading(tmp_path, plate, 
     path = tmp_path / "big.vtu"
     vtu.write(path, plate, resultant_arrays(R))
     size = path.stat().st_size
-    monkeypatch.setattr(bridge.guards, "available_memory", lambda: 2 * size)
+    need = files.whole_read_bytes(str(path))
+    assert b"compressor=" in path.read_bytes()[:1000]
+    assert need >= size + 2 * R.nbytes + 2 * plate.points.nbytes           # every array counted uncompressed
+    monkeypatch.setattr(bridge.guards, "available_memory", lambda: need - 1)
     with pytest.raises(bridge.guards.ResourceError) as err:
         files.open_step_files(str(path), plate.n_cells, mesh=plate)
     assert "big.vtu" in str(err.value) and "XDMF with HDF5" in str(err.value) and "of memory" in str(err.value)
     monkeypatch.setattr(bridge.guards, "available_memory", lambda: 1 << 50)
-    monkeypatch.setattr(files, "WHOLE_READ_NOTE_BYTES", size)
+    monkeypatch.setattr(files, "WHOLE_READ_NOTE_BYTES", need - 1)
     opened = files.open_step_files(str(path), plate.n_cells, mesh=plate)
     assert any("big.vtu read whole" in n and "XDMF with HDF5" in n for n in opened.notes)
     monkeypatch.setattr(files, "WHOLE_READ_NOTE_BYTES", 1 << 30)

@@ -103,3 +103,32 @@ def test_meshio_time_series_with_xinclude_is_read(tmp_path, monkeypatch):
     names, got = read_resultants(tmp_path / "ts.xdmf", mesh.n_cells)
     assert names == ("0", "1")
     np.testing.assert_array_equal(got, R)
+
+
+def test_why_pyvista_read_cannot_open_a_single_grid_file(tmp_path, capsys):
+    """pyvista.read (0.49) needs a <Time> in the grid and meshio.read (5.3) refuses one ("Unknown section
+    'Time'"): no single-grid XDMF opens in both. pyvista.read fails the same way on meshio's own XDMF output, so
+    our single-grid files keep meshio working (docs/meshes.md gives the pyvista routes; a .vtu view opens with
+    pyvista.read). If either library changes, this test says so and the docs can be simplified."""
+    import meshio
+    import pyvista
+
+    mesh = mixed_plate()
+    data = arrays(mesh.n_cells)
+    m = meshio.Mesh(mesh.points, [("quad", np.array([[0, 1, 2, 3]]))], cell_data={"a": [np.array([1.0])]})
+    m.write(tmp_path / "theirs.xdmf")
+    xdmf.write(tmp_path / "ours.xdmf", mesh, data)
+    for name in ("theirs.xdmf", "ours.xdmf"):
+        with pytest.raises(TypeError):
+            pyvista.read(str(tmp_path / name))
+    timed = (tmp_path / "ours.xdmf").read_text().replace('GridType="Uniform">', 'GridType="Uniform"><Time Value="0"/>', 1)
+    (tmp_path / "timed.h5").write_bytes((tmp_path / "ours.h5").read_bytes())
+    (tmp_path / "timed.xdmf").write_text(timed.replace("ours.h5:", "timed.h5:"))
+    with pytest.raises((Exception, SystemExit)):                 # meshio 5.3 prints its reason, then exits
+        meshio.read(str(tmp_path / "timed.xdmf"))
+    assert "Unknown section 'Time'" in capsys.readouterr().out
+    assert pyvista.read(str(tmp_path / "timed.xdmf")).n_cells == mesh.n_cells
+    view = tmp_path / "view.vtu"
+    from bridge.mesh.formats import vtu
+    vtu.write(view, mesh, data)
+    assert pyvista.read(str(view)).n_cells == mesh.n_cells

@@ -11,7 +11,6 @@ block of every block dataset, whole).
 
 from __future__ import annotations
 
-import argparse
 import sys
 import time
 from pathlib import Path
@@ -43,12 +42,11 @@ def store_of(work: Path, n_cells: int, n_cases: int) -> Path:
 
 
 def main(argv=None) -> None:
-    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    ap.add_argument("--cells", type=int, default=1_000_000)
-    ap.add_argument("--cases", type=int, default=4)
-    ap.add_argument("--work", default="/tmp/plybridge-bench")
-    args = ap.parse_args(argv)
     import h5py
+
+    from bench.recover_bench import parse
+
+    args = parse(argv)                                  # --cells, --cases, --work as bench/recover_bench.py
 
     from bridge.results.complete import verify_blocks
     from bridge.results.store import StoreReader

@@ -31,6 +31,8 @@ from shells.errors import DefinitionError, InputError
 from tests.meshes import flat_plate
 
 CASES = ("pull", "hot")
+#: A solver writing psi where we have MPa: 1 MPa = 145.0377… psi (lbf = 4.4482216152605 N, in = 25.4 mm exactly).
+MPA_TO_PSI = 25.4 ** 2 / 4.4482216152605
 
 
 def definition_text(left_angles=(0, 30, -45, 90, 60), left_vector=(1, 1, 0), right_offset=0.3, hot_dT=-80.0,
@@ -264,7 +266,7 @@ def planted(world, name):
     elif name == "top-bottom-swapped":
         bad = ours[:, :, :, ::-1]
     elif name == "unit-factor":
-        bad = ours * 145.0377
+        bad = ours * MPA_TO_PSI
     else:
         raise AssertionError(name)
     return path, write_solver(world, in_zone(world, "left", bad, ours), spec, model)
@@ -286,7 +288,7 @@ WRITING = {
     "stacking-order": lambda v, m: v[:, :, ::-1],
     "ply-value-axes": lambda v, m: material_to_element(v, _angles(m), "stress"),
     "top-bottom-swapped": lambda v, m: v[:, :, :, ::-1],
-    "unit-factor": lambda v, m: v * 145.0377,
+    "unit-factor": lambda v, m: v * MPA_TO_PSI,
     "transverse-shear-swapped": lambda v, m: v[..., [0, 1, 2, 4, 3]],
 }
 

@@ -2,17 +2,14 @@
 
 Layout written
 --------------
-- The heavy data go to ``<stem>.h5`` beside the XML file: ``/mesh/points``
-  (n, 3) float64, ``/mesh/topology`` and one dataset per cell array, chunked
-  (about 65536 rows) with shuffle + gzip. Datasets are numbered; the XML
-  carries the array names.
-- A mesh whose cells are all of one type gets that XDMF topology
-  (``Triangle``, ``Quadrilateral``, ``Triangle_6``, ``Quadrilateral_8``);
-  several types get one ``Mixed`` topology (each cell's XDMF type number
+- The heavy data go to ``<stem>.h5`` beside the XML file: ``/mesh/points`` (n, 3) float64, ``/mesh/topology``
+  and one dataset per cell array, chunked (about 65536 rows) with shuffle + gzip. Datasets are numbered; the
+  XML carries the array names.
+- A mesh whose cells are all of one type gets that XDMF topology (``Triangle``, ``Quadrilateral``,
+  ``Triangle_6``, ``Quadrilateral_8``); several types get one ``Mixed`` topology (each cell's XDMF type number
   followed by its nodes), in global-cell order.
-- A time series is a ``Temporal`` collection of grids, one per step, each with
-  ``<Time Value=i>`` and ``<Information Name="case" Value=...>``; all steps
-  share the mesh datasets.
+- A time series is a ``Temporal`` collection of grids, one per step, each with ``<Time Value=i>`` and
+  ``<Information Name="case" Value=...>``; all steps share the mesh datasets.
 - The .h5 is written first, then the XML; both are replaced atomically. An existing ``<stem>.h5`` is replaced
   only when it is the heavy data of the XDMF file being replaced (:func:`check_companion`).
 

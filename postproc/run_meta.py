@@ -15,10 +15,6 @@ nothing else changes. Document the field in docs/results.md.
 
 from __future__ import annotations
 
-import dataclasses
-import json
-import types
-import typing
 from dataclasses import dataclass, field
 from typing import Any, Mapping, Union
 
@@ -74,6 +70,8 @@ class MaterialInfo:
     knockdown_factors: tuple[Named, ...] = ()
     source: str | None = None
     description: str | None = None
+    #: The environment factor by environment name when given as a table (``knockdown`` then uses the smallest).
+    environment_factors: tuple[Named, ...] = ()
 
 
 @dataclass(frozen=True)
@@ -140,6 +138,9 @@ class CaseInfo:
 
     ``held`` names the held cases in it (``held = true``: their resultants are part of the fixed state, not
     scaled by the strength ratio) and ``held_steps`` builds that held part from the input steps.
+    ``environment`` is the environment its allowables are knocked down for (None: each material's default),
+    ``knockdowns`` the knockdown of every material in it; ``moisture_field`` and ``pressure_field`` name per-cell
+    arrays of the mesh that replace ``delta_M`` and ``pressure``.
     """
 
     name: str
@@ -153,6 +154,10 @@ class CaseInfo:
     combination: tuple[Named, ...] = ()
     held: tuple[str, ...] = ()
     held_steps: tuple[Named, ...] = ()
+    environment: str | None = None
+    knockdowns: tuple[Named, ...] = ()
+    moisture_field: str | None = None
+    pressure_field: str | None = None
 
 
 @dataclass(frozen=True)
@@ -172,6 +177,28 @@ class DefaultUsed:
 
 
 @dataclass(frozen=True)
+class ProgressiveInfo:
+    """The ply-discount settings of a run (docs/criteria.md): fractions of the moduli kept after a matrix and a
+    fibre failure, and the criteria that find the failures."""
+
+    matrix_retained: float
+    fibre_retained: float
+    criteria: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
+class EnvelopeInfo:
+    """A restricted envelope as declared: the criteria, modes (names or families), case kinds and cases kept."""
+
+    name: str
+    criteria: tuple[str, ...]
+    modes: tuple[str, ...] = ()
+    kinds: tuple[str, ...] = ()
+    cases: tuple[str, ...] = ()
+    description: str = ""
+
+
+@dataclass(frozen=True)
 class AnalysisInfo:
     criteria: tuple[str, ...]
     factor_of_safety: tuple[Named, ...]
@@ -181,6 +208,10 @@ class AnalysisInfo:
     hot_spots: int
     check_ranges: bool = True
     defaults: tuple[DefaultUsed, ...] = ()
+    progressive: ProgressiveInfo | None = None
+    #: Misalignment tolerance δ (degrees): each cell was also checked with its laminate turned by ±δ (0: off).
+    misalignment: float = 0.0
+    envelopes: tuple[EnvelopeInfo, ...] = ()
 
 
 @dataclass(frozen=True)
@@ -230,6 +261,29 @@ class ShearCheck:
 
 
 @dataclass(frozen=True)
+class ProgressiveZone:
+    """Progressive failure over one zone: the lowest first-ply and last-ply factors over its cells and cases (and
+    their cells), and the range of the ratio last/first over its cell-cases where both are finite."""
+
+    zone: str
+    first: float | None
+    first_cell: int
+    last: float | None
+    last_cell: int
+    ratio_min: float | None = None
+    ratio_max: float | None = None
+
+
+@dataclass(frozen=True)
+class RestrictedSummary:
+    """A restricted envelope's worst cell and its lowest margin per zone."""
+
+    name: str
+    worst: HotSpot | None = None
+    zones: tuple[Minimum, ...] = ()
+
+
+@dataclass(frozen=True)
 class RunSummary:
     worst: HotSpot | None = None
     hot_spots: tuple[HotSpot, ...] = ()
@@ -242,6 +296,10 @@ class RunSummary:
     notes: tuple[str, ...] = ()   # what the run assumed or found unusual, and about the mesh
     shear_check: tuple[ShearCheck, ...] = ()
     cell_order: str = ""   # "checked" (the file's own cells matched to the mesh) or "assumed" (HDF5)
+    progressive: tuple[ProgressiveZone, ...] = ()
+    envelopes: tuple[RestrictedSummary, ...] = ()
+    #: With a misalignment tolerance: cells whose worst margin comes from a turned laminate.
+    misaligned_cells: int = 0
 
     @classmethod
     def from_result(cls, result: Mapping[str, Any]) -> "RunSummary":
@@ -253,11 +311,17 @@ class RunSummary:
         hot = tuple(HotSpot(**h) for h in result.get("hot_spots", ()))
         worst = result.get("worst")
         shear = result.get("transverse_shear", {}).get("zones", {})
+        restricted = tuple(RestrictedSummary(name, HotSpot(**v["worst"]) if v.get("worst") else None,
+                                             tuple(Minimum(z, m.get("min_margin"), int(m.get("cell", -1)))
+                                                   for z, m in v.get("zones", {}).items()))
+                           for name, v in result.get("envelopes", {}).items())
         return cls(HotSpot(**worst) if worst else None, hot, groups("zones"), groups("laminates"),
                    groups("cases"), groups("criteria"), int(result.get("flagged_cells", 0)),
                    tuple(result.get("flagged_examples", ())), tuple(result.get("notes", ())),
                    tuple(ShearCheck(name, v["mean"], v["max"], int(v["fallback_cells"])) for name, v in shear.items()),
-                   str(result.get("cell_order", "")))
+                   str(result.get("cell_order", "")),
+                   tuple(ProgressiveZone(name, **v) for name, v in result.get("progressive", {}).items()),
+                   restricted, int(result.get("misaligned_cells", 0)))
 
 
 @dataclass(frozen=True)
@@ -300,70 +364,4 @@ class RunMeta:
         return next(m for m in self.materials if m.name == name)
 
 
-# ---------------------------------------------------------------------- JSON
-def meta_to_json(meta: RunMeta) -> str:
-    """JSON text of a :class:`RunMeta` (dataclasses as objects, tuples as lists)."""
-    return json.dumps(dataclasses.asdict(meta), ensure_ascii=False, separators=(",", ":"))
-
-
-def meta_from_json(text: str) -> RunMeta:
-    """The :class:`RunMeta` of :func:`meta_to_json` text.
-
-    Raises
-    ------
-    ValueError
-        Text that is not such a document (a missing field without a default, a wrong type).
-    """
-    return build(RunMeta, json.loads(text))
-
-
-def build(cls, data: Any):
-    """Construct ``cls`` (a type hint: a dataclass, tuple, dict, union or plain type) from JSON data."""
-    origin = typing.get_origin(cls)
-    if dataclasses.is_dataclass(cls):
-        if not isinstance(data, Mapping):
-            raise ValueError(f"{cls.__name__}: expected an object, got {type(data).__name__}")
-        hints = typing.get_type_hints(cls)
-        kwargs = {}
-        for f in dataclasses.fields(cls):
-            if f.name in data:
-                kwargs[f.name] = build(hints[f.name], data[f.name])
-            elif f.default is dataclasses.MISSING and f.default_factory is dataclasses.MISSING:
-                raise ValueError(f"{cls.__name__}: missing field '{f.name}'")
-        return cls(**kwargs)
-    if origin in (Union, types.UnionType):
-        args = typing.get_args(cls)
-        if data is None and type(None) in args:
-            return None
-        errors = []
-        for arg in args:
-            if arg is type(None):
-                continue
-            try:
-                return build(arg, data)
-            except (ValueError, TypeError) as err:
-                errors.append(str(err))
-        raise ValueError("; ".join(errors) or f"no type of {cls} fits {data!r}")
-    if origin is tuple:
-        args = typing.get_args(cls)
-        if not isinstance(data, (list, tuple)):
-            raise ValueError(f"expected a list, got {type(data).__name__}")
-        if len(args) == 2 and args[1] is Ellipsis:
-            return tuple(build(args[0], v) for v in data)
-        return tuple(build(a, v) for a, v in zip(args, data))
-    if origin is dict:
-        _, value_type = typing.get_args(cls)
-        if not isinstance(data, Mapping):
-            raise ValueError(f"expected an object, got {type(data).__name__}")
-        return {str(k): build(value_type, v) for k, v in data.items()}
-    if cls is Any:
-        return data
-    if cls is float:
-        if isinstance(data, bool) or not isinstance(data, (int, float)):
-            raise ValueError(f"expected a number, got {data!r}")
-        return float(data)
-    if cls in (int, bool, str):
-        if not isinstance(data, cls) or (cls is int and isinstance(data, bool)):
-            raise ValueError(f"expected {cls.__name__}, got {data!r}")
-        return data
-    raise TypeError(f"unsupported type in the run metadata: {cls!r}")
+from postproc.meta_json import build, meta_from_json, meta_to_json  # noqa: E402,F401  (the JSON form)

@@ -51,13 +51,25 @@ def face_states(tables: SectionTables, cell_sec: np.ndarray, ref: dict) -> tuple
     return out[0], out[1], fidx
 
 
+def _by_cases(criterion, sm, sf, idx, params, face, case_params) -> np.ndarray:
+    """``evaluate`` over (ncell, ncase, …) states with each case's allowables (``face``: the face tables)."""
+    if case_params is None:
+        return evaluate(criterion, sm, sf, idx, params)[0]
+    out = np.empty(sm.shape[:4])
+    for a, b, g in case_params.runs():
+        ply, faces = case_params.tables[g]
+        out[:, a:b] = evaluate(criterion, sm[:, a:b], sf[:, a:b], idx, faces if face else ply)[0]
+    return out
+
+
 def cell_states(criteria: Sequence[type], tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray,
                 R: np.ndarray, dT: np.ndarray, dM: np.ndarray, pres: np.ndarray,
                 shear: np.ndarray | None = None, held: np.ndarray | None = None,
                 held_pressure: np.ndarray | None = None,
-                held_shear: np.ndarray | None = None) -> dict[str, np.ndarray]:
+                held_shear: np.ndarray | None = None, case_params=None) -> dict[str, np.ndarray]:
     """States and strength ratios of the given cells (``shear``, ``held``, ``held_pressure``, ``held_shear``: see
-    :func:`shells.recovery_reference.ply_states`; the held part is fixed, not scaled).
+    :func:`shells.recovery_reference.ply_states`; the held part is fixed, not scaled; ``case_params``: the
+    allowables of each case's environment, :class:`postproc.recover.CaseParams`).
 
     Returns
     -------
@@ -86,12 +98,13 @@ def ratios_of_states(criteria: Sequence[type], tables: SectionTables, cell_sec: 
     ratios = []
     for c in criteria:
         if c.level == "point":
-            ratios.append(evaluate(c, mech, fixed, pidx, tables.params)[0].transpose(1, 0, 2, 3))
+            ratios.append(_by_cases(c, mech, fixed, pidx, tables.params, False, case_params).transpose(1, 0, 2, 3))
             continue
         if faces is None:
             faces = face_states(tables, cell_sec, ref)
         fm, ff, fidx = faces
-        sr = evaluate(c, fm, ff, fidx, tables.face_params)[0] if fidx.max() >= 0 else np.zeros(fm.shape[:4])
+        sr = (_by_cases(c, fm, ff, fidx, tables.face_params, True, case_params) if fidx.max() >= 0
+              else np.zeros(fm.shape[:4]))
         out = np.where(pidx[:, None, :, None] >= 0, np.inf, np.nan) * np.ones((n, mech.shape[1], mp, 3))
         for i, s in enumerate(cell_sec):
             for g in range(tables.face_count[s]):

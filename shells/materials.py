@@ -48,6 +48,9 @@ class _Layer:
     knockdown: float = 1.0
     #: The factors whose product is ``knockdown``, as (name, factor) pairs (empty when given as one number).
     knockdown_factors: tuple[tuple[str, float], ...] = ()
+    #: The environment factor by environment name, as (name, factor) pairs, when given as a table; ``knockdown``
+    #: then holds the smallest of them (the factor of a case that names no environment).
+    environment_knockdowns: tuple[tuple[str, float], ...] = ()
     #: Where the values come from (a data sheet, a test report), shown in the report; not used in any calculation.
     source: str | None = None
     description: str | None = None
@@ -63,6 +66,25 @@ class _Layer:
         vec[P.KIND] = kind
         return vec
 
+    def knockdown_for(self, environment: str | None) -> float:
+        """The knockdown of a case checked in ``environment`` (None: the default, ``knockdown``).
+
+        With an environment table, the other factors times the table's factor for ``environment``; with none,
+        ``knockdown`` (a number for the environment stands for every environment).
+
+        Raises
+        ------
+        MaterialError
+            The table has no factor for ``environment``.
+        """
+        if environment is None or not self.environment_knockdowns:
+            return self.knockdown
+        table = dict(self.environment_knockdowns)
+        if environment not in table:
+            raise MaterialError(f"material '{self.name}': knockdown.environment has no factor for environment "
+                                f"'{environment}' (it lists {', '.join(table)}); add {environment} = ... to it")
+        return self.knockdown / min(table.values()) * table[environment]
+
     def _validate_common(self) -> None:
         if self.density < 0 or not math.isfinite(self.density):
             raise MaterialError(f"material '{self.name}': density = {self.density!r} must be zero or positive")
@@ -71,6 +93,10 @@ class _Layer:
             raise MaterialError(
                 f"material '{self.name}': knockdown = {self.knockdown!r} must lie in (0, 1]; it is the "
                 "fraction of strength retained (product of environment and damage factors)")
+        for env, factor in self.environment_knockdowns:
+            if not (0 < factor <= 1):
+                raise MaterialError(f"material '{self.name}': knockdown.environment.{env} = {factor!r} must lie in "
+                                    "(0, 1]; it is the fraction of strength retained in that environment")
 
     def strength_keys(self) -> tuple[str, ...]:
         """Names of the strength entries this material defines (for error messages)."""

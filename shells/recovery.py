@@ -166,7 +166,7 @@ def recover_block(sel, sec, blk, env, out):
             qx = c * r[6] + sn * r[7]
             qy = -sn * r[6] + c * r[7]
             t = dT[j, i]
-            h = dM[j]
+            h = dM[j, i]
             for a in range(3):
                 gf[a] = fixed[s, 0, a] * t + fixed[s, 2, a] * h
                 gf[a + 3] = fixed[s, 1, a] * t + fixed[s, 3, a] * h
@@ -191,8 +191,8 @@ def recover_block(sel, sec, blk, env, out):
             drop_roundoff(em, zmax)
             drop_roundoff(ef, zmax)
             inv_fos = 1.0 / fos[j]
-            pres = pressure[j]
-            pres_held = held_pres[j]
+            pres = pressure[j, i]
+            pres_held = held_pres[j, i]
             cj = case0 + j
             if face_codes.shape[0] > 0:
                 for f in range(face_first[s], face_first[s] + face_count[s]):

@@ -95,8 +95,10 @@ class BlockInputs(NamedTuple):
         Nx, Ny, Nxy, Mx, My, Mxy, Qx, Qy in the element frame.
     delta_T : float64 (ncase, ncell)
         Temperature change per case and cell.
-    delta_M, pressure, fos : float64 (ncase,)
-        Moisture change, lateral pressure (σ3 = −pressure) and factor of safety of each case.
+    delta_M, pressure : float64 (ncase, ncell)
+        Moisture change and lateral pressure (σ3 = −pressure) of each case and cell.
+    fos : float64 (ncase,)
+        Factor of safety of each case.
     skip : bool (ncase, ncell)
         Cell-cases not to recover (non-finite input).
     section : int64 (ncell,)
@@ -112,7 +114,7 @@ class BlockInputs(NamedTuple):
     held_resultants : float64 (ncase, ncell, 8), or zero-size
         Resultants of held cases (element frame), part of the FIXED state with the thermal and moisture
         resultants: they are not scaled by the strength ratio. Zero-size when no case holds any.
-    held_pressure : float64 (ncase,)
+    held_pressure : float64 (ncase, ncell)
         Lateral pressure of the held part (σ3 = −held_pressure, fixed); zeros when none.
     held_shear : float64 (ncase, ncell, maxply, 3, 2), or zero-size
         As ``shear``, for the held part: given exactly when ``shear`` is given and there are held resultants.
@@ -134,6 +136,15 @@ class BlockInputs(NamedTuple):
     held_pressure: np.ndarray
     held_shear: np.ndarray
     case0: int
+
+
+def per_cell(values, ncase: int, ncell: int) -> np.ndarray:
+    """A per-case (ncase,) or per-case-and-cell (ncase, ncell) value (None: zeros) as a C-contiguous float64
+    (ncase, ncell) array: ``BlockInputs.delta_M``, ``pressure``, ``held_pressure``."""
+    a = np.zeros(ncase) if values is None else np.asarray(values, dtype=np.float64)
+    if a.ndim == 1:
+        a = a[:, None]
+    return np.ascontiguousarray(np.broadcast_to(a, (ncase, ncell)), dtype=np.float64)
 
 
 #: The zero-size ``BlockInputs.shear`` / ``held_shear`` of the normal path.

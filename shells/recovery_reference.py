@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from .recovery_args import per_cell
 from .recovery_tables import ROUNDOFF, SectionTables
 from .rotation import shear_rotation, stress_rotation
 
@@ -36,13 +37,13 @@ def ply_states(tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray,
         Resultants in the element frame (Nx, Ny, Nxy, Mx, My, Mxy, Qx, Qy).
     dT : float (ncase, ncell)
         Temperature change.
-    dM, pres : float (ncase,), optional
-        Moisture change and lateral pressure per case.
+    dM, pres : float (ncase,) or (ncase, ncell), optional
+        Moisture change and lateral pressure per case (or per case and cell).
     shear : float (ncase, ncell, maxply, 3, 2), optional
         (τxz, τyz) at every ply point in laminate axes, replacing F·(Qx, Qy) (field transverse shear).
     held : float (ncase, ncell, 8), optional
         Resultants of held cases (element frame): part of the fixed state.
-    held_pressure : float (ncase,), optional
+    held_pressure : float (ncase,) or (ncase, ncell), optional
         Lateral pressure of the held part.
     held_shear : float (ncase, ncell, maxply, 3, 2), optional
         As ``shear``, for the held part.
@@ -56,8 +57,7 @@ def ply_states(tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray,
     """
     R = np.asarray(R, dtype=float)
     ncase, ncell = R.shape[:2]
-    dM = np.zeros(ncase) if dM is None else np.asarray(dM, dtype=float)
-    pres = np.zeros(ncase) if pres is None else np.asarray(pres, dtype=float)
+    dM, pres = per_cell(dM, ncase, ncell), per_cell(pres, ncase, ncell)
     mp = tables.max_plies
     mech = np.full((ncase, ncell, mp, 3, 6), np.nan)
     fixed = np.full_like(mech, np.nan)
@@ -69,7 +69,7 @@ def ply_states(tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray,
     M = np.einsum("cij,scj->sci", Tinv, R[..., 3:6])
     Qs = np.einsum("cij,scj->sci", Rq, R[..., 6:8])
     Rh = np.zeros_like(R) if held is None else np.asarray(held, dtype=float)
-    hpres = np.zeros(ncase) if held_pressure is None else np.asarray(held_pressure, dtype=float)
+    hpres = per_cell(held_pressure, ncase, ncell)
     Nh = np.einsum("cij,scj->sci", Tinv, Rh[..., 0:3])
     Mh = np.einsum("cij,scj->sci", Tinv, Rh[..., 3:6])
     Qh = np.einsum("cij,scj->sci", Rq, Rh[..., 6:8])
@@ -79,8 +79,8 @@ def ply_states(tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray,
         f = tables.fixed[s]
         gen_m = np.concatenate([N[:, cells], M[:, cells]], axis=-1)
         t = dT[:, cells][..., None]
-        gen_f = np.concatenate([f[0] * t + f[2] * dM[:, None, None] + Nh[:, cells],
-                                f[1] * t + f[3] * dM[:, None, None] + Mh[:, cells]], axis=-1)
+        hm = dM[:, cells][..., None]
+        gen_f = np.concatenate([f[0] * t + f[2] * hm + Nh[:, cells], f[1] * t + f[3] * hm + Mh[:, cells]], axis=-1)
         zmax = max(abs(tables.z[tables.first[s], 0]), abs(tables.z[tables.first[s] + tables.nply[s] - 1, 2]))
         em = _drop_roundoff(gen_m @ comp.T, zmax)
         ef = _drop_roundoff(gen_f @ comp.T, zmax)
@@ -98,17 +98,17 @@ def ply_states(tables: SectionTables, cell_sec: np.ndarray, phi_deg: np.ndarray,
                 eps_m = (em[..., :3] + zs[q] * em[..., 3:]) @ Tt          # Tᵀ ε as row vectors
                 eps_f = (ef[..., :3] + zs[q] * ef[..., 3:]) @ Tt
                 free_strain = (tables.alpha[row][None, None, :] * dT[:, cells][..., None]
-                               + tables.beta[row][None, None, :] * dM[:, None, None])
+                               + tables.beta[row][None, None, :] * hm)
                 free = np.concatenate([free_strain, np.zeros(free_strain.shape[:-1] + (1,))], axis=-1)
                 lam = Qs[:, cells] @ tables.F[row, q].T if shear is None else shear[:, cells, k, q]
                 tau = lam @ Rt.T
                 mech[:, cells, k, q, :3] = eps_m @ Qm.T
                 mech[:, cells, k, q, 3:5] = tau
-                mech[:, cells, k, q, 5] = -pres[:, None]
+                mech[:, cells, k, q, 5] = -pres[:, cells]
                 fixed[:, cells, k, q, :3] = (eps_f - free) @ Qm.T
                 lam_h = Qh[:, cells] @ tables.F[row, q].T if held_shear is None else held_shear[:, cells, k, q]
                 fixed[:, cells, k, q, 3:5] = lam_h @ Rt.T
-                fixed[:, cells, k, q, 5] = -hpres[:, None]
+                fixed[:, cells, k, q, 5] = -hpres[:, cells]
                 strain[:, cells, k, q] = eps_m + eps_f
     return {"mech": mech, "fixed": fixed, "stress": mech[..., :3] + fixed[..., :3], "strain": strain,
             "shear": mech[..., 3:5] + fixed[..., 3:5], "z": zout}

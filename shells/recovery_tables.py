@@ -57,11 +57,15 @@ class SectionTables:
         return int(self.nply.max())
 
 
-def build_tables(sections: Sequence[Section], names: Sequence[str] = ()) -> SectionTables:
-    """Flatten sections (in the order given: section ids are positions in this list)."""
+def build_tables(sections: Sequence[Section], names: Sequence[str] = (),
+                 environment: str | None = None) -> SectionTables:
+    """Flatten sections (in the order given: section ids are positions in this list).
+
+    ``environment`` chooses the knockdown of the allowables (:meth:`shells.section.Section.params_for`).
+    """
     comp, fixed, first, nply = [], [], [], []
-    face_first, face_count, face_rows, face_params = [], [], [], [np.zeros((0, P.NPARAM))]
-    rows: dict[str, list] = {k: [] for k in ("z", "Q", "cs", "alpha", "beta", "F", "params")}
+    face_first, face_count, face_rows = [], [], []
+    rows: dict[str, list] = {k: [] for k in ("z", "Q", "cs", "alpha", "beta", "F")}
     row = 0
     for sec in sections:
         sp = sec.props
@@ -72,7 +76,6 @@ def build_tables(sections: Sequence[Section], names: Sequence[str] = ()) -> Sect
         face_first.append(len(face_rows))
         face_count.append(len(sec.faces))
         face_rows.extend([row + run[0], len(run)] for run in sec.faces)
-        face_params.append(sec.face_params)
         row += sec.n_plies
         z, F = _without_roundoff(sec)
         rows["z"].append(z)
@@ -84,16 +87,29 @@ def build_tables(sections: Sequence[Section], names: Sequence[str] = ()) -> Sect
             rows["alpha"].append(ply.material.alpha()[:2])
             rows["beta"].append(ply.material.beta()[:2])
         rows["F"].append(F)
-        rows["params"].append(sec.ply_params)
 
     def arr(x, dtype=np.float64):
         return np.ascontiguousarray(np.asarray(x, dtype=dtype))
+
+    params, face_params = environment_params(sections, environment)
 
     return SectionTables(SectionArrays(
         compliance=arr(comp), fixed=arr(fixed), first=arr(first, np.int64), nply=arr(nply, np.int64),
         z=arr(np.concatenate(rows["z"])), Q=arr(rows["Q"]), cs=arr(rows["cs"]), alpha=arr(rows["alpha"]),
         beta=arr(rows["beta"]), F=arr(np.concatenate(rows["F"])),
-        params=arr(np.concatenate(rows["params"])), face_first=arr(face_first, np.int64),
+        params=params, face_first=arr(face_first, np.int64),
         face_count=arr(face_count, np.int64), face_rows=arr(np.reshape(face_rows, (-1, 2)), np.int64),
-        face_params=arr(np.concatenate(face_params)),
+        face_params=face_params,
     ), tuple(names))
+
+
+def environment_params(sections: Sequence[Section], environment: str | None = None) -> tuple[np.ndarray, np.ndarray]:
+    """``params`` (nrows, NPARAM) and ``face_params`` (nface, NPARAM) of the tables of ``sections`` with the
+    allowables knocked down for ``environment`` (:meth:`shells.section.Section.params_for`)."""
+    ply, face = [np.zeros((0, P.NPARAM))], [np.zeros((0, P.NPARAM))]
+    for sec in sections:
+        p, f = sec.params_for(environment)
+        ply.append(p)
+        face.append(f)
+    return (np.ascontiguousarray(np.concatenate(ply), dtype=np.float64),
+            np.ascontiguousarray(np.concatenate(face), dtype=np.float64))

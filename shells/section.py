@@ -45,6 +45,9 @@ class Section:
     face_params : ndarray (nface, NPARAM)
         Property vector of each face for the face-level checks (wrinkling, dimpling): the face's first ply
         with the face allowables, knocked down by the smallest knockdown of the face's plies.
+    raw_params, raw_face_params : ndarray
+        ``ply_params`` and ``face_params`` before any knockdown (:meth:`params_for` knocks them down for an
+        environment).
     """
 
     laminate: Laminate
@@ -55,10 +58,22 @@ class Section:
     ply_params: np.ndarray = field(repr=False)
     faces: tuple[tuple[int, ...], ...] = ()
     face_params: np.ndarray = field(default_factory=lambda: np.zeros((0, P.NPARAM)), repr=False)
+    raw_params: np.ndarray | None = field(default=None, repr=False)
+    raw_face_params: np.ndarray | None = field(default=None, repr=False)
 
     @property
     def n_plies(self) -> int:
         return len(self.laminate.plies)
+
+    def params_for(self, environment: str | None) -> tuple[np.ndarray, np.ndarray]:
+        """(ply_params, face_params) with each ply's knockdown for ``environment`` (None: the default one).
+
+        A face takes the smallest knockdown of its plies. Raises :class:`shells.errors.MaterialError` when a
+        material's environment table lacks ``environment``.
+        """
+        if environment is None or self.raw_params is None:
+            return self.ply_params, self.face_params
+        return _knock(self.laminate, self.raw_params, self.raw_face_params, self.faces, environment)
 
     def summary(self) -> dict:
         """Plain-data summary (lists and floats) of the section, laminate axes, ply order bottom to top."""
@@ -166,7 +181,13 @@ def build_section(lam: Laminate, shear_method: str = TRANSVERSE_SHEAR, shear_fac
     for k, (yt, s12) in insitu_strengths(lam.plies).items():
         params[k, [P.YT_IS, P.S12_IS]] = yt, s12
     faces, face_params = _face_allowables(lam, params, wrinkling_coefficient)
-    knockdown = np.array([p.material.knockdown for p in lam.plies])
-    params = P.knocked_down(params, knockdown)
-    face_params = P.knocked_down(face_params, np.array([knockdown[list(run)].min() for run in faces]))
-    return Section(lam, sp, H, shear_method, shear_distribution(sp, PLY_POINTS), params, faces, face_params)
+    knocked, knocked_faces = _knock(lam, params, face_params, faces, None)
+    return Section(lam, sp, H, shear_method, shear_distribution(sp, PLY_POINTS), knocked, faces, knocked_faces,
+                   params, face_params)
+
+
+def _knock(lam: Laminate, params: np.ndarray, face_params: np.ndarray, faces, environment: str | None):
+    """Ply and face vectors with every allowable multiplied by the ply's knockdown in ``environment``."""
+    knockdown = np.array([p.material.knockdown_for(environment) for p in lam.plies])
+    return (P.knocked_down(params, knockdown),
+            P.knocked_down(face_params, np.array([knockdown[list(run)].min() for run in faces])))

@@ -25,10 +25,15 @@ from shells.errors import DefinitionError, ResultantsError
 from bridge.definition.schema import check_name, expect_table, suggest, take
 from bridge.definition.units import UnitSystem
 
+#: The case kinds every run knows (more are declared in ``[analysis] factor_of_safety``).
 KINDS = ("limit", "ultimate")
 CASE_SPEC = {"step": "int", "source": "str", "delta_T": "temperature", "temperature_field": "str",
-             "kind": "str", "pressure": "stress", "delta_M": "dimensionless", "description": "str", "held": "bool"}
-COMBO_SPEC = {"factors": "any", "kind": "str", "delta_T": "temperature", "description": "str"}
+             "kind": "str", "pressure": "stress", "delta_M": "dimensionless", "description": "str", "held": "bool",
+             "moisture_field": "str", "pressure_field": "str", "environment": "str"}
+COMBO_SPEC = {"factors": "any", "kind": "str", "delta_T": "temperature", "description": "str",
+              "environment": "str"}
+#: Per-cell arrays of the mesh a case may name, with the case key each one overrides.
+FIELDS = {"temperature_field": "delta_T", "moisture_field": "delta_M", "pressure_field": "pressure"}
 MAX_CASES = 100000
 #: Largest combination factor in magnitude (common practice: load factors are of order one; 1e6 leaves room
 #: for unit conversions and keeps every sum far from floating-point overflow).
@@ -43,13 +48,17 @@ class Case:
     ----------
     name : str
     kind : str
-        ``limit`` or ``ultimate`` (chooses the factor of safety).
+        ``limit``, ``ultimate`` or a kind declared in ``[analysis] factor_of_safety`` (chooses the factor of
+        safety).
     delta_T : float
         Uniform temperature change from the stress-free state (unit of the system).
     temperature_field : str or None
         A per-cell temperature-change array of the mesh, overriding ``delta_T``.
     pressure : float
         Lateral pressure, taken as σ3 = −pressure through the section (core crushing).
+    moisture_field, pressure_field : str or None
+        Per-cell arrays of the mesh overriding ``delta_M`` and ``pressure`` (the pressure field of a held case
+        is held).
     factors : tuple of (source case index, factor)
         How the case's resultants are built from the input steps (the part scaled by the strength ratio).
     held_factors : tuple of (source case index, factor)
@@ -59,6 +68,9 @@ class Case:
         Lateral pressure of the held part.
     held_parts : tuple of str
         Names of the held cases in this case (itself when it is held).
+    environment : str or None
+        The environment the case is checked in (its allowables take each material's knockdown for it); None:
+        the materials' default knockdown (docs/definition.md).
     """
 
     name: str
@@ -71,6 +83,13 @@ class Case:
     held_factors: tuple[tuple[int, float], ...] = ()
     held_pressure: float = 0.0
     held_parts: tuple[str, ...] = ()
+    moisture_field: str | None = None
+    pressure_field: str | None = None
+    environment: str | None = None
+
+    def field(self, key: str) -> str | None:
+        """The mesh array named for ``temperature_field``, ``moisture_field`` or ``pressure_field``."""
+        return getattr(self, key)
 
 
 @dataclass(frozen=True)
@@ -97,9 +116,11 @@ class Cases:
                     raise DefinitionError(f"combinations.{name}.factors: unknown case '{case_name}'"
                                           f"{suggest(case_name, by_name)}; known cases: {', '.join(by_name)}")
                 c = by_name[case_name]
-                if c.temperature_field is not None:
-                    raise DefinitionError(f"combinations.{name}: case '{case_name}' uses a temperature field; "
-                                          "combinations take uniform delta_T only")
+                for key in FIELDS:
+                    if c.field(key) is not None:
+                        raise DefinitionError(f"combinations.{name}: case '{case_name}' uses a "
+                                              f"{key.replace('_', ' ')}; combinations take uniform {FIELDS[key]} "
+                                              "only")
                 for part, source in ((factors, c.factors), (held, c.held_factors)):
                     for idx, g in source:
                         part[idx] = part.get(idx, 0.0) + f * g
@@ -109,8 +130,21 @@ class Cases:
                 held_pressure += f * c.held_pressure
             out.append(Case(name, spec.get("kind", "limit"), spec.get("delta_T", dT), dM, None, pressure,
                             tuple(sorted(factors.items())), tuple(sorted(held.items())), held_pressure,
-                            tuple(n for n in spec["factors"] if by_name[n].held_parts)))
+                            tuple(n for n in spec["factors"] if by_name[n].held_parts),
+                            environment=_combined_environment(name, spec, [by_name[n] for n in spec["factors"]])))
         return tuple(out)
+
+
+def _combined_environment(name: str, spec: Mapping[str, Any], cases: list[Case]) -> str | None:
+    """A combination's environment: its own, else the one its cases share; refused when they differ."""
+    if "environment" in spec:
+        return spec["environment"]
+    named = {c.environment for c in cases}
+    if len(named) > 1:
+        listed = ", ".join(f"{c.name}: {c.environment or 'none'}" for c in cases)
+        raise DefinitionError(f"combinations.{name}: its cases are checked in different environments ({listed}); "
+                              "state the combination's own environment = \"...\"")
+    return named.pop() if named else None
 
 
 def _resolve_case(name: str, spec: Mapping[str, Any], input_names: tuple[str, ...]) -> Case:
@@ -127,17 +161,21 @@ def _resolve_case(name: str, spec: Mapping[str, Any], input_names: tuple[str, ..
             raise ResultantsError(f"{where}: no case '{source}' in the resultants{suggest(source, input_names)}; "
                                   f"found: {', '.join(input_names[:20])}; set step = k or source = \"...\"")
         index = input_names.index(source)
+    extra = dict(moisture_field=spec.get("moisture_field"), pressure_field=spec.get("pressure_field"),
+                 environment=spec.get("environment"))
     if spec.get("held", False):        # nothing of it scales: its resultants and pressure are held
         return Case(name, spec.get("kind", "limit"), spec.get("delta_T", 0.0), spec.get("delta_M", 0.0),
-                    spec.get("temperature_field"), 0.0, (), ((index, 1.0),), spec.get("pressure", 0.0), (name,))
+                    spec.get("temperature_field"), 0.0, (), ((index, 1.0),), spec.get("pressure", 0.0), (name,),
+                    **extra)
     return Case(name, spec.get("kind", "limit"), spec.get("delta_T", 0.0), spec.get("delta_M", 0.0),
-                spec.get("temperature_field"), spec.get("pressure", 0.0), ((index, 1.0),))
+                spec.get("temperature_field"), spec.get("pressure", 0.0), ((index, 1.0),), **extra)
 
 
-def _check_kind(values: dict, where: str) -> None:
+def _check_kind(values: dict, where: str, kinds: tuple[str, ...]) -> None:
     kind = values.get("kind", "limit")
-    if kind not in KINDS:
-        raise DefinitionError(f"{where}.kind = {kind!r}{suggest(kind, KINDS)}; use limit or ultimate")
+    if kind not in kinds:
+        raise DefinitionError(f"{where}.kind = {kind!r}{suggest(kind, kinds)}; use one of {', '.join(kinds)}, or "
+                              "declare the kind with its factor in [analysis] factor_of_safety")
 
 
 def _refuse_duplicates(names: list) -> None:
@@ -151,7 +189,7 @@ def _refuse_duplicates(names: list) -> None:
         seen[key] = str(name)
 
 
-def parse_cases(cases: Any, combinations: Any, units: UnitSystem) -> Cases:
+def parse_cases(cases: Any, combinations: Any, units: UnitSystem, kinds: tuple[str, ...] = KINDS) -> Cases:
     cases = expect_table(cases, "[cases]")
     combinations = expect_table(combinations, "[combinations]")
     if len(cases) + len(combinations) > MAX_CASES:
@@ -163,7 +201,7 @@ def parse_cases(cases: Any, combinations: Any, units: UnitSystem) -> Cases:
         values = take(expect_table(table, f"[{where}]"), CASE_SPEC, where, units)
         if "step" in values and "source" in values:
             raise DefinitionError(f"[{where}]: give step or source, not both")
-        _check_kind(values, where)
+        _check_kind(values, where, kinds)
         parsed[name] = values
     combos: dict[str, dict] = {}
     for name, table in combinations.items():
@@ -178,7 +216,7 @@ def parse_cases(cases: Any, combinations: Any, units: UnitSystem) -> Cases:
             if isinstance(f, bool) or not isinstance(f, (int, float)) or not abs(f) <= MAX_FACTOR:
                 raise DefinitionError(f"{where}.factors.{case_name} = {f!r} must be a number from -{MAX_FACTOR:g} "
                                       f"to {MAX_FACTOR:g}")
-        _check_kind(values, where)
+        _check_kind(values, where, kinds)
         combos[name] = values
     return Cases(parsed, combos)
 

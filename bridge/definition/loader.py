@@ -100,7 +100,7 @@ def parse_definition(doc: Mapping[str, Any], source: str = "<definition>", sha25
         title = doc.get("title", Path(source).stem)
         if not isinstance(title, str):
             raise DefinitionError("title must be a string")
-        cases = parse_cases(doc.get("cases", {}), doc.get("combinations", {}), units)
+        cases = parse_cases(doc.get("cases", {}), doc.get("combinations", {}), units, analysis.kinds)
         zones = parse_zones(doc.get("zones", []), laminates, units)
         if analysis.check_ranges:
             check_laminates_and_cases(laminates, cases, units)

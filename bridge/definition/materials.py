@@ -49,22 +49,38 @@ def _strain_limits(value: Any, where: str, units: UnitSystem) -> StrainLimits:
     return StrainLimits(**take(expect_table(value, where), dict.fromkeys(names, D), where, units))
 
 
-def _knockdown(value: Any, where: str) -> tuple[float, tuple[tuple[str, float], ...]]:
-    """(product, factors): a number, or a table of factors (environment, damage, other) multiplied together."""
+def _number(value: Any, where: str) -> float:
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        raise DefinitionError(f"{where} must be a number in (0, 1]")
+    return float(value)
+
+
+def _knockdown(value: Any, where: str) -> dict[str, Any]:
+    """``knockdown``, ``knockdown_factors`` and ``environment_knockdowns`` of a material: a number, or a table of
+    factors (environment, damage, other) multiplied together, whose ``environment`` may itself be a table by
+    environment name (the default knockdown then takes its smallest factor)."""
     if isinstance(value, bool):
         raise DefinitionError(f"{where} must be a number or a table of factors")
     if isinstance(value, (int, float)):
-        return float(value), ()
+        return {"knockdown": float(value)}
     table = expect_table(value, where)
-    product = 1.0
+    product, factors, environments = 1.0, [], ()
     for key, factor in table.items():
         if key not in KNOCKDOWN_KEYS:
             raise DefinitionError(f"{where}: unknown factor '{key}'{suggest(key, KNOCKDOWN_KEYS)}; "
                                   f"use {', '.join(KNOCKDOWN_KEYS)}")
-        if isinstance(factor, bool) or not isinstance(factor, (int, float)):
-            raise DefinitionError(f"{where}.{key} must be a number in (0, 1]")
-        product *= float(factor)
-    return product, tuple((key, float(factor)) for key, factor in table.items())
+        if key == "environment" and not isinstance(factor, (bool, int, float)):
+            by_name = expect_table(factor, f"{where}.environment")
+            if not by_name:
+                raise DefinitionError(f"{where}.environment is an empty table; give environment = factor pairs")
+            environments = tuple((check_name(env, f"{where}.environment"), _number(f, f"{where}.environment.{env}"))
+                                 for env, f in by_name.items())
+            factor = min(f for _, f in environments)
+        else:
+            factor = _number(factor, f"{where}.{key}")
+        product *= factor
+        factors.append((key, factor))
+    return {"knockdown": product, "knockdown_factors": tuple(factors), "environment_knockdowns": environments}
 
 
 def parse_material(name: str, table: Mapping[str, Any], units: UnitSystem, check_ranges: bool = True) -> Material:
@@ -83,10 +99,11 @@ def parse_material(name: str, table: Mapping[str, Any], units: UnitSystem, check
     if "strain_limits" in values:
         values["strain_limits"] = _strain_limits(values["strain_limits"], f"{where}.strain_limits", units)
     if "knockdown" in values:
-        values["knockdown"], values["knockdown_factors"] = _knockdown(values["knockdown"], f"{where}.knockdown")
+        values.update(_knockdown(values.pop("knockdown"), f"{where}.knockdown"))
     if check_ranges:
         limits = vars(values.get("strain_limits", StrainLimits()))
         factors = {f"knockdown.{name}": factor for name, factor in values.get("knockdown_factors", ())}
+        factors.update({f"knockdown.environment.{env}": f for env, f in values.get("environment_knockdowns", ())})
         check_material_values(where, kind, {**factors, **values,
                                             **{f"strain_limits.{k}": v for k, v in limits.items()}}, units)
     values.pop("kind", None)

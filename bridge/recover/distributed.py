@@ -33,6 +33,7 @@ from shells.errors import InputError
 from shells.recovery_tables import SectionTables
 
 from bridge.definition.cases import combine_steps
+from bridge.recover.beyond import Beyond, split_extra
 from bridge.recover.resultants import CellAxes, H5Steps
 
 #: Most worker processes ``--workers`` starts on this machine.
@@ -55,7 +56,7 @@ class BlockContext:
     weights : float64 (ncase, nstep)
         Case ← input-step combination factors.
     dM, pres, fos : float64 (ncase,)
-        Moisture change, lateral pressure and factor of safety of each case.
+        Moisture change, lateral pressure and factor of safety of each case (the blocks carry them per cell).
     store_plies : bool
     reader : H5Steps or None
         The resultants file each task reads its cells from by path (None: blocks carry their steps).
@@ -66,6 +67,10 @@ class BlockContext:
         Case ← input-step factors of the held part (held cases), None when nothing is held.
     held_pres : float64 (ncase,) or None
         Lateral pressure of the held part.
+    case_params : postproc.recover.CaseParams or None
+        The allowables of each case's environment (None: the tables' own, one environment).
+    beyond : Beyond
+        Misalignment turns, progressive failure and restricted envelopes (:mod:`bridge.recover.beyond`).
     """
 
     criteria: tuple[str, ...]
@@ -79,6 +84,8 @@ class BlockContext:
     field_G: np.ndarray | None = None
     held_weights: np.ndarray | None = None
     held_pres: np.ndarray | None = None
+    case_params: object = None
+    beyond: Beyond = Beyond()
 
     def compute(self, spec: "BlockSpec") -> "BlockResult":
         """The block task of a recovery run (:func:`compute_block`)."""
@@ -104,6 +111,10 @@ class BlockSpec:
         Gradients of N and M of every input step, laminate axes (field transverse shear only).
     gradient_valid : bool (ncell,) or None
         Cells with a gradient stencil (the others use the Q-only distribution).
+    dM, pres : float64 (ncase, ncell) or None
+        Moisture change and lateral pressure of each case and cell (None: the context's per-case values).
+    held_pres : float64 (ncase, ncell) or None
+        Lateral pressure of the held part per cell (None: the context's).
     """
 
     index: int
@@ -115,11 +126,15 @@ class BlockSpec:
     steps: np.ndarray | None = None
     gradients: np.ndarray | None = None
     gradient_valid: np.ndarray | None = None
+    dM: np.ndarray | None = None
+    pres: np.ndarray | None = None
+    held_pres: np.ndarray | None = None
 
 
 @dataclass(frozen=True)
 class BlockResult:
-    """The recovered arrays of one block (see :func:`postproc.recover.recover_cells`)."""
+    """The recovered arrays of one block (see :func:`postproc.recover.recover_cells`) and the extra datasets
+    by store path (:mod:`bridge.recover.beyond`)."""
 
     index: int
     start: int
@@ -127,6 +142,7 @@ class BlockResult:
     envelope: dict
     cells: dict
     plies: dict | None
+    extra: dict | None = None
 
 
 def compute_block(ctx: BlockContext, spec: BlockSpec) -> BlockResult:
@@ -144,22 +160,33 @@ def compute_block(ctx: BlockContext, spec: BlockSpec) -> BlockResult:
         R = combine_steps(ctx.weights, steps)
         held = None if ctx.held_weights is None else combine_steps(ctx.held_weights, steps)
     shear = held_shear = None
+    turn_shear = None
     if spec.gradients is not None:
         from postproc.gradients import field_shear
 
         t = ctx.tables
 
-        def shear_of(weights, resultants):
-            return field_shear(ctx.field_G, t.F, t.first, t.nply, t.max_plies, spec.section, spec.phi,
+        def shear_of(weights, resultants, rot=0.0):
+            return field_shear(ctx.field_G, t.F, t.first, t.nply, t.max_plies, spec.section, spec.phi + rot,
                                combine_steps(weights, spec.gradients), resultants, spec.gradient_valid)
 
-        shear = shear_of(ctx.weights, R)
-        if held is not None:
-            held_shear = shear_of(ctx.held_weights, held)
+        def turned(rot):
+            return shear_of(ctx.weights, R, rot), None if held is None else shear_of(ctx.held_weights, held, rot)
+
+        shear, held_shear = turned(0.0)
+        turn_shear = turned
+    dM = ctx.dM if spec.dM is None else spec.dM
+    pres = ctx.pres if spec.pres is None else spec.pres
+    held_pres = ctx.held_pres if spec.held_pres is None else spec.held_pres
     env, cells, plies = recover_cells(tuple(by_name(n) for n in ctx.criteria), ctx.tables, spec.section,
-                                      spec.phi, R, spec.dT, ctx.dM, ctx.pres, ctx.fos, ctx.store_plies,
-                                      shear=shear, held=held, held_pressure=ctx.held_pres, held_shear=held_shear)
-    return BlockResult(spec.index, spec.start, spec.stop, env, cells, plies)
+                                      spec.phi, R, spec.dT, dM, pres, ctx.fos, ctx.store_plies,
+                                      shear=shear, held=held, held_pressure=held_pres, held_shear=held_shear,
+                                      case_params=ctx.case_params, rotations=ctx.beyond.rotations,
+                                      shear_of=turn_shear)
+    extra = split_extra(env, cells)
+    extra.update(ctx.beyond.compute(ctx.tables, spec.section, spec.phi, R, spec.dT, dM, pres, ctx.fos, held,
+                                    held_pres, shear, held_shear, turn_shear, ctx.case_params))
+    return BlockResult(spec.index, spec.start, spec.stop, env, cells, plies, extra)
 
 
 def _task(ctx, spec):

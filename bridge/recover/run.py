@@ -11,23 +11,23 @@ from __future__ import annotations
 import contextlib
 import datetime
 import hashlib
-from dataclasses import dataclass
 from pathlib import Path
 from typing import Callable, Iterator, Sequence
 
 import numpy as np
 
 from shells.criteria import CRITERIA, by_name, check_requirements
-from shells.errors import InputError, ResultantsError
+from shells.errors import InputError
 
-from bridge.definition.cases import MAX_CASES, Case, combine_steps
 from bridge.definition.loader import Definition, load_definition
 from bridge.mesh.checks import mesh_notes
 from bridge.mesh.formats import read_mesh
 from bridge.model.build import Model, build_model
 from bridge.results.partial import companions
 from bridge.results.store import CHUNK_CELLS, LAYOUT_VERSION, StoreLayout, mesh_group
+from bridge.recover.beyond import Beyond, beyond_of, check_progressive
 from bridge.recover.distributed import BlockContext, BlockSpec
+from bridge.recover.plan import CasePlan, environment_note, plan_cases  # noqa: F401  (CasePlan: the API)
 from bridge.recover.resultants import ResultantSource
 from bridge.recover.field_shear import METHOD as FIELD_METHOD, ShearCheck, check_note, field_plan
 
@@ -41,67 +41,6 @@ def sha256_of(path: str | Path) -> str:
         for chunk in iter(lambda: fh.read(2 ** 20), b""):
             h.update(chunk)
     return h.hexdigest()
-
-
-@dataclass(frozen=True)
-class CasePlan:
-    """How the run's cases are built from the input steps."""
-
-    cases: tuple[Case, ...]
-    weights: np.ndarray    # (ncase, nstep)
-    dM: np.ndarray
-    pres: np.ndarray
-    fos: np.ndarray
-    held_weights: np.ndarray | None = None    # (ncase, nstep): steps of held cases, None when nothing is held
-    held_pres: np.ndarray | None = None
-
-    @property
-    def total_weights(self) -> np.ndarray:
-        """(ncase, nstep) factors of all the resultants of each case, scaled and held (for total stresses)."""
-        return self.weights if self.held_weights is None else self.weights + self.held_weights
-
-    def held(self, steps: np.ndarray) -> np.ndarray | None:
-        """(ncase, ncell, 8) held resultants from input steps, None when nothing is held."""
-        return None if self.held_weights is None else combine_steps(self.held_weights, steps)
-
-    @property
-    def names(self) -> tuple[str, ...]:
-        return tuple(c.name for c in self.cases)
-
-    def delta_T(self, model: Model, start: int, stop: int) -> np.ndarray:
-        out = np.empty((len(self.cases), stop - start))
-        for j, c in enumerate(self.cases):
-            if c.temperature_field is None:
-                out[j] = c.delta_T
-            else:
-                out[j] = np.asarray(model.mesh.cell_data[c.temperature_field], dtype=float).reshape(
-                    model.n_cells, -1)[start:stop, 0]
-        return out
-
-
-def plan_cases(defn: Definition, model: Model, step_names: tuple[str, ...]) -> CasePlan:
-    try:
-        cases = defn.cases.resolve(step_names)
-    except InputError as err:
-        raise err.within(defn.source) from None
-    check_run_memory(model.n_cells, len(step_names), len(cases))
-    if len(cases) > MAX_CASES:
-        raise ResultantsError(f"{len(cases)} load cases, more than {MAX_CASES}; split the run into several "
-                              "(select cases in [cases])", defn.source)
-    W = np.zeros((len(cases), len(step_names)))
-    H = np.zeros_like(W)
-    for j, c in enumerate(cases):
-        for idx, f in c.factors:
-            W[j, idx] += f
-        for idx, f in c.held_factors:
-            H[j, idx] += f
-        if c.temperature_field is not None and c.temperature_field not in model.mesh.cell_data:
-            raise ResultantsError(f"cases.{c.name}.temperature_field: the mesh has no cell array "
-                                  f"'{c.temperature_field}'", defn.source)
-    held = any(c.held_factors for c in cases)
-    return CasePlan(cases, W, np.array([c.delta_M for c in cases]), np.array([c.pressure for c in cases]),
-                    np.array([defn.analysis.fos(c.kind) for c in cases]), H if held else None,
-                    np.array([c.held_pressure for c in cases]) if held else None)
 
 
 def defaults_of(model: Model, crit, stress_unit: str = "") -> dict[str, dict[str, str]]:
@@ -189,16 +128,19 @@ def prepare(definition: str, mesh_path: str, resultants: Sequence[str]):
     model = build_model(defn, mesh)
     source = ResultantSource.of_model(resultants, model)
     plan = plan_cases(defn, model, source.names)
-    return defn, model, source, plan, criteria_of(defn, model)
+    crit = criteria_of(defn, model)
+    check_progressive(defn, model)
+    return defn, model, source, plan, crit
 
 
-def run_notes(defn: Definition, model: Model, source: ResultantSource) -> list[str]:
+def run_notes(defn: Definition, model: Model, source: ResultantSource, plan: CasePlan | None = None) -> list[str]:
     """One-line notes of the run (bridge.recover.notes): what was assumed or looks unusual."""
     from bridge.recover.cell_order import ASSUMED_NOTE
     from bridge.recover.notes import membrane_only_note, ranges_note
 
     return [*ranges_note(defn.analysis.check_ranges), *(n for n in source.notes if n != ASSUMED_NOTE),
-            *membrane_only_note(model.sections, model.section, model.n_cells, source.read, model.section_names)]
+            *membrane_only_note(model.sections, model.section, model.n_cells, source.read, model.section_names),
+            *(environment_note(defn, plan) if plan is not None else ())]
 
 
 def cell_order(source: ResultantSource) -> str:
@@ -208,12 +150,24 @@ def cell_order(source: ResultantSource) -> str:
     return "assumed" if ASSUMED_NOTE in source.notes else "checked"
 
 
+def case_params(model: Model, plan: CasePlan):
+    """The allowables of each case's environment (None when every case takes the default ones)."""
+    from postproc.recover import CaseParams
+    from shells.recovery_tables import environment_params
+
+    if plan.environments == (None,):
+        return None
+    return CaseParams(plan.env_group, [environment_params(model.sections, env) for env in plan.environments])
+
+
 def block_context(defn: Definition, tables, source: ResultantSource, plan: CasePlan,
-                  store_plies: bool, field=None) -> BlockContext:
+                  store_plies: bool, field=None, model: Model | None = None,
+                  beyond: Beyond | None = None) -> BlockContext:
     """What every block task shares: small arrays and names, no file handles."""
     return BlockContext(tuple(defn.analysis.criteria), tables, plan.weights, plan.dM, plan.pres, plan.fos,
                         store_plies, source.reader, None if field is None else field.G, plan.held_weights,
-                        plan.held_pres)
+                        plan.held_pres, None if model is None else case_params(model, plan),
+                        beyond or beyond_of(defn, plan))
 
 
 def block_specs(model: Model, source: ResultantSource, plan: CasePlan, step: int,
@@ -233,7 +187,9 @@ def block_specs(model: Model, source: ResultantSource, plan: CasePlan, step: int
         if index in skip:
             continue
         yield BlockSpec(index, start, stop, model.section[start:stop], model.phi[start:stop],
-                        plan.delta_T(model, start, stop), source.block_steps(start, stop), g, valid)
+                        plan.delta_T(model, start, stop), source.block_steps(start, stop), g, valid,
+                        plan.delta_M(model, start, stop), plan.pressure(model, start, stop),
+                        plan.held_pressure(model, start, stop))
 
 
 def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], output: str,
@@ -274,6 +230,7 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
         The run summary (see :func:`postproc.summary.SummaryAccumulator.result`).
     """
     from postproc.summary import SummaryAccumulator
+    from postproc.summary_beyond import BeyondAccumulator
 
     from bridge.recover.distributed import check_workers, open_runner
     from bridge.results.partial import PartialStore, check_store_space, journal_options
@@ -284,8 +241,9 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
     store_plies = bool(store_plies if store_plies is not None else remembered.get("store_plies", False))
     check_block_cells(block_cells)
     defn, model, source, plan, crit = prepare(definition, mesh_path, resultants)
-    notes = [*model.mesh.notes, *mesh_notes(model.mesh), *run_notes(defn, model, source)]
+    notes = [*model.mesh.notes, *mesh_notes(model.mesh), *run_notes(defn, model, source, plan)]
     tables = model.tables()
+    beyond = beyond_of(defn, plan)
     field, check = None, None
     if defn.analysis.transverse_shear == FIELD_METHOD:
         field, check = field_plan(model), ShearCheck(model.zone, len(defn.zones))
@@ -294,32 +252,38 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
                                      field is not None)
     check_run_memory(n, len(source.names), len(plan.cases), step,
                      tables.max_plies * 3 * 8 * 8 * len(plan.cases) if store_plies else 0)
-    layout = StoreLayout(n, tables.max_plies, plan.names, store_plies, len(CRITERIA), chunk_cells=step)
+    layout = StoreLayout(n, tables.max_plies, plan.names, store_plies, len(CRITERIA), chunk_cells=step,
+                         extra=beyond.datasets(tables.max_plies))
     check_store_space(output, layout, model.mesh, resume)
     paths = {"definition": definition, "mesh": mesh_path, **{f"resultants{k}": p for k, p in enumerate(resultants)}}
     digests = input_digests(paths)
     fingerprint = {"inputs": digests, "options": {"block_cells": step, "store_plies": store_plies,
                                                   "n_cells": n, "layout_version": LAYOUT_VERSION}}
     acc = SummaryAccumulator(model.zone, len(defn.zones), len(plan.cases), defn.analysis.hot_spots)
+    more = BeyondAccumulator(model.zone, len(defn.zones), len(plan.cases), [r.name for r in beyond.restricted],
+                             defn.analysis.hot_spots)
     with contextlib.ExitStack() as stack:
         runner = stack.enter_context(open_runner(workers, scheduler, client))
         partial = stack.enter_context(PartialStore(output, fingerprint, layout, resume, note, step))
         store, done = partial.writer, set(partial.done)
         results = stack.enter_context(contextlib.closing(runner.map(
-            block_context(defn, tables, source, plan, store_plies, field),
+            block_context(defn, tables, source, plan, store_plies, field, model, beyond),
             block_specs(model, source, plan, step, done, field, check))))
         for index, start in enumerate(range(0, n, step)):
             stop = min(n, start + step)
             if index in done:
                 acc.add(start, stop, {}, store.read_cells(start, stop))
+                more.add(start, stop, store.read_extra(start, stop))
             else:
                 res = next(results)
-                partial.write_block(res.index, res.start, res.stop, res.envelope, res.cells, res.plies)
+                partial.write_block(res.index, res.start, res.stop, res.envelope, res.cells, res.plies, res.extra)
                 acc.add(res.start, res.stop, res.envelope, res.cells)
+                more.add(res.start, res.stop, res.extra or {})
             if progress:
                 progress(stop, n)
         summary = acc.result(plan.names, zone_names=[z.name for z in defn.zones],
                              laminate_of_zone=[z.laminate for z in defn.zones])
+        summary.update(more.result(plan.names, [z.name for z in defn.zones]))
         if check is not None:
             summary["transverse_shear"] = check.result([z.name for z in defn.zones])
             notes = notes + check_note(summary["transverse_shear"])
@@ -332,56 +296,25 @@ def run_recover(definition: str, mesh_path: str, resultants: Sequence[str], outp
                 for name, text in texts.items():
                     note(f"material '{mat}', {name}: {text}")
         _finish(store, summary, crit, tables, model, source, plan, defn, provenance(paths, digests), store_plies,
-                field)
+                field, beyond)
         partial.complete()
     return summary
 
 
 def _finish(store, summary, crit, tables, model, source, plan, defn, prov, store_plies,
-            field=None) -> None:
+            field=None, beyond: Beyond | None = None) -> None:
     """The datasets and the run metadata written once, after every block."""
+    from bridge.recover.hotspots import hot_cells, states_of_cells
     from bridge.results.meta import run_meta
     from bridge.results.store import material_tables, section_tables
 
-    hot = sorted({h["cell"] for h in summary["hot_spots"]} | {z["cell"] for z in summary["zones"].values()
-                                                                if z["cell"] >= 0})
-    store.write_static("hotspots", states_of_cells(np.array(hot, dtype=np.int64), crit, tables, model, source, plan,
-                                                       field))
+    hot = hot_cells(summary)
+    turn = store.h5["cells/misalignment"][()][hot] if "cells/misalignment" in store.h5 else None
+    store.write_static("hotspots", states_of_cells(hot, crit, tables, model, source, plan, field, beyond,
+                                                   case_params(model, plan), turn))
     store.write_static("mesh", mesh_group(model.mesh.points, model.mesh.blocks))
     store.write_static("model", {"zone": model.zone.astype(np.int32), "section": model.section.astype(np.int32),
                                  "material_angle": model.phi, "normal": model.normal, "frame_x": model.frame_x})
     store.write_static("sections", section_tables(tables, model.sections))
     store.write_static("materials", material_tables(defn.materials))
     store.write_meta(run_meta(defn, model, plan, source.names, summary, store_plies, prov))
-
-
-def states_of_cells(ids: np.ndarray, crit, tables, model: Model, source: ResultantSource, plan: CasePlan,
-                    field=None) -> dict:
-    """Through-thickness states of a few cells, every case (docs/results.md, /hotspots)."""
-    from postproc.gradients import field_shear
-    from postproc.states import cell_states
-
-    if ids.size == 0:
-        return {"cell": ids}
-    steps = source.read_cells(ids)
-    R = combine_steps(plan.weights, steps)
-    held = plan.held(steps)
-    dT = np.stack([plan.delta_T(model, i, i + 1)[:, 0] for i in ids], axis=1)
-    shear = held_shear = None
-    if field is not None:
-        g, _, valid = field.gradients(source.read_cells, ids)
-
-        def shear_of(weights, resultants):
-            return field_shear(field.G, tables.F, tables.first, tables.nply, tables.max_plies, model.section[ids],
-                               model.phi[ids], combine_steps(weights, g), np.nan_to_num(resultants), valid)
-
-        shear = shear_of(plan.weights, R)
-        if held is not None:
-            held_shear = shear_of(plan.held_weights, held)
-    states = cell_states(crit, tables, model.section[ids], model.phi[ids], np.nan_to_num(R), dT, plan.dM,
-                         plan.pres, shear, None if held is None else np.nan_to_num(held), plan.held_pres, held_shear)
-    extra = {} if held is None else {"held_resultants": held}
-    return {"cell": ids, "resultants": R, **extra, "delta_T": dT, **states,
-            "criteria": np.array([c.name for c in crit], dtype=object).astype("S")}
-
-

@@ -21,7 +21,7 @@ import numpy as np
 
 from shells.errors import StoreError
 
-from bridge.results.store import CELLS, ENVELOPE, PLIES
+from bridge.results.store import CELLS, ENVELOPE, PLIES, extra_paths
 
 #: The completeness record of a finished store.
 CHECK_GROUP = "check"
@@ -29,11 +29,13 @@ CELL_TABLES = (*CELLS, "case_margin", "criterion_margin")
 
 
 def block_arrays(h5, start: int, stop: int) -> dict[str, np.ndarray]:
-    """The arrays of cells start … stop − 1 as stored (envelope rows, cell summary, ply states if any)."""
+    """The arrays of cells start … stop − 1 as stored (envelope rows, cell summary, ply states if any, then the
+    extra block datasets named by the store's ``block_extra`` attribute)."""
     out = {f"envelope/{k}": h5["envelope"][k][start:stop] for k in ENVELOPE}
     out.update({f"cells/{k}": h5["cells"][k][start:stop] for k in CELL_TABLES})
     if "plies" in h5:
         out.update({f"plies/{k}": h5["plies"][k][:, start:stop] for k in PLIES})
+    out.update({path: h5[path][start:stop] for path in extra_paths(h5)})
     return out
 
 

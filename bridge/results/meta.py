@@ -11,13 +11,14 @@ from typing import Mapping, Sequence
 
 import numpy as np
 
-from postproc.run_meta import (AnalysisInfo, CaseInfo, CriterionInfo, DefaultUsed, InputFile, MaterialInfo, Named,
-                               PlyInfo, Property, Provenance, RunMeta, RunSummary, SectionInfo, ZoneInfo)
+from postproc.run_meta import (AnalysisInfo, CaseInfo, CriterionInfo, DefaultUsed, EnvelopeInfo, InputFile,
+                               MaterialInfo, Named, PlyInfo, ProgressiveInfo, Property, Provenance, RunMeta,
+                               RunSummary, SectionInfo, ZoneInfo)
 from shells.criteria import CRITERIA
 from shells.defaults import CAUTION
 
 #: Material fields that are not properties (shown elsewhere or not at all).
-_NOT_PROPERTIES = {"name", "knockdown", "knockdown_factors", "source", "description"}
+_NOT_PROPERTIES = {"name", "knockdown", "knockdown_factors", "environment_knockdowns", "source", "description"}
 
 
 def _definition_key(kind: str, field_name: str) -> str:
@@ -47,7 +48,8 @@ def material_info(m) -> MaterialInfo:
         kind = "dimensionless" if kind in ("any", "str", "int", "bool") else kind
         props.append(Property(key, value if isinstance(value, (bool, str)) else float(value), kind))
     return MaterialInfo(m.name, m.kind, tuple(props), float(m.knockdown),
-                        tuple(Named(k, float(v)) for k, v in m.knockdown_factors), m.source, m.description)
+                        tuple(Named(k, float(v)) for k, v in m.knockdown_factors), m.source, m.description,
+                        tuple(Named(k, float(v)) for k, v in m.environment_knockdowns))
 
 
 def section_info(i: int, name: str, sec) -> SectionInfo:
@@ -74,8 +76,22 @@ def case_infos(defn, plan, step_names: Sequence[str]) -> tuple[CaseInfo, ...]:
         out.append(CaseInfo(c.name, c.kind, float(c.delta_T), float(c.delta_M), float(c.pressure), float(fos),
                             c.temperature_field, tuple(Named(step_names[k], float(f)) for k, f in c.factors),
                             combination, tuple(c.held_parts),
-                            tuple(Named(step_names[k], float(f)) for k, f in c.held_factors)))
+                            tuple(Named(step_names[k], float(f)) for k, f in c.held_factors), c.environment,
+                            tuple(Named(m.name, float(m.knockdown_for(c.environment)))
+                                  for m in defn.materials.values()),
+                            c.moisture_field, c.pressure_field))
     return tuple(out)
+
+
+def analysis_extras(a) -> dict:
+    """The progressive, misalignment and restricted-envelope settings of an ``[analysis]``, as AnalysisInfo fields."""
+    prog = a.progressive
+    return {"progressive": None if prog is None else ProgressiveInfo(float(prog.matrix_retained),
+                                                                      float(prog.fibre_retained),
+                                                                      tuple(prog.criteria)),
+            "misalignment": float(a.misalignment),
+            "envelopes": tuple(EnvelopeInfo(e.name, e.criteria, e.modes, e.kinds, e.cases, e.description)
+                               for e in a.envelopes)}
 
 
 def run_meta(defn, model, plan, step_names: Sequence[str], summary: Mapping, store_plies: bool,
@@ -112,7 +128,7 @@ def run_meta(defn, model, plan, step_names: Sequence[str], summary: Mapping, sto
                               a.transverse_shear, float(a.shear_factor), float(a.wrinkling_coefficient),
                               int(a.hot_spots), bool(a.check_ranges),
                               tuple(DefaultUsed(m, c, text) for m, notes in summary.get("defaults", {}).items()
-                                    for c, text in notes.items())),
+                                    for c, text in notes.items()), **analysis_extras(a)),
         materials=tuple(material_info(m) for m in defn.materials.values()),
         sections=tuple(section_info(i, n, s) for i, (n, s) in enumerate(zip(model.section_names, model.sections))),
         zones=tuple(ZoneInfo(z.name, z.laminate, section_of_zone[k], int(counts[k])) for k, z in enumerate(defn.zones)),

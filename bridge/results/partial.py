@@ -39,7 +39,7 @@ from bridge.atomic import close_h5, write_text
 from bridge.guards import is_fault
 from bridge.results.complete import (CELL_TABLES, CHECK_GROUP, block_arrays, check_complete, covered, digest,
                                      part_digests, total_digest, write_parts, write_static_digests)
-from bridge.results.store import CELLS, ENVELOPE, PLIES, StoreLayout, StoreWriter
+from bridge.results.store import CELLS, ENVELOPE, PLIES, StoreLayout, StoreWriter, extra_paths
 
 JOURNAL_FORMAT = "plybridge-partial"
 JOURNAL_VERSION = 2
@@ -73,17 +73,21 @@ def block_datasets(h5) -> dict:
     names = [f"envelope/{k}" for k in ENVELOPE] + [f"cells/{k}" for k in CELL_TABLES]
     if "plies" in h5:
         names += [f"plies/{k}" for k in PLIES]
+    names += extra_paths(h5)
     return {name: h5[name] for name in names}
 
 
-def _as_stored(types: dict, envelope, cells, plies) -> tuple[dict, dict, dict | None]:
-    """The block's arrays in the store's number types, so the checksum equals that of the bytes read back."""
+def _as_stored(types: dict, envelope, cells, plies, extra=None,
+               extra_names=()) -> tuple[dict, dict, dict | None, dict]:
+    """The block's arrays in the store's number types, so the checksum equals that of the bytes read back
+    (``extra_names``: the extra block datasets' paths, in checksum order)."""
     env = {k: np.asarray(envelope[k], dtype=types[f"envelope/{k}"].dtype) for k in ENVELOPE}
     cel = {k: np.asarray(cells[k], dtype=types[f"cells/{k}"].dtype) for k in CELL_TABLES}
     pl = None
     if plies is not None and f"plies/{next(iter(PLIES))}" in types:
         pl = {k: np.asarray(plies[k], dtype=types[f"plies/{k}"].dtype) for k in PLIES}
-    return env, cel, pl
+    ext = {k: np.asarray(extra[k], dtype=types[k].dtype) for k in extra_names}
+    return env, cel, pl, ext
 
 
 # ----------------------------------------------------------------------------- the partial store
@@ -155,15 +159,15 @@ class PartialStore:
                         path.unlink()
         self._release()
 
-    def write_block(self, index: int, start: int, stop: int, envelope, cells, plies=None) -> None:
+    def write_block(self, index: int, start: int, stop: int, envelope, cells, plies=None, extra=None) -> None:
         """Write block ``index`` (cells start … stop − 1), flush, then record it and its checksum in the journal."""
         if self._types is None:
             self._types = block_datasets(self._h5)
-        env, cel, pl = _as_stored(self._types, envelope, cells, plies)
+        env, cel, pl, ext = _as_stored(self._types, envelope, cells, plies, extra, extra_paths(self._h5))
         arrays = {**{f"envelope/{k}": v for k, v in env.items()}, **{f"cells/{k}": v for k, v in cel.items()},
-                  **({f"plies/{k}": v for k, v in pl.items()} if pl is not None else {})}
+                  **({f"plies/{k}": v for k, v in pl.items()} if pl is not None else {}), **ext}
         self._check_space(index, sum(a.nbytes for a in arrays.values()))
-        self.writer.write_block(start, stop, env, cel, pl)
+        self.writer.write_block(start, stop, env, cel, pl, ext)
         self._h5.flush()
         self.done[int(index)] = digest(arrays)
         self.parts[int(index)] = part_digests(arrays)
@@ -344,6 +348,7 @@ def store_bytes(layout: StoreLayout, mesh) -> int:
     env = n * mp * sum(np.dtype(t).itemsize for t in ENVELOPE.values())
     cells = n * (sum(np.dtype(t).itemsize for t in CELLS.values()) + 8 * (nc + layout.n_criteria))
     plies = nc * n * mp * 3 * 8 * sum(PLIES.values()) if layout.store_plies else 0
+    plies += sum(n * int(np.prod(x.tail, dtype=np.int64)) * np.dtype(x.dtype).itemsize for x in layout.extra)
     geometry = mesh.points.size * 8 + sum(c.size for _, c in mesh.blocks) * 8 + n * 64
     return int(env + cells + plies + geometry + 2 ** 20)
 

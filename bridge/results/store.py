@@ -36,6 +36,18 @@ def _strings(values: Sequence[str]) -> np.ndarray:
 
 
 @dataclass(frozen=True)
+class BlockDataset:
+    """A dataset written block by block beside the fixed ones (progressive factors, restricted envelopes, the
+    governing misalignment): its path, its shape after the cell axis, its number type and, for integer codes,
+    what its ``names`` attribute lists (``case``, ``point``, ``criterion``, ``mode``)."""
+
+    path: str
+    tail: tuple[int, ...] = ()
+    dtype: str = "f8"
+    names: str = ""
+
+
+@dataclass(frozen=True)
 class StoreLayout:
     """Sizes that fix the dataset shapes of a store."""
 
@@ -45,6 +57,7 @@ class StoreLayout:
     store_plies: bool = False
     n_criteria: int = 1
     chunk_cells: int = CHUNK_CELLS
+    extra: tuple[BlockDataset, ...] = ()
 
     @property
     def n_cases(self) -> int:
@@ -63,19 +76,28 @@ CELLS = {"min_margin": np.float64, "critical_ply": np.int32, "strength_ratio": n
 PLIES = {"stress": 3, "strain": 3, "transverse_shear": 2}
 
 
-def _name_codes(env, cells, case_names) -> None:
-    """Attributes ``names`` on the integer-code datasets, so the store explains its own codes."""
+#: Root attribute listing the paths of the extra block datasets, in the order of the completeness checksums.
+EXTRA_ATTR = "block_extra"
+
+
+def _code_names(h5, case_names) -> dict:
+    """What the ``names`` attribute of each kind of integer-code dataset holds."""
     from shells.criteria import CRITERIA
 
     cases = _strings(case_names)
     if sum(len(str(c).encode()) + 16 for c in case_names) > 32 * 1024:  # HDF5 attributes stop at 64 KiB
-        cases = env.file["cases"].ref  # an object reference to the /cases dataset instead of a copy
-    names = {
+        cases = h5["cases"].ref  # an object reference to the /cases dataset instead of a copy
+    return {
         "case": cases,
         "point": _strings(("bottom", "middle", "top")),
         "criterion": _strings([c.name for c in CRITERIA]),
         "mode": json.dumps({c.name: list(c.modes) for c in CRITERIA}),
     }
+
+
+def _name_codes(env, cells, case_names) -> None:
+    """Attributes ``names`` on the integer-code datasets, so the store explains its own codes."""
+    names = _code_names(env.file, case_names)
     for group in (env, cells):
         for key, value in names.items():
             group[key].attrs["names"] = value
@@ -111,6 +133,14 @@ class StoreWriter:
         cells.create_dataset("criterion_margin", shape=(n, layout.n_criteria), dtype=np.float64,
                              chunks=(cc, layout.n_criteria), fillvalue=np.nan, **opts)
         _name_codes(env, cells, layout.case_names)
+        codes = _code_names(h5, layout.case_names)
+        for x in layout.extra:
+            dtype = np.dtype(x.dtype)
+            ds = h5.create_dataset(x.path, shape=(n,) + tuple(x.tail), dtype=dtype, chunks=(cc,) + tuple(x.tail),
+                                   fillvalue=np.nan if dtype.kind == "f" else -1, **opts)
+            if x.names:
+                ds.attrs["names"] = codes[x.names]
+        h5.attrs[EXTRA_ATTR] = json.dumps([x.path for x in layout.extra])
         if layout.store_plies:
             plies = h5.create_group("plies")
             pc = max(1, min(n, max(1, 2 ** 20 // (mp * 3 * 3 * 8))))
@@ -119,8 +149,12 @@ class StoreWriter:
                                      chunks=(1, pc, mp, 3, k), fillvalue=np.nan, **opts)
 
     def write_block(self, start: int, stop: int, envelope: Mapping[str, np.ndarray],
-                    cells: Mapping[str, np.ndarray], plies: Mapping[str, np.ndarray] | None = None) -> None:
-        """Write cells start … stop − 1 (envelope rows, cell summary, optionally ply states)."""
+                    cells: Mapping[str, np.ndarray], plies: Mapping[str, np.ndarray] | None = None,
+                    extra: Mapping[str, np.ndarray] | None = None) -> None:
+        """Write cells start … stop − 1 (envelope rows, cell summary, optionally ply states, the extra datasets
+        by path)."""
+        for x in self.layout.extra:
+            self.h5[x.path][start:stop] = extra[x.path]
         for name in ENVELOPE:
             self.h5["envelope"][name][start:stop] = envelope[name]
         for name in (*CELLS, "case_margin", "criterion_margin"):
@@ -133,6 +167,10 @@ class StoreWriter:
         """The cell summary of cells start … stop − 1 as written (to rebuild a resumed run's summary)."""
         return {name: self.h5["cells"][name][start:stop] for name in (*CELLS, "case_margin", "criterion_margin")}
 
+    def read_extra(self, start: int, stop: int) -> dict[str, np.ndarray]:
+        """The extra datasets of cells start … stop − 1 as written, by path."""
+        return {x.path: self.h5[x.path][start:stop] for x in self.layout.extra}
+
     def matches(self) -> bool:
         """Whether the open file has every dataset of the layout with the layout's shape."""
         n, mp = self.layout.n_cells, self.layout.max_plies
@@ -141,7 +179,9 @@ class StoreWriter:
                 "cells/criterion_margin": (n, self.layout.n_criteria)}
         if self.layout.store_plies:
             want.update({f"plies/{k}": (self.layout.n_cases, n, mp, 3, c) for k, c in PLIES.items()})
-        return all(key in self.h5 and self.h5[key].shape == shape for key, shape in want.items())
+        want.update({x.path: (n,) + tuple(x.tail) for x in self.layout.extra})
+        return (all(key in self.h5 and self.h5[key].shape == shape for key, shape in want.items())
+                and extra_paths(self.h5) == [x.path for x in self.layout.extra])
 
     def write_static(self, name: str, data: np.ndarray | Mapping[str, np.ndarray]) -> None:
         """A dataset (or a group of datasets) written once: per-cell model data, mesh geometry."""
@@ -162,6 +202,20 @@ class StoreWriter:
         group = self.h5.require_group("meta")
         group.create_dataset("run", data=meta_to_json(meta), dtype=_h5().string_dtype())
         group.create_dataset("criteria", data=_strings([c.name for c in meta.criteria]))
+
+
+def extra_paths(h5) -> list[str]:
+    """Paths of the extra block datasets of an open store, in checksum order (empty for a store without)."""
+    raw = h5.attrs.get(EXTRA_ATTR)
+    if raw is None:
+        return []
+    try:
+        paths = json.loads(raw if isinstance(raw, str) else raw.decode())
+    except (ValueError, AttributeError):
+        raise StoreError(f"the attribute {EXTRA_ATTR} is damaged; run plybridge recover again") from None
+    if not isinstance(paths, list) or not all(isinstance(p, str) and p in h5 for p in paths):
+        raise StoreError(f"the attribute {EXTRA_ATTR} names datasets the store lacks; run plybridge recover again")
+    return paths
 
 
 def section_tables(tables, sections) -> dict[str, np.ndarray]:

@@ -1,0 +1,371 @@
+"""Progressive failure to the last ply by ply discount (numba): first- and last-ply load factors per cell and case.
+
+The case's mechanical resultants are scaled by a load factor λ; the fixed part (thermal and moisture
+resultants, and the resultants of held cases) is held. With the section's current ply stiffnesses the mid-plane
+strains of both parts are solved and, at the bottom, middle and top of every ply that has not failed in its
+fibres, the in-plane material-axis stresses (σ1, σ2, τ12) are formed. An intact ply is checked by the chosen
+criteria (its strength ratio and mode); a ply with a matrix failure only by its fibres (σ1 against Xt and Xc,
+the fibre check of the ply discount). The smallest ratio R gives the next failure at λ = max(λ, R) (a ratio below
+the current λ means the ply is already overloaded after the last discount and fails at the same load). That
+ply — and every ply whose ratio ties with it within :data:`TIE` — is discounted for its mode:
+
+- matrix failure (a mode whose name does not start with "fibre", on a ply): E2 and G12 multiplied by
+  ``matrix_retained``;
+- fibre failure, or any failure of an isotropic layer: E1, E2 and G12 multiplied by ``fibre_retained``;
+
+and the section is solved again. The analysis ends when every ply that carries in-plane load (every non-core
+ply) has failed in its fibres, when the stiffness left cannot carry the load (the load has a component outside
+the range of the degraded [A B; B D], found by a solve with complete pivoting on the diagonally scaled
+matrix), or when no ply fails any more. The first failure's λ is the first-ply factor, the λ at the end the
+last-ply factor (inf when the laminate never fails completely under the load direction).
+
+Transverse shear, σ3 and sandwich face checks are not part of the discount: the stresses here are the in-plane
+ones (τ13 = τ23 = σ3 = 0). Conventions: docs/conventions.md; the ply discount: docs/criteria.md.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from numba import njit, prange
+
+from . import params as P
+from .criteria.dispatch import ratio_by_code
+from .criteria.roots import linear_ratio
+from .criteria.state import FC, FT
+from .numba_cache import configure
+from .recovery import drop_roundoff
+
+configure()
+
+#: Fraction of E2 and G12 kept after a matrix failure, and of every modulus after a fibre failure: 0, the
+#: ply discount in which the failed moduli are set to zero (Kaw, Mechanics of Composite Materials, 2nd ed.,
+#: 2006, ch. 4, laminate failure: partial ply discount for transverse or shear failure, complete for fibre
+#: failure; from memory).
+DEFAULT_MATRIX_RETAINED = 0.0
+DEFAULT_FIBRE_RETAINED = 0.0
+#: Criteria that check transverse shear, σ3 or sandwich faces, not the in-plane ply stresses: not used here.
+OUT_OF_PLANE = ("core-shear", "core-crushing", "interlaminar", "wrinkling", "dimpling")
+#: Ratios within this relative distance of the smallest fail in the same step (plies of a symmetric stack).
+TIE = 1e-9
+#: Pivot below this (on the unit-diagonal scaled stiffness) marks a direction the section no longer resists.
+PIVOT = 1e-10
+#: A load component left in a resisted-nowhere direction beyond this fraction of the load cannot be carried.
+INCONSISTENT = 1e-8
+#: Values of one failure event in the sequence output: ply slot, criterion code (−1: fibre check of a ply with
+#: a matrix failure), mode index, discount (1 matrix, 2 fibre), load factor.
+EVENT = 5
+#: Codes of the fibre check of a ply with a matrix failure in the sequence output.
+FIBRE_CHECK = -1
+
+
+def in_plane(name: str) -> bool:
+    """Whether criterion ``name`` checks in-plane ply stresses (usable to find failures in the discount)."""
+    return name not in OUT_OF_PLANE
+
+
+@njit(cache=True)
+def solve_scaled(K, b, x):
+    """Solve the symmetric positive semi-definite K (6, 6) for the columns of b (6, m) into x (6, m).
+
+    Diagonal scaling to a unit diagonal (zero rows and columns left out), then Gaussian elimination with
+    complete pivoting; pivots below :data:`PIVOT` end the elimination and their unknowns are 0. Returns False
+    when a right-hand side has a component beyond :data:`INCONSISTENT` in the directions left out (the load
+    cannot be carried), else True.
+    """
+    n = 6
+    m = b.shape[1]
+    A = np.empty((n, n))
+    y = np.empty((n, m))
+    s = np.zeros(n)
+    big = np.zeros(2)
+    for i in range(n):
+        big[i // 3] = max(big[i // 3], K[i, i])
+    for i in range(n):
+        if K[i, i] > 1e-14 * big[i // 3] and K[i, i] > 0.0:
+            s[i] = 1.0 / np.sqrt(K[i, i])
+    norm = np.zeros(m)
+    for i in range(n):
+        for j in range(n):
+            A[i, j] = s[i] * K[i, j] * s[j]
+        # A row the section does not resist at all is scaled as its block's stiffest row would be.
+        si = s[i] if s[i] > 0.0 else (1.0 / np.sqrt(big[i // 3]) if big[i // 3] > 0.0 else 1.0)
+        for c in range(m):
+            y[i, c] = si * b[i, c]
+            norm[c] = max(norm[c], abs(y[i, c]))
+    col = np.arange(n)
+    rank = n
+    for k in range(n):
+        p, q, best = k, k, 0.0
+        for i in range(k, n):
+            for j in range(k, n):
+                if abs(A[i, j]) > best:
+                    best, p, q = abs(A[i, j]), i, j
+        if best <= PIVOT:
+            rank = k
+            break
+        for j in range(n):
+            A[k, j], A[p, j] = A[p, j], A[k, j]
+        for c in range(m):
+            y[k, c], y[p, c] = y[p, c], y[k, c]
+        for i in range(n):
+            A[i, k], A[i, q] = A[i, q], A[i, k]
+        col[k], col[q] = col[q], col[k]
+        for i in range(k + 1, n):
+            f = A[i, k] / A[k, k]
+            if f != 0.0:
+                for j in range(k, n):
+                    A[i, j] -= f * A[k, j]
+                for c in range(m):
+                    y[i, c] -= f * y[k, c]
+    ok = True
+    for i in range(rank, n):
+        for c in range(m):
+            if abs(y[i, c]) > INCONSISTENT * norm[c]:
+                ok = False
+    for c in range(m):
+        for i in range(n):
+            x[i, c] = 0.0
+        for k in range(rank - 1, -1, -1):
+            acc = y[k, c]
+            for j in range(k + 1, rank):
+                acc -= A[k, j] * x[col[j], c]
+            x[col[k], c] = acc / A[k, k]
+        for i in range(n):
+            x[i, c] *= s[i]
+    return ok
+
+
+@njit(cache=True, inline="always")
+def ply_stiffness(row, Q, params, d1, d2, out):
+    """Q11, Q12, Q22, Q66 of a ply row with E1 scaled by d1 and E2, G12 by d2 (the table's own when intact)."""
+    if d1 == 1.0 and d2 == 1.0:
+        for a in range(4):
+            out[a] = Q[row, a]
+        return
+    e1 = d1 * params[row, P.E1]
+    e2 = d2 * params[row, P.E2]
+    nu = params[row, P.NU12]
+    if not e1 > 0.0:
+        out[0] = out[1] = out[2] = out[3] = 0.0
+        return
+    den = 1.0 - nu * nu * e2 / e1
+    out[0] = e1 / den
+    out[1] = nu * e2 / den
+    out[2] = e2 / den
+    out[3] = d2 * params[row, P.G12]
+
+
+@njit(cache=True)
+def _section(p0, n, z, cs, alpha, beta, Q, params, share, d1, d2, t, h, K, fixed):
+    """[A B; B D] (6, 6) and the thermal and moisture resultants (6,) of the degraded section (in place)."""
+    q = np.empty(4)
+    for a in range(6):
+        fixed[a] = 0.0
+        for b in range(6):
+            K[a, b] = 0.0
+    for k in range(n):
+        row = p0 + k
+        ply_stiffness(row, Q, params, d1[k], d2[k], q)
+        c, s = cs[row, 0], cs[row, 1]
+        cc, ss, cx = c * c, s * s, c * s
+        q11, q12, q22, q66 = q[0], q[1], q[2], q[3]
+        # Q̄ = T Q Tᵀ (docs/conventions.md), order x, y, xy.
+        b11 = q11 * cc * cc + 2.0 * (q12 + 2.0 * q66) * cc * ss + q22 * ss * ss
+        b22 = q11 * ss * ss + 2.0 * (q12 + 2.0 * q66) * cc * ss + q22 * cc * cc
+        b12 = (q11 + q22 - 4.0 * q66) * cc * ss + q12 * (cc * cc + ss * ss)
+        b66 = (q11 + q22 - 2.0 * q12 - 2.0 * q66) * cc * ss + q66 * (cc - ss) * (cc - ss)
+        b16 = (q11 - q12 - 2.0 * q66) * cc * cx + (q12 - q22 + 2.0 * q66) * ss * cx
+        b26 = (q11 - q12 - 2.0 * q66) * ss * cx + (q12 - q22 + 2.0 * q66) * cc * cx
+        Qb = ((b11, b12, b16), (b12, b22, b26), (b16, b26, b66))
+        zb, zt = z[row, 0], z[row, 2]
+        w1 = share[row] * (zt - zb)
+        w2 = share[row] * (zt * zt - zb * zb) / 2.0
+        w3 = share[row] * (zt * zt * zt - zb * zb * zb) / 3.0
+        # Free strain in laminate axes, ε_xy = T⁻ᵀ ε_12: (α1 c² + α2 s², α1 s² + α2 c², 2 (α1 − α2) c s).
+        f1 = alpha[row, 0] * t + beta[row, 0] * h
+        f2 = alpha[row, 1] * t + beta[row, 1] * h
+        free = (f1 * cc + f2 * ss, f1 * ss + f2 * cc, 2.0 * (f1 - f2) * cx)
+        for a in range(3):
+            nt = 0.0
+            for b in range(3):
+                K[a, b] += w1 * Qb[a][b]
+                K[a, b + 3] += w2 * Qb[a][b]
+                K[a + 3, b + 3] += w3 * Qb[a][b]
+                nt += Qb[a][b] * free[b]
+            fixed[a] += w1 * nt
+            fixed[a + 3] += w2 * nt
+    for a in range(3):
+        for b in range(3):
+            K[b + 3, a] = K[a, b + 3]
+
+
+@njit(cache=True, inline="always")
+def _point(e, zz, ct, st, q, f1, f2, out):
+    """In-plane material stresses (σ1, σ2, τ12) at z of the state e (6,) into out[0:3]; f1, f2 free strains."""
+    pc, ps, px = ct * ct, st * st, ct * st
+    ex, ey, gx = e[0] + zz * e[3], e[1] + zz * e[4], e[2] + zz * e[5]
+    e1 = pc * ex + ps * ey + px * gx - f1
+    e2 = ps * ex + pc * ey - px * gx - f2
+    g12 = -2.0 * px * ex + 2.0 * px * ey + (pc - ps) * gx
+    out[0] = q[0] * e1 + q[1] * e2
+    out[1] = q[1] * e1 + q[2] * e2
+    out[2] = q[3] * g12
+
+
+@njit(cache=True, parallel=True)
+def progressive_block(sec, share, codes, masks, fibre_mode, retained, blk, first, last, seq):
+    """First- and last-ply factors of a block of cells × cases (written in place).
+
+    Parameters
+    ----------
+    sec : SectionArrays
+        Section and ply tables (allowables of the cases' environment).
+    share : float64 (nrows,)
+        Share of each ply row in the stiffness of its layer (1; ½ for each half of a wound ±α layer).
+    codes : int64 (ncrit,), masks : bool (ncrit, 3)
+        Criteria that find the failures and the points they apply at.
+    fibre_mode : bool (ncrit, nmode)
+        Whether mode m of criterion c is a fibre failure.
+    retained : float64 (2,)
+        Fraction of the moduli kept after a matrix failure (E2, G12) and after a fibre failure (all).
+    blk : BlockInputs
+        Resultants, temperature and moisture changes, skipped cell-cases, sections, material angles and the
+        held part of the cases (pressure and transverse shear are not used).
+    first, last : float64 (ncell, ncase_total)
+        Load factors of the first and of the last ply failure (global case index ``blk.case0 + j``).
+    seq : float64 (ncase, ncell, 2·maxply, EVENT), or zero-size
+        Failure sequence when given: per event ply slot, criterion code, mode, discount and load factor (NaN
+        rows after the last event).
+    """
+    R, dT, dM, skip = blk.resultants, blk.delta_T, blk.delta_M, blk.skip
+    cell_sec, cell_cos, cell_sin, case0, held_R = blk.section, blk.cos_phi, blk.sin_phi, blk.case0, blk.held_resultants
+    first_row, nply, z, cs, Q, params = sec.first, sec.nply, sec.z, sec.cs, sec.Q, sec.params
+    alpha, beta = sec.alpha, sec.beta
+    ncase, ncell = R.shape[0], R.shape[1]
+    held = held_R.size > 0
+    record = seq.size > 0
+    maxply = 0
+    for s in range(nply.shape[0]):
+        maxply = max(maxply, nply[s])
+    for i in prange(ncell):
+        K = np.empty((6, 6))
+        rhs = np.empty((6, 2))
+        sol = np.empty((6, 2))
+        gf = np.empty(6)
+        em = np.empty(6)
+        ef = np.empty(6)
+        sm = np.zeros(6)
+        sf = np.zeros(6)
+        q = np.empty(4)
+        status = np.empty(maxply, np.int64)
+        d1 = np.empty(maxply)
+        d2 = np.empty(maxply)
+        rk = np.empty(maxply)
+        ck = np.empty(maxply, np.int64)
+        mk = np.empty(maxply, np.int64)
+        s = cell_sec[i]
+        c, sn = cell_cos[i], cell_sin[i]
+        cc, ss, cx = c * c, sn * sn, c * sn
+        p0, n = first_row[s], nply[s]
+        zmax = max(abs(z[p0, 0]), abs(z[p0 + n - 1, 2]))
+        for j in range(ncase):
+            cj = case0 + j
+            if skip[j, i]:
+                first[i, cj] = np.nan
+                last[i, cj] = np.nan
+                continue
+            r = R[j, i]
+            for o in (0, 3):
+                rhs[o, 0] = cc * r[o] + ss * r[o + 1] + 2.0 * cx * r[o + 2]
+                rhs[o + 1, 0] = ss * r[o] + cc * r[o + 1] - 2.0 * cx * r[o + 2]
+                rhs[o + 2, 0] = -cx * r[o] + cx * r[o + 1] + (cc - ss) * r[o + 2]
+            t, h = dT[j, i], dM[j, i]
+            carrying = 0
+            for k in range(n):
+                status[k] = 0
+                d1[k] = 1.0
+                d2[k] = 1.0
+                if params[p0 + k, P.KIND] != P.KIND_CORE:
+                    carrying += 1
+            lam = 0.0
+            f_first = np.inf
+            f_last = np.inf
+            nev = 0
+            fibre_failed = 0
+            for _ in range(2 * n + 1):
+                _section(p0, n, z, cs, alpha, beta, Q, params, share, d1, d2, t, h, K, gf)
+                for a in range(6):
+                    rhs[a, 1] = gf[a]
+                if held:
+                    rh = held_R[j, i]
+                    for o in (0, 3):
+                        rhs[o, 1] += cc * rh[o] + ss * rh[o + 1] + 2.0 * cx * rh[o + 2]
+                        rhs[o + 1, 1] += ss * rh[o] + cc * rh[o + 1] - 2.0 * cx * rh[o + 2]
+                        rhs[o + 2, 1] += -cx * rh[o] + cx * rh[o + 1] + (cc - ss) * rh[o + 2]
+                if not solve_scaled(K, rhs, sol):
+                    f_last = lam       # the stiffness left no longer carries the load
+                    break
+                for a in range(6):
+                    em[a] = sol[a, 0]
+                    ef[a] = sol[a, 1]
+                drop_roundoff(em, zmax)
+                drop_roundoff(ef, zmax)
+                rmin = np.inf
+                for k in range(n):
+                    rk[k] = np.inf
+                    if status[k] == 2:
+                        continue
+                    row = p0 + k
+                    ct, st = cs[row, 0], cs[row, 1]
+                    ply_stiffness(row, Q, params, d1[k], d2[k], q)
+                    f1 = alpha[row, 0] * t + beta[row, 0] * h
+                    f2 = alpha[row, 1] * t + beta[row, 1] * h
+                    pr = params[row]
+                    for pt in range(3):
+                        _point(em, z[row, pt], ct, st, q, 0.0, 0.0, sm)
+                        _point(ef, z[row, pt], ct, st, q, f1, f2, sf)
+                        if status[k] == 0:
+                            for m in range(codes.shape[0]):
+                                if not masks[m, pt]:
+                                    continue
+                                sr, mode = ratio_by_code(codes[m], sm, sf, pr)
+                                if sr < rk[k]:
+                                    rk[k], ck[k], mk[k] = sr, m, mode
+                        else:
+                            sr = linear_ratio(sf[0], sm[0], pr[P.XT], pr[P.XC])
+                            if sr < rk[k]:
+                                rk[k], ck[k] = sr, -1
+                                mk[k] = FT if sf[0] + sr * sm[0] >= 0.0 else FC
+                    if rk[k] < rmin:
+                        rmin = rk[k]
+                if rmin == np.inf:
+                    break              # nothing fails any more under this load direction
+                lam = max(lam, rmin)
+                if f_first == np.inf:
+                    f_first = lam
+                for k in range(n):
+                    if not rk[k] <= rmin * (1.0 + TIE) + 0.0:
+                        continue
+                    complete = status[k] == 1 or params[p0 + k, P.KIND] != P.KIND_PLY
+                    if status[k] == 0 and not complete and ck[k] >= 0 and mk[k] >= 0:
+                        complete = fibre_mode[ck[k], mk[k]]
+                    if complete:
+                        status[k] = 2
+                        d1[k] *= retained[1]
+                        d2[k] *= retained[1]
+                        fibre_failed += 1
+                    else:
+                        status[k] = 1
+                        d2[k] *= retained[0]
+                    if record and nev < seq.shape[2]:
+                        seq[j, i, nev, 0] = k
+                        seq[j, i, nev, 1] = codes[ck[k]] if ck[k] >= 0 else FIBRE_CHECK
+                        seq[j, i, nev, 2] = mk[k]
+                        seq[j, i, nev, 3] = status[k]
+                        seq[j, i, nev, 4] = lam
+                        nev += 1
+                if fibre_failed >= carrying:
+                    f_last = lam
+                    break
+            first[i, cj] = f_first
+            last[i, cj] = f_last

@@ -173,7 +173,7 @@ def _section(p0, n, z, cs, alpha, beta, Q, params, share, d1, d2, t, h, K, fixed
         b11 = q11 * cc * cc + 2.0 * (q12 + 2.0 * q66) * cc * ss + q22 * ss * ss
         b22 = q11 * ss * ss + 2.0 * (q12 + 2.0 * q66) * cc * ss + q22 * cc * cc
         b12 = (q11 + q22 - 4.0 * q66) * cc * ss + q12 * (cc * cc + ss * ss)
-        b66 = (q11 + q22 - 2.0 * q12 - 2.0 * q66) * cc * ss + q66 * (cc - ss) * (cc - ss)
+        b66 = (q11 + q22 - 2.0 * q12 - 2.0 * q66) * cc * ss + q66 * (cc * cc + ss * ss)
         b16 = (q11 - q12 - 2.0 * q66) * cc * cx + (q12 - q22 + 2.0 * q66) * ss * cx
         b26 = (q11 - q12 - 2.0 * q66) * ss * cx + (q12 - q22 + 2.0 * q66) * cc * cx
         Qb = ((b11, b12, b16), (b12, b22, b26), (b16, b26, b66))

@@ -33,6 +33,8 @@ class CompareSpec:
     dT: np.ndarray                       # (ncase, ncell), the compared cases
     steps: np.ndarray | None = None      # (nstep, ncell, 8) unless read through the context's reader
     solver: np.ndarray | None = None     # (ncase, ncell, maxply, 3, 5), material axes
+    dM: np.ndarray | None = None         # (ncase, ncell) moisture change per cell (None: the context's per case)
+    pres: np.ndarray | None = None       # (ncase, ncell) pressure per cell (None: the context's per case)
 
 
 @dataclass(frozen=True)
@@ -54,7 +56,9 @@ class CompareContext:
         steps = spec.steps if spec.steps is not None else self.reader.read(slice(spec.start, spec.stop),
                                                                            CellAxes(spec.phi))
         R = combine_steps(self.weights, steps)
-        return reference_values(self.tables, spec.section, spec.phi, R, spec.dT, self.dM, self.pres, self.quantity)
+        dM = self.dM if spec.dM is None else spec.dM
+        pres = self.pres if spec.pres is None else spec.pres
+        return reference_values(self.tables, spec.section, spec.phi, R, spec.dT, dM, pres, self.quantity)
 
     def compute(self, spec: CompareSpec):
         """Pass 1: a :class:`ScaleAccumulator` of the block; pass 2: a :class:`MetricAccumulator` of it."""

@@ -104,7 +104,14 @@ def _specs(inp: CompareInputs, step: int, with_solver: bool):
         cells = slice(start, stop)
         yield CompareSpec(index, start, stop, m.section[cells], m.phi[cells], m.zone[cells],
                           inp.plan.delta_T(m, start, stop)[j], inp.source.block_steps(start, stop),
-                          inp.solver.read_cells(cells).material if with_solver else None)
+                          inp.solver.read_cells(cells).material if with_solver else None,
+                          inp.plan.delta_M(m, start, stop)[j], _total_pressure(inp.plan, m, start, stop)[j])
+
+
+def _total_pressure(plan, model, start: int, stop: int) -> np.ndarray:
+    """(ncase, ncell) lateral pressure of the scaled and held parts together (totals are compared)."""
+    held = plan.held_pressure(model, start, stop)
+    return plan.pressure(model, start, stop) + (0.0 if held is None else held)
 
 
 def measure(inp: CompareInputs, tolerance: float, runner, progress: Progress | None = None,
@@ -149,11 +156,13 @@ def zone_data(inp: CompareInputs, cmp: Comparison, zones=None) -> list[ZoneData]
         n = sec.n_plies
         R = combine_steps(inp.plan.total_weights[j], inp.source.read_cells(cells))   # held cases included
         dT = np.stack([inp.plan.delta_T(m, c, c + 1)[j, 0] for c in cells], axis=1)
+        dM = np.stack([inp.plan.delta_M(m, c, c + 1)[j, 0] for c in cells], axis=1)
+        pres = np.stack([_total_pressure(inp.plan, m, c, c + 1)[j, 0] for c in cells], axis=1)
         ours = reference_values(build_tables([sec]), np.zeros(cells.size, np.int64), m.phi[cells], R, dT,
-                                inp.plan.dM[j], inp.plan.pres[j], inp.spec.quantity)
+                                dM, pres, inp.spec.quantity)
         got = inp.solver.read_cells(cells)
         alpha = axes_angle(inp.spec, m, None if inp.solver.vectors is None else inp.solver.vectors[cells], cells)
-        out.append(ZoneData(zone.name, sec, m.phi[cells], R, dT, inp.plan.dM[j], inp.plan.pres[j], ours[:, :, :n],
+        out.append(ZoneData(zone.name, sec, m.phi[cells], R, dT, dM, pres, ours[:, :, :n],
                             got.material[:, :, :n], cmp.scale[k, :n], inp.spec.quantity, inp.spec.axes,
                             inp.case_names, inp.defn.resultants.twist_sign, inp.spec.scale, inp.spec.ply_order,
                             inp.spec.shear, got.written[:, :, :n], alpha))

@@ -7,6 +7,10 @@ measurement runs in its own subprocess so its peak resident memory
 (mesh as our XDMF, resultants as HDF5) and reused.
 
     python bench/recover_bench.py [--cells 1000000] [--cases 4] [--work /tmp/plybridge-bench]
+    python bench/recover_bench.py --progressive [--cells 100000]   # the ply discount's cost against a plain run
+
+With ``--progressive`` the whole run is measured twice, as is and with ``[analysis.progressive]`` (the default
+criteria find the failures, failed moduli set to zero), and the ratio of the two times is printed.
 """
 
 from __future__ import annotations
@@ -44,6 +48,20 @@ def grid(n_cells: int):
     n0 = (j * (nx + 1) + i).ravel()
     quads = np.column_stack([n0, n0 + 1, n0 + nx + 2, n0 + nx + 1])
     return ShellMesh(pts, (("quad", quads),))
+
+
+#: The ply discount appended to the benchmark definition (docs/criteria.md, progressive failure).
+PROGRESSIVE = "\n[analysis.progressive]\n"
+
+
+def with_progressive(paths: dict[str, str]) -> dict[str, str]:
+    """The inputs with a definition that also runs the progressive failure analysis (written once)."""
+    target = Path(paths["definition"]).with_name("def-progressive.toml")
+    if not target.exists():
+        text = Path(paths["definition"]).read_text(encoding="utf-8")
+        head, sep, tail = text.partition("[[zones]]")
+        target.write_text(head + PROGRESSIVE + "\n" + sep + tail, encoding="utf-8")
+    return {**paths, "definition": str(target)}
 
 
 def inputs(work: Path, n_cells: int, n_cases: int) -> dict[str, str]:
@@ -152,6 +170,7 @@ def parse(argv=None):
     ap.add_argument("--cells", type=int, default=1_000_000)
     ap.add_argument("--cases", type=int, default=4)
     ap.add_argument("--work", default="/tmp/plybridge-bench")
+    ap.add_argument("--progressive", action="store_true", help="also time a run with [analysis.progressive]")
     ap.add_argument("--child", help=argparse.SUPPRESS)
     return ap.parse_args(argv)
 
@@ -168,6 +187,14 @@ def main(argv=None) -> None:
     print(f"inputs ready in {time.perf_counter() - t:.1f} s: {args.cells} cells, {args.cases} cases, "
           f"{PLIES} plies, {POINTS} points, criteria max-stress, max-strain, tsai-wu, hashin", flush=True)
     out = str(work / "bench-out.h5")
+    if args.progressive:
+        in_subprocess("warm", with_progressive(small), 2000, args.cases, out, {})
+        plain = in_subprocess("command", paths, args.cells, args.cases, out)
+        report("whole run_recover", plain)
+        prog = in_subprocess("command", with_progressive(paths), args.cells, args.cases, out)
+        report("with progressive failure", prog)
+        print(f"progressive / plain time: {prog['seconds'] / plain['seconds']:.2f}")
+        return
     in_subprocess("warm", small, 2000, args.cases, out, {})
     kernel = in_subprocess("kernel", paths, args.cells, args.cases, out)
     report("kernel (recover_cells)", kernel)

@@ -12,7 +12,8 @@ from typing import Sequence
 import numpy as np
 
 from shells.criteria import CRITERIA
-from shells.progressive import EVENT, progressive_block
+from shells.progressive import CONVEX, EVENT, progressive_block
+from shells.progressive_bounds import inner_box
 from shells.recovery_args import Envelope
 from shells.recovery_tables import SectionTables
 from shells.separable import family, keep_modes, separable
@@ -68,6 +69,8 @@ def progressive_cells(criteria: Sequence[type], tables: SectionTables, cell_sec:
     ncase, ncell = R.shape[:2]
     point = [c for c in criteria if c.level == "point"]
     sel = selection(point)
+    masks = sel.masks.copy()
+    masks[[c.name in CONVEX for c in point], 1] = False     # faces govern a convex check (shells.progressive)
     fmodes = fibre_modes(point)
     keep = np.array([float(retained[0]), float(retained[1])])
     share = ply_shares(tables)
@@ -81,7 +84,8 @@ def progressive_cells(criteria: Sequence[type], tables: SectionTables, cell_sec:
         g = np.full((ncell, ncase), np.inf)
         out = seq if k == 0 else np.zeros((0, 0, 0, EVENT))
         for a, b, arrays in case_runs(case_params, ncase, tables):
-            progressive_block(arrays, share, sel.codes, sel.masks, fmodes, keep, case_slice(blk, a, b), f, g,
+            kappa = inner_box(arrays.params, point)
+            progressive_block(arrays, share, kappa, sel.codes, masks, fmodes, keep, case_slice(blk, a, b), f, g,
                               out if out.size == 0 else out[a:b])
         first = np.fmin(first, f) if k else f
         last = np.fmin(last, g) if k else g

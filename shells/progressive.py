@@ -5,9 +5,9 @@ resultants, and the resultants of held cases) is held. With the section's curren
 strains of both parts are solved and, at the bottom, middle and top of every ply that has not failed in its
 fibres, the in-plane material-axis stresses (σ1, σ2, τ12) are formed. An intact ply is checked by the chosen
 criteria (its strength ratio and mode); a ply with a matrix failure only by its fibres (σ1 against Xt and Xc,
-the fibre check of the ply discount). The smallest ratio R gives the next failure at λ = max(λ, R) (a ratio below
-the current λ means the ply is already overloaded after the last discount and fails at the same load). That
-ply — and every ply whose ratio ties with it within :data:`TIE` — is discounted for its mode:
+the fibre check of the ply discount). When plies are overloaded at the current λ after the last discount (their
+ratio is below λ), every one of them fails at λ; otherwise λ rises to the smallest ratio and that ply — and every
+ply whose ratio ties with it within :data:`TIE` — fails. A failed ply is discounted for its mode:
 
 - matrix failure (a mode whose name does not start with "fibre", on a ply): E2 and G12 multiplied by
   ``matrix_retained``;
@@ -20,7 +20,10 @@ matrix), or when no ply fails any more. The first failure's λ is the first-ply 
 last-ply factor (inf when the laminate never fails completely under the load direction).
 
 Transverse shear, σ3 and sandwich face checks are not part of the discount: the stresses here are the in-plane
-ones (τ13 = τ23 = σ3 = 0). Conventions: docs/conventions.md; the ply discount: docs/criteria.md.
+ones (τ13 = τ23 = σ3 = 0). Cost: each step solves the section again and checks the plies; the criteria are
+evaluated exactly only on the intact plies whose lower bound (the ratio of leaving a strength box inside every
+criterion, :mod:`shells.progressive_bounds`) does not rule out a failure at this step, and :data:`CONVEX` criteria
+only at a ply's faces. Conventions: docs/conventions.md; the ply discount: docs/criteria.md.
 """
 
 from __future__ import annotations
@@ -45,6 +48,11 @@ DEFAULT_MATRIX_RETAINED = 0.0
 DEFAULT_FIBRE_RETAINED = 0.0
 #: Criteria that check transverse shear, σ3 or sandwich faces, not the in-plane ply stresses: not used here.
 OUT_OF_PLANE = ("core-shear", "core-crushing", "interlaminar", "wrinkling", "dimpling")
+#: Criteria whose safe region in the in-plane stresses is convex (a box, a parallelepiped in strain, an ellipsoid
+#: with |F12*| ≤ 1, von Mises, principal-stress and Tresca bounds): along a ply the stress is affine in z, so the
+#: middle point is the mean of the faces' states and cannot fail before both faces; they are checked at the
+#: faces only.
+CONVEX = ("max-stress", "max-strain", "tsai-wu", "von-mises")
 #: Ratios within this relative distance of the smallest fail in the same step (plies of a symmetric stack).
 TIE = 1e-9
 #: Pivot below this (on the unit-diagonal scaled stiffness) marks a direction the section no longer resists.
@@ -64,35 +72,37 @@ def in_plane(name: str) -> bool:
 
 
 @njit(cache=True)
-def solve_scaled(K, b, x):
+def solve_scaled(K, b, x, A, y, s, col):
     """Solve the symmetric positive semi-definite K (6, 6) for the columns of b (6, m) into x (6, m).
 
     Diagonal scaling to a unit diagonal (zero rows and columns left out), then Gaussian elimination with
     complete pivoting; pivots below :data:`PIVOT` end the elimination and their unknowns are 0. Returns False
     when a right-hand side has a component beyond :data:`INCONSISTENT` in the directions left out (the load
-    cannot be carried), else True.
+    cannot be carried), else True. ``A`` (6, 6), ``y`` (6, m), ``s`` (6,), ``col`` int (6,): work arrays.
     """
     n = 6
     m = b.shape[1]
-    A = np.empty((n, n))
-    y = np.empty((n, m))
-    s = np.zeros(n)
-    big = np.zeros(2)
+    big0 = 0.0
+    big1 = 0.0
+    for i in range(3):
+        big0 = max(big0, K[i, i])
+        big1 = max(big1, K[i + 3, i + 3])
     for i in range(n):
-        big[i // 3] = max(big[i // 3], K[i, i])
-    for i in range(n):
-        if K[i, i] > 1e-14 * big[i // 3] and K[i, i] > 0.0:
-            s[i] = 1.0 / np.sqrt(K[i, i])
-    norm = np.zeros(m)
+        bb = big0 if i < 3 else big1
+        s[i] = 1.0 / np.sqrt(K[i, i]) if K[i, i] > 1e-14 * bb and K[i, i] > 0.0 else 0.0
+    norm0 = 0.0
+    norm1 = 0.0
     for i in range(n):
         for j in range(n):
             A[i, j] = s[i] * K[i, j] * s[j]
         # A row the section does not resist at all is scaled as its block's stiffest row would be.
-        si = s[i] if s[i] > 0.0 else (1.0 / np.sqrt(big[i // 3]) if big[i // 3] > 0.0 else 1.0)
+        bb = big0 if i < 3 else big1
+        si = s[i] if s[i] > 0.0 else (1.0 / np.sqrt(bb) if bb > 0.0 else 1.0)
         for c in range(m):
             y[i, c] = si * b[i, c]
-            norm[c] = max(norm[c], abs(y[i, c]))
-    col = np.arange(n)
+        norm0 = max(norm0, abs(y[i, 0]))
+        norm1 = max(norm1, abs(y[i, m - 1]))
+        col[i] = i
     rank = n
     for k in range(n):
         p, q, best = k, k, 0.0
@@ -119,9 +129,8 @@ def solve_scaled(K, b, x):
                     y[i, c] -= f * y[k, c]
     ok = True
     for i in range(rank, n):
-        for c in range(m):
-            if abs(y[i, c]) > INCONSISTENT * norm[c]:
-                ok = False
+        if abs(y[i, 0]) > INCONSISTENT * norm0 or abs(y[i, m - 1]) > INCONSISTENT * norm1:
+            ok = False
     for c in range(m):
         for i in range(n):
             x[i, c] = 0.0
@@ -156,9 +165,9 @@ def ply_stiffness(row, Q, params, d1, d2, out):
 
 
 @njit(cache=True)
-def _section(p0, n, z, cs, alpha, beta, Q, params, share, d1, d2, t, h, K, fixed):
-    """[A B; B D] (6, 6) and the thermal and moisture resultants (6,) of the degraded section (in place)."""
-    q = np.empty(4)
+def _section(p0, n, z, cs, alpha, beta, Q, params, share, d1, d2, t, h, K, fixed, q):
+    """[A B; B D] (6, 6) and the thermal and moisture resultants (6,) of the degraded section (in place);
+    ``q`` (4,) a work array."""
     for a in range(6):
         fixed[a] = 0.0
         for b in range(6):
@@ -213,7 +222,7 @@ def _point(e, zz, ct, st, q, f1, f2, out):
 
 
 @njit(cache=True, parallel=True)
-def progressive_block(sec, share, codes, masks, fibre_mode, retained, blk, first, last, seq):
+def progressive_block(sec, share, kappa, codes, masks, fibre_mode, retained, blk, first, last, seq):
     """First- and last-ply factors of a block of cells × cases (written in place).
 
     Parameters
@@ -222,8 +231,12 @@ def progressive_block(sec, share, codes, masks, fibre_mode, retained, blk, first
         Section and ply tables (allowables of the cases' environment).
     share : float64 (nrows,)
         Share of each ply row in the stiffness of its layer (1; ½ for each half of a wound ±α layer).
+    kappa : float64 (nrows,)
+        Scale of the strength box inside every chosen criterion (:func:`shells.progressive_bounds.inner_box`;
+        0: no bound, inf: no criterion applies).
     codes : int64 (ncrit,), masks : bool (ncrit, 3)
-        Criteria that find the failures and the points they apply at.
+        Criteria that find the failures and the points they are checked at (the middle point may be left out
+        for the :data:`CONVEX` ones).
     fibre_mode : bool (ncrit, nmode)
         Whether mode m of criterion c is a fibre failure.
     retained : float64 (2,)
@@ -247,6 +260,9 @@ def progressive_block(sec, share, codes, masks, fibre_mode, retained, blk, first
     maxply = 0
     for s in range(nply.shape[0]):
         maxply = max(maxply, nply[s])
+    middle = False
+    for m in range(codes.shape[0]):
+        middle = middle or masks[m, 1]
     for i in prange(ncell):
         K = np.empty((6, 6))
         rhs = np.empty((6, 2))
@@ -257,12 +273,20 @@ def progressive_block(sec, share, codes, masks, fibre_mode, retained, blk, first
         sm = np.zeros(6)
         sf = np.zeros(6)
         q = np.empty(4)
+        wa = np.empty((6, 6))
+        wy = np.empty((6, 2))
+        ws = np.empty(6)
+        wc = np.empty(6, np.int64)
         status = np.empty(maxply, np.int64)
         d1 = np.empty(maxply)
         d2 = np.empty(maxply)
         rk = np.empty(maxply)
         ck = np.empty(maxply, np.int64)
         mk = np.empty(maxply, np.int64)
+        lb = np.empty(maxply)
+        done = np.empty(maxply, np.bool_)
+        bm = np.zeros((maxply, 3, 6))
+        bf = np.zeros((maxply, 3, 6))
         s = cell_sec[i]
         c, sn = cell_cos[i], cell_sin[i]
         cc, ss, cx = c * c, sn * sn, c * sn
@@ -293,7 +317,7 @@ def progressive_block(sec, share, codes, masks, fibre_mode, retained, blk, first
             nev = 0
             fibre_failed = 0
             for _ in range(2 * n + 1):
-                _section(p0, n, z, cs, alpha, beta, Q, params, share, d1, d2, t, h, K, gf)
+                _section(p0, n, z, cs, alpha, beta, Q, params, share, d1, d2, t, h, K, gf, q)
                 for a in range(6):
                     rhs[a, 1] = gf[a]
                 if held:
@@ -302,7 +326,7 @@ def progressive_block(sec, share, codes, masks, fibre_mode, retained, blk, first
                         rhs[o, 1] += cc * rh[o] + ss * rh[o + 1] + 2.0 * cx * rh[o + 2]
                         rhs[o + 1, 1] += ss * rh[o] + cc * rh[o + 1] - 2.0 * cx * rh[o + 2]
                         rhs[o + 2, 1] += -cx * rh[o] + cx * rh[o + 1] + (cc - ss) * rh[o + 2]
-                if not solve_scaled(K, rhs, sol):
+                if not solve_scaled(K, rhs, sol, wa, wy, ws, wc):
                     f_last = lam       # the stiffness left no longer carries the load
                     break
                 for a in range(6):
@@ -310,9 +334,12 @@ def progressive_block(sec, share, codes, masks, fibre_mode, retained, blk, first
                     ef[a] = sol[a, 1]
                 drop_roundoff(em, zmax)
                 drop_roundoff(ef, zmax)
+                # Stresses at the checked points; the exact ratio of plies with a matrix failure (their fibre
+                # check) and a lower bound for intact plies (leaving the box κ·B inside every criterion).
                 rmin = np.inf
                 for k in range(n):
                     rk[k] = np.inf
+                    lb[k] = np.inf
                     if status[k] == 2:
                         continue
                     row = p0 + k
@@ -321,30 +348,61 @@ def progressive_block(sec, share, codes, masks, fibre_mode, retained, blk, first
                     f1 = alpha[row, 0] * t + beta[row, 0] * h
                     f2 = alpha[row, 1] * t + beta[row, 1] * h
                     pr = params[row]
+                    kap = kappa[row]
                     for pt in range(3):
-                        _point(em, z[row, pt], ct, st, q, 0.0, 0.0, sm)
-                        _point(ef, z[row, pt], ct, st, q, f1, f2, sf)
-                        if status[k] == 0:
-                            for m in range(codes.shape[0]):
-                                if not masks[m, pt]:
-                                    continue
-                                sr, mode = ratio_by_code(codes[m], sm, sf, pr)
-                                if sr < rk[k]:
-                                    rk[k], ck[k], mk[k] = sr, m, mode
-                        else:
-                            sr = linear_ratio(sf[0], sm[0], pr[P.XT], pr[P.XC])
+                        if pt == 1 and (status[k] == 1 or not middle):
+                            continue           # convex checks: the faces govern
+                        _point(em, z[row, pt], ct, st, q, 0.0, 0.0, bm[k, pt])
+                        _point(ef, z[row, pt], ct, st, q, f1, f2, bf[k, pt])
+                        a, b = bm[k, pt], bf[k, pt]
+                        if status[k] == 1:
+                            sr = linear_ratio(b[0], a[0], pr[P.XT], pr[P.XC])
                             if sr < rk[k]:
                                 rk[k], ck[k] = sr, -1
-                                mk[k] = FT if sf[0] + sr * sm[0] >= 0.0 else FC
-                    if rk[k] < rmin:
-                        rmin = rk[k]
+                                mk[k] = FT if b[0] + sr * a[0] >= 0.0 else FC
+                        elif kap == 0.0:
+                            lb[k] = -np.inf
+                        elif kap < np.inf:
+                            lo = min(linear_ratio(b[0], a[0], kap * pr[P.XT], kap * pr[P.XC]),
+                                     linear_ratio(b[1], a[1], kap * pr[P.YT], kap * pr[P.YC]),
+                                     linear_ratio(b[2], a[2], kap * pr[P.S12], kap * pr[P.S12]))
+                            lb[k] = min(lb[k], lo)
+                    if status[k] == 1:
+                        rmin = min(rmin, rk[k])
+                        done[k] = True
+                    else:
+                        done[k] = lb[k] == np.inf      # no chosen criterion applies: never fails
+                # Exact ratios of the intact plies in increasing order of their bound, while the bound does not
+                # exceed the largest ratio that can still fail now (the current λ, or the smallest ratio so far).
+                while True:
+                    k = -1
+                    for kk in range(n):
+                        if not done[kk] and (k < 0 or lb[kk] < lb[k]):
+                            k = kk
+                    if k < 0 or lb[k] > max(lam, rmin) * (1.0 + TIE):
+                        break
+                    done[k] = True
+                    pr = params[p0 + k]
+                    for pt in range(3):
+                        if pt == 1 and not middle:
+                            continue
+                        for m in range(codes.shape[0]):
+                            if not masks[m, pt]:
+                                continue
+                            sr, mode = ratio_by_code(codes[m], bm[k, pt], bf[k, pt], pr)
+                            if sr < rk[k]:
+                                rk[k], ck[k], mk[k] = sr, m, mode
+                    rmin = min(rmin, rk[k])
                 if rmin == np.inf:
                     break              # nothing fails any more under this load direction
-                lam = max(lam, rmin)
+                # Plies overloaded at the current λ after the last discount all fail at λ; otherwise λ rises to
+                # the smallest ratio and the plies tying with it fail.
+                cut = lam if rmin <= lam else rmin
+                lam = cut
                 if f_first == np.inf:
                     f_first = lam
                 for k in range(n):
-                    if not rk[k] <= rmin * (1.0 + TIE) + 0.0:
+                    if not rk[k] <= cut * (1.0 + TIE):
                         continue
                     complete = status[k] == 1 or params[p0 + k, P.KIND] != P.KIND_PLY
                     if status[k] == 0 and not complete and ck[k] >= 0 and mk[k] >= 0:

@@ -5,7 +5,8 @@ the reduced stiffness of Kaw (Mechanics of Composite Materials, 2nd ed., 2006, e
 stiffness written component by component (Kaw eq. 2.104), [A B; B D] summed ply by ply, a solve with numpy's
 least squares (a degraded section may be singular), and the maximum-stress and Tsai-Wu ratios solved along the
 load ray by hand (linear and quadratic). It follows the ply-discount rules of docs/criteria.md: the lowest ratio
-fails, λ never goes down, a matrix failure keeps ``matrix_retained`` of E2 and G12, a fibre failure (or the fibre
+fails, λ never goes down and every ply overloaded at the current λ after a discount fails at that λ, a matrix
+failure keeps ``matrix_retained`` of E2 and G12, a fibre failure (or the fibre
 check σ1 vs Xt/Xc of a ply whose matrix has failed) keeps ``fibre_retained`` of every modulus, until every ply
 has failed in its fibres or the load cannot be carried. Material: the graphite/epoxy of Kaw (2006), Table 2.1.
 
@@ -160,10 +161,10 @@ def discount(angles, load, criterion, retained=(0.0, 0.0), dT=0.0):
         rmin = min(r for r, _ in ratios)
         if not np.isfinite(rmin):
             return first, np.inf, events
-        lam = max(lam, rmin)
+        lam = lam if rmin <= lam else rmin        # every ply overloaded at the current load fails at it
         first = min(first, lam)
         for k, (r, which) in enumerate(ratios):
-            if r <= rmin * (1 + 1e-9):
+            if r <= lam * (1 + 1e-9):
                 if status[k] == 1 or which == 0:
                     status[k] = 2
                     mods[k] *= retained[1]
@@ -246,3 +247,27 @@ def test_retained_stiffness_changes_the_last_ply_only():
     a = _ours(QUASI, [100.0, 0, 0, 0, 0, 0], "max-stress", (0.0, 0.0))
     b = _ours(QUASI, [100.0, 0, 0, 0, 0, 0], "max-stress", (0.3, 0.0))
     assert a[0] == b[0] and a[1] != b[1]
+
+
+@pytest.mark.parametrize("name", ["max-stress", "max-strain", "tsai-wu", "hashin"])
+def test_inner_box_is_inside_the_criterion(name):
+    # The discount evaluates a criterion only where leaving the box κ·B (B the strength box) could fail a ply:
+    # check on random in-plane states and rays that no state fails the criterion before it leaves κ·B.
+    from shells.criteria.dispatch import ratio_by_code
+    from shells.criteria import code
+    from shells.progressive_bounds import inner_box
+
+    crit = by_name(name)
+    p = _tables((0,)).params[0]
+    kappa = inner_box(p[None], (crit,))[0]
+    assert 0.0 < kappa <= 1.0
+    box = kappa * np.array([[XT, YT, S], [XC, YC, S]])
+    rng = np.random.default_rng(11)
+    for _ in range(4000):
+        sm = np.zeros(6)
+        sf = np.zeros(6)
+        sm[:3] = rng.normal(size=3) * np.array([XT, YT, S])
+        sf[:3] = rng.uniform(-0.9, 0.9, size=3) * box[0]
+        r = ratio_by_code(code(name), sm, sf, p)[0]
+        lo = min((box[0, i] - sf[i]) / sm[i] if sm[i] > 0 else (sf[i] + box[1, i]) / -sm[i] for i in range(3))
+        assert r >= lo * (1 - 1e-12), (name, sm, sf, r, lo)

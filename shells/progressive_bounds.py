@@ -1,0 +1,95 @@
+"""Boxes of in-plane stress inside every chosen criterion's safe region: a cheap lower bound on a ply's ratio.
+
+For a ply row with strengths Xt, Xc, Yt, Yc, S12, let B be the box −Xc ≤ σ1 ≤ Xt, −Yc ≤ σ2 ≤ Yt, |τ12| ≤ S12. If
+κ·B lies inside the safe region of a criterion, a state sf + λ·sm cannot fail that criterion before it leaves κ·B,
+so the ratio of leaving κ·B (three linear ratios) is a lower bound on the criterion's ratio. The ply discount
+(:mod:`shells.progressive`) uses it to evaluate the criteria exactly only on the plies that can fail next.
+
+κ per criterion, with τ13 = τ23 = σ3 = 0 (the in-plane states of the discount):
+
+- maximum stress: 1 (B is its safe region);
+- maximum strain: the largest κ keeping the strains of the eight corners of κ·B within the strain limits (the
+  strains are linear in the stresses and the region is convex, so the corners decide);
+- Tsai-Wu: the largest κ keeping every corner of κ·B inside the ellipsoid (convex for |F12*| ≤ 1): the positive
+  root of κ²·q(corner) + κ·l(corner) = 1;
+- Hashin: fibre tension and matrix tension reach 2κ² = 1 at the corner (σ = κ·strength, τ12 = κ·S12), fibre
+  compression κ = 1, matrix compression the root of (Yc²/(4 S_T²) + 1)·κ² − ((Yc/(2 S_T))² − 1)·κ = 1 (its
+  function of σ2 is convex, so the ends of [−κ·Yc, 0] decide);
+- a criterion that does not apply to the row's material kind: no limit (inf);
+- any other criterion, or a layer that is not a ply: 0 (no bound; the criteria are always evaluated).
+
+The row's κ is the smallest over the criteria; inf means no chosen criterion applies (the ply never fails).
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Sequence
+
+import numpy as np
+
+from . import params as P
+
+_CORNERS = ((1.0, 1.0), (1.0, -1.0), (-1.0, 1.0), (-1.0, -1.0))
+
+
+def _root(q: float, l: float) -> float:
+    """Largest κ ≥ 0 with q·κ² + l·κ ≤ 1 for all smaller κ (q ≥ 0): the positive root, inf when none."""
+    if q <= 0.0:
+        return math.inf if l <= 0.0 else 1.0 / l
+    return (-l + math.sqrt(l * l + 4.0 * q)) / (2.0 * q)
+
+
+def _corners(p: np.ndarray):
+    for s1, s2 in _CORNERS:
+        yield (p[P.XT] if s1 > 0 else -p[P.XC]), (p[P.YT] if s2 > 0 else -p[P.YC]), p[P.S12]
+
+
+def _max_strain(p: np.ndarray) -> float:
+    e1, e2, g12, nu = p[P.E1], p[P.E2], p[P.G12], p[P.NU12]
+    out = p[P.STRAIN_SH] / (p[P.S12] / g12)
+    for s1, s2, _ in _corners(p):
+        eps1 = (s1 - nu * s2) / e1
+        eps2 = s2 / e2 - nu * s1 / e1
+        for eps, up, lo in ((eps1, P.STRAIN_FT, P.STRAIN_FC), (eps2, P.STRAIN_MT, P.STRAIN_MC)):
+            if eps != 0.0:
+                out = min(out, (p[up] if eps > 0 else p[lo]) / abs(eps))
+    return out
+
+
+def _tsai_wu(p: np.ndarray) -> float:
+    xt, xc, yt, yc, s = p[P.XT], p[P.XC], p[P.YT], p[P.YC], p[P.S12]
+    f1, f2, f11, f22, f66 = 1 / xt - 1 / xc, 1 / yt - 1 / yc, 1 / (xt * xc), 1 / (yt * yc), 1 / (s * s)
+    f12 = p[P.F12STAR] * math.sqrt(f11 * f22)
+    out = math.inf
+    for s1, s2, t in _corners(p):
+        out = min(out, _root(f11 * s1 * s1 + f22 * s2 * s2 + f66 * t * t + 2 * f12 * s1 * s2, f1 * s1 + f2 * s2))
+    return out
+
+
+def _hashin(p: np.ndarray) -> float:
+    yc, st = p[P.YC], p[P.S_T]
+    compression = _root(yc * yc / (4 * st * st) + 1.0, -((yc / (2 * st)) ** 2 - 1.0))
+    return min(1.0 / math.sqrt(2.0), 1.0, compression)
+
+
+#: Criterion name → κ of a ply row (the criteria listed here apply to plies only, or to plies and isotropic
+#: layers where noted in :func:`inner_box`).
+_PLY = {"max-stress": lambda p: 1.0, "max-strain": _max_strain, "tsai-wu": _tsai_wu, "hashin": _hashin}
+
+
+def inner_box(params: np.ndarray, criteria: Sequence[type]) -> np.ndarray:
+    """κ of every row of ``params`` (nrows, NPARAM) for the chosen criterion classes (see the module notes)."""
+    out = np.full(params.shape[0], np.inf)
+    for k, p in enumerate(params):
+        kind = int(p[P.KIND])
+        for c in criteria:
+            if kind not in c.requires:
+                continue                                   # not applicable: never fails by it
+            if kind != P.KIND_PLY or c.name not in _PLY or np.isnan(p[[P.XT, P.XC, P.YT, P.YC, P.S12]]).any():
+                out[k] = 0.0
+                break
+            with np.errstate(all="ignore"):
+                kappa = float(_PLY[c.name](p))
+            out[k] = min(out[k], kappa if math.isfinite(kappa) or kappa == math.inf else 0.0)
+    return np.where(np.isnan(out), 0.0, out)

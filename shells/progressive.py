@@ -35,6 +35,7 @@ from . import params as P
 from .criteria.dispatch import ratio_by_code
 from .criteria.roots import linear_ratio
 from .criteria.state import FC, FT
+from .degraded import degraded_section, ply_stiffness, solve_scaled
 from .numba_cache import configure
 from .recovery import drop_roundoff
 
@@ -55,10 +56,6 @@ OUT_OF_PLANE = ("core-shear", "core-crushing", "interlaminar", "wrinkling", "dim
 CONVEX = ("max-stress", "max-strain", "tsai-wu", "von-mises")
 #: Ratios within this relative distance of the smallest fail in the same step (plies of a symmetric stack).
 TIE = 1e-9
-#: Pivot below this (on the unit-diagonal scaled stiffness) marks a direction the section no longer resists.
-PIVOT = 1e-10
-#: A load component left in a resisted-nowhere direction beyond this fraction of the load cannot be carried.
-INCONSISTENT = 1e-8
 #: Values of one failure event in the sequence output: ply slot, criterion code (−1: fibre check of a ply with
 #: a matrix failure), mode index, discount (1 matrix, 2 fibre), load factor.
 EVENT = 5
@@ -69,143 +66,6 @@ FIBRE_CHECK = -1
 def in_plane(name: str) -> bool:
     """Whether criterion ``name`` checks in-plane ply stresses (usable to find failures in the discount)."""
     return name not in OUT_OF_PLANE
-
-
-@njit(cache=True)
-def solve_scaled(K, b, x, A, y, s, col):
-    """Solve the symmetric positive semi-definite K (6, 6) for the columns of b (6, m) into x (6, m).
-
-    Diagonal scaling to a unit diagonal (zero rows and columns left out), then Gaussian elimination with
-    complete pivoting; pivots below :data:`PIVOT` end the elimination and their unknowns are 0. Returns False
-    when a right-hand side has a component beyond :data:`INCONSISTENT` in the directions left out (the load
-    cannot be carried), else True. ``A`` (6, 6), ``y`` (6, m), ``s`` (6,), ``col`` int (6,): work arrays.
-    """
-    n = 6
-    m = b.shape[1]
-    big0 = 0.0
-    big1 = 0.0
-    for i in range(3):
-        big0 = max(big0, K[i, i])
-        big1 = max(big1, K[i + 3, i + 3])
-    for i in range(n):
-        bb = big0 if i < 3 else big1
-        s[i] = 1.0 / np.sqrt(K[i, i]) if K[i, i] > 1e-14 * bb and K[i, i] > 0.0 else 0.0
-    norm0 = 0.0
-    norm1 = 0.0
-    for i in range(n):
-        for j in range(n):
-            A[i, j] = s[i] * K[i, j] * s[j]
-        # A row the section does not resist at all is scaled as its block's stiffest row would be.
-        bb = big0 if i < 3 else big1
-        si = s[i] if s[i] > 0.0 else (1.0 / np.sqrt(bb) if bb > 0.0 else 1.0)
-        for c in range(m):
-            y[i, c] = si * b[i, c]
-        norm0 = max(norm0, abs(y[i, 0]))
-        norm1 = max(norm1, abs(y[i, m - 1]))
-        col[i] = i
-    rank = n
-    for k in range(n):
-        p, q, best = k, k, 0.0
-        for i in range(k, n):
-            for j in range(k, n):
-                if abs(A[i, j]) > best:
-                    best, p, q = abs(A[i, j]), i, j
-        if best <= PIVOT:
-            rank = k
-            break
-        for j in range(n):
-            A[k, j], A[p, j] = A[p, j], A[k, j]
-        for c in range(m):
-            y[k, c], y[p, c] = y[p, c], y[k, c]
-        for i in range(n):
-            A[i, k], A[i, q] = A[i, q], A[i, k]
-        col[k], col[q] = col[q], col[k]
-        for i in range(k + 1, n):
-            f = A[i, k] / A[k, k]
-            if f != 0.0:
-                for j in range(k, n):
-                    A[i, j] -= f * A[k, j]
-                for c in range(m):
-                    y[i, c] -= f * y[k, c]
-    ok = True
-    for i in range(rank, n):
-        if abs(y[i, 0]) > INCONSISTENT * norm0 or abs(y[i, m - 1]) > INCONSISTENT * norm1:
-            ok = False
-    for c in range(m):
-        for i in range(n):
-            x[i, c] = 0.0
-        for k in range(rank - 1, -1, -1):
-            acc = y[k, c]
-            for j in range(k + 1, rank):
-                acc -= A[k, j] * x[col[j], c]
-            x[col[k], c] = acc / A[k, k]
-        for i in range(n):
-            x[i, c] *= s[i]
-    return ok
-
-
-@njit(cache=True, inline="always")
-def ply_stiffness(row, Q, params, d1, d2, out):
-    """Q11, Q12, Q22, Q66 of a ply row with E1 scaled by d1 and E2, G12 by d2 (the table's own when intact)."""
-    if d1 == 1.0 and d2 == 1.0:
-        for a in range(4):
-            out[a] = Q[row, a]
-        return
-    e1 = d1 * params[row, P.E1]
-    e2 = d2 * params[row, P.E2]
-    nu = params[row, P.NU12]
-    if not e1 > 0.0:
-        out[0] = out[1] = out[2] = out[3] = 0.0
-        return
-    den = 1.0 - nu * nu * e2 / e1
-    out[0] = e1 / den
-    out[1] = nu * e2 / den
-    out[2] = e2 / den
-    out[3] = d2 * params[row, P.G12]
-
-
-@njit(cache=True)
-def _section(p0, n, z, cs, alpha, beta, Q, params, share, d1, d2, t, h, K, fixed, q):
-    """[A B; B D] (6, 6) and the thermal and moisture resultants (6,) of the degraded section (in place);
-    ``q`` (4,) a work array."""
-    for a in range(6):
-        fixed[a] = 0.0
-        for b in range(6):
-            K[a, b] = 0.0
-    for k in range(n):
-        row = p0 + k
-        ply_stiffness(row, Q, params, d1[k], d2[k], q)
-        c, s = cs[row, 0], cs[row, 1]
-        cc, ss, cx = c * c, s * s, c * s
-        q11, q12, q22, q66 = q[0], q[1], q[2], q[3]
-        # Q̄ = T Q Tᵀ (docs/conventions.md), order x, y, xy.
-        b11 = q11 * cc * cc + 2.0 * (q12 + 2.0 * q66) * cc * ss + q22 * ss * ss
-        b22 = q11 * ss * ss + 2.0 * (q12 + 2.0 * q66) * cc * ss + q22 * cc * cc
-        b12 = (q11 + q22 - 4.0 * q66) * cc * ss + q12 * (cc * cc + ss * ss)
-        b66 = (q11 + q22 - 2.0 * q12 - 2.0 * q66) * cc * ss + q66 * (cc * cc + ss * ss)
-        b16 = (q11 - q12 - 2.0 * q66) * cc * cx + (q12 - q22 + 2.0 * q66) * ss * cx
-        b26 = (q11 - q12 - 2.0 * q66) * ss * cx + (q12 - q22 + 2.0 * q66) * cc * cx
-        Qb = ((b11, b12, b16), (b12, b22, b26), (b16, b26, b66))
-        zb, zt = z[row, 0], z[row, 2]
-        w1 = share[row] * (zt - zb)
-        w2 = share[row] * (zt * zt - zb * zb) / 2.0
-        w3 = share[row] * (zt * zt * zt - zb * zb * zb) / 3.0
-        # Free strain in laminate axes, ε_xy = T⁻ᵀ ε_12: (α1 c² + α2 s², α1 s² + α2 c², 2 (α1 − α2) c s).
-        f1 = alpha[row, 0] * t + beta[row, 0] * h
-        f2 = alpha[row, 1] * t + beta[row, 1] * h
-        free = (f1 * cc + f2 * ss, f1 * ss + f2 * cc, 2.0 * (f1 - f2) * cx)
-        for a in range(3):
-            nt = 0.0
-            for b in range(3):
-                K[a, b] += w1 * Qb[a][b]
-                K[a, b + 3] += w2 * Qb[a][b]
-                K[a + 3, b + 3] += w3 * Qb[a][b]
-                nt += Qb[a][b] * free[b]
-            fixed[a] += w1 * nt
-            fixed[a + 3] += w2 * nt
-    for a in range(3):
-        for b in range(3):
-            K[b + 3, a] = K[a, b + 3]
 
 
 @njit(cache=True, inline="always")
@@ -270,8 +130,6 @@ def progressive_block(sec, share, kappa, codes, masks, fibre_mode, retained, blk
         gf = np.empty(6)
         em = np.empty(6)
         ef = np.empty(6)
-        sm = np.zeros(6)
-        sf = np.zeros(6)
         q = np.empty(4)
         wa = np.empty((6, 6))
         wy = np.empty((6, 2))
@@ -317,7 +175,7 @@ def progressive_block(sec, share, kappa, codes, masks, fibre_mode, retained, blk
             nev = 0
             fibre_failed = 0
             for _ in range(2 * n + 1):
-                _section(p0, n, z, cs, alpha, beta, Q, params, share, d1, d2, t, h, K, gf, q)
+                degraded_section(p0, n, z, cs, alpha, beta, Q, params, share, d1, d2, t, h, K, gf, q)
                 for a in range(6):
                     rhs[a, 1] = gf[a]
                 if held:

@@ -1,0 +1,157 @@
+"""The stiffness of a section whose failed plies keep part of their moduli, and a solve that finds the load the
+degraded section can no longer carry (numba; used by the ply discount, :mod:`shells.progressive`).
+
+Conventions: docs/conventions.md (Q̄ = T Q Tᵀ, laminate axes, engineering shear, ply z from the tables).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from numba import njit
+
+from . import params as P
+from .numba_cache import configure
+
+configure()
+
+#: Pivot below this (on the unit-diagonal scaled stiffness) marks a direction the section no longer resists.
+PIVOT = 1e-10
+#: A load component left in a resisted-nowhere direction beyond this fraction of the load cannot be carried.
+INCONSISTENT = 1e-8
+
+
+@njit(cache=True)
+def solve_scaled(K, b, x, A, y, s, col):
+    """Solve the symmetric positive semi-definite K (6, 6) for the columns of b (6, m) into x (6, m).
+
+    Diagonal scaling to a unit diagonal (zero rows and columns left out), then Gaussian elimination with
+    complete pivoting; pivots below :data:`PIVOT` end the elimination and their unknowns are 0. Returns False
+    when a right-hand side has a component beyond :data:`INCONSISTENT` in the directions left out (the load
+    cannot be carried), else True. ``A`` (6, 6), ``y`` (6, m), ``s`` (6,), ``col`` int (6,): work arrays.
+    """
+    n = 6
+    m = b.shape[1]
+    big0 = 0.0
+    big1 = 0.0
+    for i in range(3):
+        big0 = max(big0, K[i, i])
+        big1 = max(big1, K[i + 3, i + 3])
+    for i in range(n):
+        bb = big0 if i < 3 else big1
+        s[i] = 1.0 / np.sqrt(K[i, i]) if K[i, i] > 1e-14 * bb and K[i, i] > 0.0 else 0.0
+    norm0 = 0.0
+    norm1 = 0.0
+    for i in range(n):
+        for j in range(n):
+            A[i, j] = s[i] * K[i, j] * s[j]
+        # A row the section does not resist at all is scaled as its block's stiffest row would be.
+        bb = big0 if i < 3 else big1
+        si = s[i] if s[i] > 0.0 else (1.0 / np.sqrt(bb) if bb > 0.0 else 1.0)
+        for c in range(m):
+            y[i, c] = si * b[i, c]
+        norm0 = max(norm0, abs(y[i, 0]))
+        norm1 = max(norm1, abs(y[i, m - 1]))
+        col[i] = i
+    rank = n
+    for k in range(n):
+        p, q, best = k, k, 0.0
+        for i in range(k, n):
+            for j in range(k, n):
+                if abs(A[i, j]) > best:
+                    best, p, q = abs(A[i, j]), i, j
+        if best <= PIVOT:
+            rank = k
+            break
+        for j in range(n):
+            A[k, j], A[p, j] = A[p, j], A[k, j]
+        for c in range(m):
+            y[k, c], y[p, c] = y[p, c], y[k, c]
+        for i in range(n):
+            A[i, k], A[i, q] = A[i, q], A[i, k]
+        col[k], col[q] = col[q], col[k]
+        for i in range(k + 1, n):
+            f = A[i, k] / A[k, k]
+            if f != 0.0:
+                for j in range(k, n):
+                    A[i, j] -= f * A[k, j]
+                for c in range(m):
+                    y[i, c] -= f * y[k, c]
+    ok = True
+    for i in range(rank, n):
+        if abs(y[i, 0]) > INCONSISTENT * norm0 or abs(y[i, m - 1]) > INCONSISTENT * norm1:
+            ok = False
+    for c in range(m):
+        for i in range(n):
+            x[i, c] = 0.0
+        for k in range(rank - 1, -1, -1):
+            acc = y[k, c]
+            for j in range(k + 1, rank):
+                acc -= A[k, j] * x[col[j], c]
+            x[col[k], c] = acc / A[k, k]
+        for i in range(n):
+            x[i, c] *= s[i]
+    return ok
+
+
+@njit(cache=True, inline="always")
+def ply_stiffness(row, Q, params, d1, d2, out):
+    """Q11, Q12, Q22, Q66 of a ply row with E1 scaled by d1 and E2, G12 by d2 (the table's own when intact)."""
+    if d1 == 1.0 and d2 == 1.0:
+        for a in range(4):
+            out[a] = Q[row, a]
+        return
+    e1 = d1 * params[row, P.E1]
+    e2 = d2 * params[row, P.E2]
+    nu = params[row, P.NU12]
+    if not e1 > 0.0:
+        out[0] = out[1] = out[2] = out[3] = 0.0
+        return
+    den = 1.0 - nu * nu * e2 / e1
+    out[0] = e1 / den
+    out[1] = nu * e2 / den
+    out[2] = e2 / den
+    out[3] = d2 * params[row, P.G12]
+
+
+@njit(cache=True)
+def degraded_section(p0, n, z, cs, alpha, beta, Q, params, share, d1, d2, t, h, K, fixed, q):
+    """[A B; B D] (6, 6) and the thermal and moisture resultants (6,) of the degraded section (in place);
+    ``q`` (4,) a work array."""
+    for a in range(6):
+        fixed[a] = 0.0
+        for b in range(6):
+            K[a, b] = 0.0
+    for k in range(n):
+        row = p0 + k
+        ply_stiffness(row, Q, params, d1[k], d2[k], q)
+        c, s = cs[row, 0], cs[row, 1]
+        cc, ss, cx = c * c, s * s, c * s
+        q11, q12, q22, q66 = q[0], q[1], q[2], q[3]
+        # Q̄ = T Q Tᵀ (docs/conventions.md), order x, y, xy.
+        b11 = q11 * cc * cc + 2.0 * (q12 + 2.0 * q66) * cc * ss + q22 * ss * ss
+        b22 = q11 * ss * ss + 2.0 * (q12 + 2.0 * q66) * cc * ss + q22 * cc * cc
+        b12 = (q11 + q22 - 4.0 * q66) * cc * ss + q12 * (cc * cc + ss * ss)
+        b66 = (q11 + q22 - 2.0 * q12 - 2.0 * q66) * cc * ss + q66 * (cc * cc + ss * ss)
+        b16 = (q11 - q12 - 2.0 * q66) * cc * cx + (q12 - q22 + 2.0 * q66) * ss * cx
+        b26 = (q11 - q12 - 2.0 * q66) * ss * cx + (q12 - q22 + 2.0 * q66) * cc * cx
+        Qb = ((b11, b12, b16), (b12, b22, b26), (b16, b26, b66))
+        zb, zt = z[row, 0], z[row, 2]
+        w1 = share[row] * (zt - zb)
+        w2 = share[row] * (zt * zt - zb * zb) / 2.0
+        w3 = share[row] * (zt * zt * zt - zb * zb * zb) / 3.0
+        # Free strain in laminate axes, ε_xy = T⁻ᵀ ε_12: (α1 c² + α2 s², α1 s² + α2 c², 2 (α1 − α2) c s).
+        f1 = alpha[row, 0] * t + beta[row, 0] * h
+        f2 = alpha[row, 1] * t + beta[row, 1] * h
+        free = (f1 * cc + f2 * ss, f1 * ss + f2 * cc, 2.0 * (f1 - f2) * cx)
+        for a in range(3):
+            nt = 0.0
+            for b in range(3):
+                K[a, b] += w1 * Qb[a][b]
+                K[a, b + 3] += w2 * Qb[a][b]
+                K[a + 3, b + 3] += w3 * Qb[a][b]
+                nt += Qb[a][b] * free[b]
+            fixed[a] += w1 * nt
+            fixed[a + 3] += w2 * nt
+    for a in range(3):
+        for b in range(3):
+            K[b + 3, a] = K[a, b + 3]

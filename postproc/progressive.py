@@ -32,8 +32,8 @@ def fibre_modes(criteria: Sequence[type]) -> np.ndarray:
 
 
 def ply_shares(tables: SectionTables) -> np.ndarray:
-    """Share of each ply row in its layer's stiffness: ``tables.share`` when the tables carry it, else 1."""
-    share = getattr(tables.arrays, "share", None)
+    """Share of each ply row in its ply's stiffness: ``tables.share`` when the tables carry it, else 1."""
+    share = tables.share
     return np.ones(tables.z.shape[0]) if share is None else np.ascontiguousarray(share, dtype=np.float64)
 
 

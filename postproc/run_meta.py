@@ -85,11 +85,15 @@ class PlyInfo:
         Degrees from the laminate's x axis, counter-clockwise about the normal.
     thickness : float
         Length unit of the run.
+    wound : int
+        +1 and −1 for the +angle and −angle fibres of a wound ±angle ply (two recovered plies that share the
+        ply's place and thickness, listed one after the other), 0 for any other ply.
     """
 
     material: str
     angle: float
     thickness: float
+    wound: int = 0
 
 
 @dataclass(frozen=True)
@@ -117,11 +121,24 @@ class SectionInfo:
 
     @property
     def interfaces(self) -> tuple[float, ...]:
-        """z of the ply interfaces, bottom to top (reference surface at 0)."""
+        """z of the ply interfaces, bottom to top (reference surface at 0); the two fibre directions of a wound
+        ply share one ply."""
         z = [self.offset - self.thickness / 2.0]
         for p in self.plies:
-            z.append(z[-1] + p.thickness)
+            if p.wound >= 0:
+                z.append(z[-1] + p.thickness)
         return tuple(z)
+
+    def ply_z(self) -> tuple[tuple[float, float], ...]:
+        """(bottom, top) z of every recovered ply (the order of ``plies`` and of the results' ply axis)."""
+        out, z = [], self.offset - self.thickness / 2.0
+        for p in self.plies:
+            if p.wound < 0:
+                out.append(out[-1])
+                continue
+            out.append((z, z + p.thickness))
+            z += p.thickness
+        return tuple(out)
 
 
 @dataclass(frozen=True)

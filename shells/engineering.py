@@ -96,9 +96,11 @@ def _small(value: float, scale: float) -> bool:
 
 
 def is_symmetric_stack(lam: Laminate) -> bool:
-    """True when ply k and ply n+1−k have the same material, angle and thickness."""
+    """True when ply k and ply n+1−k have the same material, angle and thickness (a wound ±θ layer equals a
+    wound ∓θ one)."""
     plies = lam.plies
-    return all(a.material == b.material and a.angle == b.angle and a.thickness == b.thickness
+    return all(a.material == b.material and a.thickness == b.thickness and a.wound == b.wound
+               and (a.angle == b.angle or (a.wound and a.angle == -b.angle))
                for a, b in zip(plies, reversed(plies)))
 
 

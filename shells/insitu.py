@@ -22,6 +22,7 @@ from __future__ import annotations
 import math
 
 from .laminate import Ply
+from .materials import is_core
 from .ply_defaults import THICK_SHEAR, THICK_TENSION
 
 #: Edge-crack factor of a thin outer ply's transverse tensile in-situ strength (Camanho et al. 2006).
@@ -51,8 +52,7 @@ def insitu_strengths(plies: tuple[Ply, ...]) -> dict[int, tuple[float, float]]:
         if m.kind != "ply" or not m.insitu or m.Yt is None or m.S12 is None:
             continue
         before, after = first - 1, first + count
-        outer = (before < 0 or plies[before].material.kind == "core"
-                 or after >= n or plies[after].material.kind == "core")
+        outer = (before < 0 or is_core(plies[before].material) or after >= n or is_core(plies[after].material))
         t = sum(p.thickness for p in plies[first:first + count])
         yt, s = thin_ply_strengths(m, t, outer)
         if outer:

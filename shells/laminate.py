@@ -7,7 +7,7 @@ reference surface at z = 0 with the laminate mid-plane at ``offset``.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -18,11 +18,28 @@ from .rotation import expansion_to_unrotated, rotate_plane_stiffness, rotate_she
 
 @dataclass(frozen=True)
 class Ply:
-    """One layer of a stack: a material at an angle with a thickness (length unit of the definition)."""
+    """One layer of a stack: a material at an angle with a thickness (length unit of the definition).
+
+    Attributes
+    ----------
+    wound : bool
+        A balanced ±angle layer (filament winding, a ±θ fabric) kept as one homogenised layer: its stiffness
+        is the mean of the +angle and −angle stiffnesses over the whole layer (no bending-twist coupling from
+        splitting it), and its stresses are recovered for both the +angle and the −angle fibres
+        (:attr:`shells.section.Section.rows`).
+    angle_field : str or None
+        The name of a per-cell angle array of the mesh (degrees): the ply's angle in each cell is
+        ``angle_sign`` times its value there (:meth:`Laminate.with_field_angles`); ``angle`` is then unused.
+    angle_sign : float
+        +1 or −1: a −θ ply turns opposite to a +θ ply of the same field.
+    """
 
     material: Material
     angle: float
     thickness: float
+    wound: bool = False
+    angle_field: str | None = None
+    angle_sign: float = 1.0
 
 
 @dataclass(frozen=True)
@@ -59,6 +76,28 @@ class Laminate:
 
     def with_offset(self, offset: float) -> "Laminate":
         return Laminate(self.name, self.plies, offset, self.notation)
+
+    @property
+    def angle_fields(self) -> tuple[str, ...]:
+        """The mesh arrays the ply angles are taken from (empty when every angle is fixed)."""
+        return tuple(dict.fromkeys(p.angle_field for p in self.plies if p.angle_field is not None))
+
+    def with_field_angles(self, values: dict[str, float]) -> "Laminate":
+        """The laminate with each field ply at ``angle_sign`` × the field's value (degrees) in ``values``."""
+        plies = tuple(replace(p, angle=p.angle_sign * float(values[p.angle_field]), angle_field=None, angle_sign=1.0)
+                      if p.angle_field is not None else p for p in self.plies)
+        return Laminate(self.name, plies, self.offset, self.notation)
+
+    @property
+    def rows(self) -> tuple[tuple[int, float], ...]:
+        """(ply index, angle) of every recovered ply, bottom to top: one per ply, and for a wound ply two, its
+        +angle and −angle fibres (in that order), which share the ply's place through the thickness."""
+        out: list[tuple[int, float]] = []
+        for k, p in enumerate(self.plies):
+            out.append((k, p.angle))
+            if p.wound:
+                out.append((k, -p.angle))
+        return tuple(out)
 
 
 @dataclass(frozen=True)
@@ -111,6 +150,7 @@ def ply_arrays(lam: Laminate) -> dict[str, np.ndarray]:
     plies = lam.plies
     return {
         "angle": np.array([p.angle for p in plies], dtype=float),
+        "wound": np.array([p.wound for p in plies], dtype=bool),
         "thickness": np.array([p.thickness for p in plies], dtype=float),
         "Q": np.array([p.material.Q() for p in plies]),
         "G": np.array([np.diag(p.material.G_transverse()) for p in plies]),
@@ -130,14 +170,22 @@ def section_properties(lam: Laminate) -> SectionProperties:
     arr = ply_arrays(lam)
     z = interfaces(arr["thickness"], lam.offset)
     zb, zt = z[:-1], z[1:]
-    Qbar = rotate_plane_stiffness(arr["Q"], arr["angle"])
-    Gbar = rotate_shear_stiffness(arr["G"], arr["angle"])
+    # A wound ply is the mean of its +angle and −angle fibres over its whole thickness (the mean of a value
+    # with itself is exact, so other plies are unchanged).
+    plus, minus = arr["angle"], np.where(arr["wound"], -arr["angle"], arr["angle"])
+    Qp, Qm = rotate_plane_stiffness(arr["Q"], plus), rotate_plane_stiffness(arr["Q"], minus)
+    Qbar = 0.5 * (Qp + Qm)
+    Gbar = 0.5 * (rotate_shear_stiffness(arr["G"], plus) + rotate_shear_stiffness(arr["G"], minus))
     w1, w2, w3 = zt - zb, (zt ** 2 - zb ** 2) / 2.0, (zt ** 3 - zb ** 3) / 3.0
     A = np.einsum("k,kij->ij", w1, Qbar)
     B = np.einsum("k,kij->ij", w2, Qbar)
     D = np.einsum("k,kij->ij", w3, Qbar)
-    qa = np.einsum("kij,kj->ki", Qbar, expansion_to_unrotated(arr["alpha"], arr["angle"]))
-    qb = np.einsum("kij,kj->ki", Qbar, expansion_to_unrotated(arr["beta"], arr["angle"]))
+
+    def mean_product(free):        # Q̄ ᾱ of both fibre directions, averaged
+        return 0.5 * (np.einsum("kij,kj->ki", Qp, expansion_to_unrotated(free, plus))
+                      + np.einsum("kij,kj->ki", Qm, expansion_to_unrotated(free, minus)))
+
+    qa, qb = mean_product(arr["alpha"]), mean_product(arr["beta"])
     return SectionProperties(
         thickness=float(w1.sum()),
         areal_mass=float(np.dot(arr["density"], w1)),

@@ -15,96 +15,16 @@ vector, see :mod:`shells.params`) and ``validate()``.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, fields
+from dataclasses import dataclass
 
 import numpy as np
 
 from . import params as P
 from . import ply_defaults as defaults
 from .errors import MaterialError
+from .layer import _Layer, _fill, _require_positive
 from .ply_defaults import StrainLimits
 
-
-def _require_positive(material: str, **values: float | None) -> None:
-    for key, value in values.items():
-        if value is not None and not (value > 0 and math.isfinite(value)):
-            raise MaterialError(
-                f"material '{material}': {key} = {value!r} must be a positive finite number; fix the value")
-
-
-def _fill(vec: np.ndarray, **values: float | None) -> None:
-    for key, value in values.items():
-        if value is not None:
-            vec[P.INDEX[key]] = value
-
-
-@dataclass(frozen=True)
-class _Layer:
-    """Fields and behaviour shared by every layer material."""
-
-    name: str
-    density: float = 0.0
-    thickness: float | None = None
-    knockdown: float = 1.0
-    #: The factors whose product is ``knockdown``, as (name, factor) pairs (empty when given as one number).
-    knockdown_factors: tuple[tuple[str, float], ...] = ()
-    #: The environment factor by environment name, as (name, factor) pairs, when given as a table; ``knockdown``
-    #: then holds the smallest of them (the factor of a case that names no environment).
-    environment_knockdowns: tuple[tuple[str, float], ...] = ()
-    #: Where the values come from (a data sheet, a test report), shown in the report; not used in any calculation.
-    source: str | None = None
-    description: str | None = None
-
-    def alpha(self) -> np.ndarray:
-        return np.zeros(3)
-
-    def beta(self) -> np.ndarray:
-        return np.zeros(3)
-
-    def _base_params(self, kind: int) -> np.ndarray:
-        vec = np.full(P.NPARAM, np.nan)
-        vec[P.KIND] = kind
-        return vec
-
-    def knockdown_for(self, environment: str | None) -> float:
-        """The knockdown of a case checked in ``environment`` (None: the default, ``knockdown``).
-
-        With an environment table, the other factors times the table's factor for ``environment``; with none,
-        ``knockdown`` (a number for the environment stands for every environment).
-
-        Raises
-        ------
-        MaterialError
-            The table has no factor for ``environment``.
-        """
-        if environment is None or not self.environment_knockdowns:
-            return self.knockdown
-        table = dict(self.environment_knockdowns)
-        if environment not in table:
-            raise MaterialError(f"material '{self.name}': knockdown.environment has no factor for environment "
-                                f"'{environment}' (it lists {', '.join(table)}); add {environment} = ... to it")
-        return self.knockdown / min(table.values()) * table[environment]
-
-    def _validate_common(self) -> None:
-        if self.density < 0 or not math.isfinite(self.density):
-            raise MaterialError(f"material '{self.name}': density = {self.density!r} must be zero or positive")
-        _require_positive(self.name, thickness=self.thickness)
-        if not (0 < self.knockdown <= 1):
-            raise MaterialError(
-                f"material '{self.name}': knockdown = {self.knockdown!r} must lie in (0, 1]; it is the "
-                "fraction of strength retained (product of environment and damage factors)")
-        for env, factor in self.environment_knockdowns:
-            if not (0 < factor <= 1):
-                raise MaterialError(f"material '{self.name}': knockdown.environment.{env} = {factor!r} must lie in "
-                                    "(0, 1]; it is the fraction of strength retained in that environment")
-
-    def strength_keys(self) -> tuple[str, ...]:
-        """Names of the strength entries this material defines (for error messages)."""
-        return tuple(f.name for f in fields(self) if f.name in P.INDEX and f.name not in _ELASTIC
-                     and getattr(self, f.name) is not None)
-
-
-_ELASTIC = {"E1", "E2", "G12", "nu12", "G13", "G23", "Ez"}
 
 @dataclass(frozen=True)
 class Orthotropic(_Layer):
@@ -266,7 +186,7 @@ class Orthotropic(_Layer):
 
 @dataclass(frozen=True)
 class Isotropic(_Layer):
-    """An isotropic layer: metal sheet, adhesive film, balsa taken as isotropic.
+    """An isotropic layer: metal sheet, adhesive film (wood is orthotropic: :class:`shells.wood.Wood`).
 
     Parameters
     ----------
@@ -327,58 +247,12 @@ class Isotropic(_Layer):
         return vec
 
 
-@dataclass(frozen=True)
-class Core(_Layer):
-    """A honeycomb or foam core layer.
-
-    Parameters
-    ----------
-    G13, G23 : float
-        Transverse shear moduli: 13 in the ribbon (L) direction, 23 in the
-        transverse (W) direction of a honeycomb; equal for a foam.
-    Ez : float, optional
-        Through-thickness (flatwise) modulus, used by face wrinkling.
-    E1, E2 : float
-        In-plane moduli, default 0 (a honeycomb carries no in-plane load).
-    S13, S23 : float, optional
-        Core shear strengths in the ribbon and transverse directions.
-    Zc : float, optional
-        Flatwise compressive (crushing) strength.
-    cell_size : float, optional
-        Honeycomb cell size (inscribed circle diameter), used by intracell
-        dimpling of the adjacent faces.
-    """
-
-    G13: float = 0.0
-    G23: float = 0.0
-    Ez: float | None = None
-    E1: float = 0.0
-    E2: float = 0.0
-    S13: float | None = None
-    S23: float | None = None
-    Zc: float | None = None
-    cell_size: float | None = None
-    kind = "core"
-
-    def Q(self) -> np.ndarray:
-        return np.diag([self.E1, self.E2, 0.0])
-
-    def G_transverse(self) -> tuple[float, float]:
-        return self.G13, self.G23
-
-    def validate(self) -> "Core":
-        self._validate_common()
-        _require_positive(self.name, G13=self.G13, G23=self.G23, Ez=self.Ez, S13=self.S13,
-                          S23=self.S23, Zc=self.Zc, cell_size=self.cell_size)
-        if self.E1 < 0 or self.E2 < 0:
-            raise MaterialError(f"material '{self.name}': in-plane moduli E1, E2 of a core must not be negative")
-        return self
-
-    def params(self) -> np.ndarray:
-        vec = self._base_params(P.KIND_CORE)
-        _fill(vec, E1=self.E1, E2=self.E2, G12=0.0, nu12=0.0, G13=self.G13, G23=self.G23, Ez=self.Ez,
-              core_S13=self.S13, core_S23=self.S23, Zc=self.Zc)
-        return vec
+def is_core(material) -> bool:
+    """Whether a layer acts as a sandwich core (a core, or wood with its grain along the normal)."""
+    return material.kind == "core" or getattr(material, "acts_as", None) == "core"
 
 
-Material = Orthotropic | Isotropic | Core
+from .cores import Core  # noqa: E402
+from .wood import Wood  # noqa: E402  (a wood layer maps onto an orthotropic ply or a core)
+
+Material = Orthotropic | Isotropic | Core | Wood

@@ -27,18 +27,19 @@ NAMES = (
     "wrinkling", "dimpling",   # sandwich face allowables (compressive stress), set per ply
     "ilss",                    # interlaminar shear strength at this ply's faces
     "S_T",                     # transverse shear strength of Hashin's matrix modes: S23, else the fracture-plane value
+    "Zt",                      # flatwise (through-thickness) tensile strength of a core
 )
 
 KIND, E1, E2, G12, NU12, G13, G23, EZ, XT, XC, YT, YC, S12, S13, S23, ZC, \
     STRAIN_FT, STRAIN_FC, STRAIN_MT, STRAIN_MC, STRAIN_SH, YIELD, CORE_S13, CORE_S23, F12STAR, P_TPL, \
-    P_CPL, ALPHA0, YT_IS, S12_IS, WRINKLING, DIMPLING, ILSS, S_T = range(len(NAMES))
+    P_CPL, ALPHA0, YT_IS, S12_IS, WRINKLING, DIMPLING, ILSS, S_T, ZT = range(len(NAMES))
 
 NPARAM = len(NAMES)
 
 #: The allowables: strengths, strain limits and the face, core and interlaminar allowables. A material's
 #: knockdown multiplies these (and nothing else: moduli, Poisson ratios and criterion parameters stay).
 ALLOWABLES = (XT, XC, YT, YC, S12, S13, S23, ZC, STRAIN_FT, STRAIN_FC, STRAIN_MT, STRAIN_MC, STRAIN_SH, YIELD,
-              CORE_S13, CORE_S23, YT_IS, S12_IS, WRINKLING, DIMPLING, ILSS, S_T)
+              CORE_S13, CORE_S23, YT_IS, S12_IS, WRINKLING, DIMPLING, ILSS, S_T, ZT)
 INDEX = {name: i for i, name in enumerate(NAMES)}
 
 KIND_PLY, KIND_ISOTROPIC, KIND_CORE = 0, 1, 2

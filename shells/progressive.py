@@ -269,7 +269,8 @@ def progressive_block(sec, share, kappa, codes, masks, fibre_mode, retained, blk
                         status[k] = 2
                         d1[k] *= retained[1]
                         d2[k] *= retained[1]
-                        fibre_failed += 1
+                        if params[p0 + k, P.KIND] != P.KIND_CORE:
+                            fibre_failed += 1
                     else:
                         status[k] = 1
                         d2[k] *= retained[0]

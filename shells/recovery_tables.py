@@ -46,6 +46,9 @@ class SectionTables:
 
     arrays: SectionArrays
     names: tuple[str, ...] = field(default=())
+    #: Share of each row in the stiffness of its ply (1; ½ for each fibre direction of a wound ±angle ply);
+    #: None: every row its own ply.
+    share: np.ndarray | None = None
 
     def __getattr__(self, name: str):
         if name in SectionArrays._fields:
@@ -63,7 +66,7 @@ def build_tables(sections: Sequence[Section], names: Sequence[str] = (),
 
     ``environment`` chooses the knockdown of the allowables (:meth:`shells.section.Section.params_for`).
     """
-    comp, fixed, first, nply = [], [], [], []
+    comp, fixed, first, nply, shares = [], [], [], [], []
     face_first, face_count, face_rows = [], [], []
     rows: dict[str, list] = {k: [] for k in ("z", "Q", "cs", "alpha", "beta", "F")}
     row = 0
@@ -72,21 +75,25 @@ def build_tables(sections: Sequence[Section], names: Sequence[str] = (),
         comp.append(np.linalg.inv(sp.ABD))
         fixed.append(np.stack([sp.NT, sp.MT, sp.NH, sp.MH]))
         first.append(row)
-        nply.append(sec.n_plies)
+        nply.append(sec.n_rows)
+        layer = np.array([k for k, _ in sec.rows], dtype=np.int64)
+        start = {k: r for r, k in reversed(list(enumerate(layer)))}      # first row of each ply
         face_first.append(len(face_rows))
         face_count.append(len(sec.faces))
-        face_rows.extend([row + run[0], len(run)] for run in sec.faces)
-        row += sec.n_plies
+        face_rows.extend([row + start[run[0]], int(np.isin(layer, run).sum())] for run in sec.faces)
+        row += sec.n_rows
         z, F = _without_roundoff(sec)
-        rows["z"].append(z)
-        for ply in sec.laminate.plies:
+        rows["z"].append(z[layer])
+        for k, angle in sec.rows:
+            ply = sec.laminate.plies[k]
             Q = ply.material.Q()
             rows["Q"].append([Q[0, 0], Q[0, 1], Q[1, 1], Q[2, 2]])
-            t = np.radians(ply.angle)
+            t = np.radians(angle)
             rows["cs"].append([np.cos(t), np.sin(t)])
             rows["alpha"].append(ply.material.alpha()[:2])
             rows["beta"].append(ply.material.beta()[:2])
-        rows["F"].append(F)
+            shares.append(0.5 if ply.wound else 1.0)
+        rows["F"].append(F[layer])
 
     def arr(x, dtype=np.float64):
         return np.ascontiguousarray(np.asarray(x, dtype=dtype))
@@ -100,7 +107,7 @@ def build_tables(sections: Sequence[Section], names: Sequence[str] = (),
         params=params, face_first=arr(face_first, np.int64),
         face_count=arr(face_count, np.int64), face_rows=arr(np.reshape(face_rows, (-1, 2)), np.int64),
         face_params=face_params,
-    ), tuple(names))
+    ), tuple(names), None if all(x == 1.0 for x in shares) else arr(shares))
 
 
 def environment_params(sections: Sequence[Section], environment: str | None = None) -> tuple[np.ndarray, np.ndarray]:
@@ -109,7 +116,7 @@ def environment_params(sections: Sequence[Section], environment: str | None = No
     ply, face = [np.zeros((0, P.NPARAM))], [np.zeros((0, P.NPARAM))]
     for sec in sections:
         p, f = sec.params_for(environment)
-        ply.append(p)
+        ply.append(p[[k for k, _ in sec.rows]])
         face.append(f)
     return (np.ascontiguousarray(np.concatenate(ply), dtype=np.float64),
             np.ascontiguousarray(np.concatenate(face), dtype=np.float64))

@@ -14,6 +14,7 @@ from .errors import LayupError
 from .engineering import engineering_constants, flags
 from .insitu import insitu_strengths
 from .laminate import Laminate, Ply, SectionProperties, section_properties
+from .materials import is_core as acts_as_core
 from .sandwich import dimpling_stress, weakest_membrane_modulus, wrinkling_stress
 from .shear import PLY_POINTS, equilibrium_shear_stiffness, factor_shear_stiffness, shear_distribution
 
@@ -63,7 +64,18 @@ class Section:
 
     @property
     def n_plies(self) -> int:
+        """Plies of the laminate (a wound ±angle ply counts once)."""
         return len(self.laminate.plies)
+
+    @property
+    def rows(self) -> tuple[tuple[int, float], ...]:
+        """(ply index, angle) of every recovered ply (:attr:`shells.laminate.Laminate.rows`): results are given
+        per row; a wound ply has two, its +angle and −angle fibres."""
+        return self.laminate.rows
+
+    @property
+    def n_rows(self) -> int:
+        return len(self.rows)
 
     def params_for(self, environment: str | None) -> tuple[np.ndarray, np.ndarray]:
         """(ply_params, face_params) with each ply's knockdown for ``environment`` (None: the default one).
@@ -82,8 +94,8 @@ class Section:
             "thickness": sp.thickness,
             "areal_mass": sp.areal_mass,
             "offset": self.laminate.offset,
-            "plies": [{"material": p.material.name, "angle": p.angle, "thickness": p.thickness}
-                      for p in self.laminate.plies],
+            "plies": [{"material": p.material.name, "angle": p.angle, "thickness": p.thickness,
+                       **({"wound": True} if p.wound else {})} for p in self.laminate.plies],
             "z": sp.z.tolist(),
             "A": sp.A.tolist(), "B": sp.B.tolist(), "D": sp.D.tolist(),
             "H": self.H.tolist(),
@@ -97,7 +109,7 @@ class Section:
 
 def _faces(plies: tuple[Ply, ...]) -> dict[tuple[int, ...], list[int]]:
     """Runs of non-core plies that touch a core: ply indices of the face → indices of the cores it touches."""
-    is_core = [p.material.kind == "core" for p in plies]
+    is_core = [acts_as_core(p.material) for p in plies]
     out: dict[tuple[int, ...], list[int]] = {}
     for c, core in enumerate(is_core):
         if not core:

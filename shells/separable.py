@@ -26,7 +26,9 @@ _STRAIN_PLY = {"fibre tension": ("strain_fibre_tension",), "fibre compression": 
 #: Criterion → material kind → mode → the allowables (:mod:`shells.params` names) that mode alone reads.
 MODE_ALLOWABLES: dict[str, dict[int, dict[str, tuple[str, ...]]]] = {
     "max-stress": {P.KIND_PLY: _STRESS_PLY,
-                   P.KIND_ISOTROPIC: {"tension": ("Xt", "Yt"), "compression": ("Xc", "Yc"), "shear": ("S12",)}},
+                   P.KIND_ISOTROPIC: {"tension": ("Xt", "Yt"), "compression": ("Xc", "Yc"), "shear": ("S12",)},
+                   P.KIND_CORE: {"in-plane tension": ("Xt", "Yt"), "in-plane compression": ("Xc", "Yc"),
+                                 "in-plane shear": ("S12",)}},
     "max-strain": {P.KIND_PLY: _STRAIN_PLY},
 }
 

@@ -41,3 +41,25 @@ Yt = 40
 Yc = 246
 S12 = 68
 """
+
+
+def recover_once(tmp_path, definition: str, R, mesh=None, names=None, name: str = "o.h5",
+                 store_plies: bool = False):
+    """Write ``mesh`` (default a 3 × 2 flat plate), resultants ``R`` (ncase, 1 or ncell, 8) broadcast over its
+    cells and ``definition``; run ``recover`` in-process. Returns (summary, store path)."""
+    import numpy as np
+
+    from bridge.mesh.formats import write_mesh
+    from bridge.recover.resultants import write_resultants_h5
+    from bridge.recover.run import run_recover
+    from tests.meshes import flat_plate
+
+    mesh = mesh or flat_plate(3, 2)
+    write_mesh(tmp_path / "m.vtu", mesh)
+    names = names or [f"s{k + 1}" for k in range(R.shape[0])]
+    write_resultants_h5(tmp_path / "r.h5", names, np.broadcast_to(R, (R.shape[0], mesh.n_cells, 8)).copy())
+    (tmp_path / "d.toml").write_text(definition, encoding="utf-8")
+    out = tmp_path / name
+    summary = run_recover(str(tmp_path / "d.toml"), str(tmp_path / "m.vtu"), [str(tmp_path / "r.h5")], str(out),
+                          store_plies=store_plies)
+    return summary, out

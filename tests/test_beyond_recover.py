@@ -11,26 +11,16 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from bridge.mesh.formats import write_mesh
-from bridge.recover.resultants import write_resultants_h5
-from bridge.recover.run import run_recover
 from bridge.results.store import StoreReader
 from shells.errors import InputError
-from tests.common import KAW_PLY_TOML
+from tests.common import KAW_PLY_TOML, recover_once
 from tests.meshes import flat_plate
 
 XT, YT, E1 = 1500.0, 40.0, 181e3
 
 
 def _recover(tmp_path, definition: str, R: np.ndarray, mesh=None, names=None, name="o.h5"):
-    mesh = mesh or flat_plate(3, 2)
-    write_mesh(tmp_path / "m.vtu", mesh)
-    names = names or [f"s{k + 1}" for k in range(R.shape[0])]
-    write_resultants_h5(tmp_path / "r.h5", names, np.broadcast_to(R, (R.shape[0], mesh.n_cells, 8)).copy())
-    (tmp_path / "d.toml").write_text(definition, encoding="utf-8")
-    out = tmp_path / name
-    summary = run_recover(str(tmp_path / "d.toml"), str(tmp_path / "m.vtu"), [str(tmp_path / "r.h5")], str(out))
-    return summary, out
+    return recover_once(tmp_path, definition, R, mesh, names, name)
 
 
 def _nx(value: float) -> np.ndarray:

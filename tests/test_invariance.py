@@ -30,7 +30,10 @@ PLY = Orthotropic("ply", E1=181e3, E2=10.3e3, G12=7.17e3, nu12=0.28, G23=3.5e3, 
 ISO = Isotropic("iso", E=70e3, nu=0.33, cte=23e-6, yield_strength=300, Xt=420, Xc=400, S12=250,
                 ilss=40).validate()
 CORE = Core("core", G13=40.0, G23=25.0, Ez=140.0, S13=1.2, S23=0.7, Zc=2.4, cell_size=3.2).validate()
-LAYER = {P.KIND_PLY: PLY, P.KIND_ISOTROPIC: ISO, P.KIND_CORE: CORE}
+#: A core with in-plane stiffness and strengths (an orthotropic foam or end-grain wood), under test itself.
+SOLID_CORE = Core("solid core", G13=40.0, G23=25.0, Ez=140.0, E1=120.0, E2=80.0, G12=30.0, nu12=0.3, S13=1.2,
+                  S23=0.7, Zc=2.4, Zt=1.9, Xt=2.5, Xc=2.2, Yt=1.6, Yc=1.5, S12=0.9, cell_size=3.2).validate()
+LAYER = {P.KIND_PLY: PLY, P.KIND_ISOTROPIC: ISO, P.KIND_CORE: SOLID_CORE}
 
 CASES = [(c, kind) for c in CRITERIA for kind in c.requires]
 IDS = [f"{c.name}-{P.KIND_NAMES[k]}" for c, k in CASES]
@@ -40,7 +43,8 @@ LOAD = np.array([60.0, -35.0, 20.0, 8.0, -5.0, 3.0, 4.0, -2.5])
 def _stack(kind, angles):
     """Layers under test around a core (faces for wrinkling / dimpling); a core is tested between metal faces."""
     if kind == P.KIND_CORE:
-        return Laminate("s", (Ply(ISO, angles[0], 0.8), Ply(CORE, angles[1], 6.0), Ply(ISO, angles[2], 0.8))), [1]
+        return Laminate("s", (Ply(ISO, angles[0], 0.8), Ply(SOLID_CORE, angles[1], 6.0),
+                              Ply(ISO, angles[2], 0.8))), [1]
     x = LAYER[kind]
     return Laminate("s", (Ply(x, angles[0], 0.5), Ply(CORE, angles[1], 6.0), Ply(x, angles[2], 0.5))), [0, 2]
 

@@ -18,7 +18,7 @@ from postproc.compare import Comparison, MetricAccumulator, ScaleAccumulator, re
 from postproc.compare_summary import comparison_summary
 from postproc.diagnose import ZoneData, diagnose
 from shells.defaults import CAUTION
-from shells.errors import InputError, ResultantsError
+from shells.errors import DefinitionError, InputError, ResultantsError
 from shells.recovery_tables import build_tables
 
 from bridge.atomic import atomic_h5, atomic_path
@@ -78,6 +78,11 @@ def load_inputs(definition: str, mesh_path: str, resultants: Sequence[str],
     """Open every input once (errors are :class:`shells.errors.InputError`); values are read by blocks later."""
     defn = load_definition(definition)
     model = build_model(defn, read_mesh(mesh_path))
+    wound = [n for n, s in zip(model.section_names, model.sections) if s.n_rows != s.n_plies]
+    if wound:
+        raise DefinitionError(f"laminate '{wound[0]}' has a wound ±angle ply, which a solver gives as one layer and "
+                              "plybridge as its two fibre directions; compare does not match them: compare "
+                              "laminates without wound plies", defn.source)
     source = ResultantSource.of_model(list(resultants), model)
     plan = plan_cases(defn, model, source.names)
     solver = SolverPlySource(list(solver_plies), model, plan.names)

@@ -5,7 +5,9 @@ A laminate is given either by a stacking sequence (``layup`` with a default
 ``plies`` list of ``{material, angle, thickness}`` tables, bottom to top.
 A ply's thickness is, in order of precedence: its ``@t`` override in the
 layup (or its own ``thickness``), the laminate's ``thickness``, the material's
-``thickness``.
+``thickness``. In a ``plies`` list a ply may be ``wound = true`` (a balanced ±angle
+layer kept as one homogenised layer) and its angle may come from a per-cell array
+of the mesh, ``angle = { field = "NAME", sign = -1 }``.
 """
 
 from __future__ import annotations
@@ -22,7 +24,28 @@ from bridge.definition.units import UnitSystem
 
 SPEC = {"layup": "str", "material": "str", "thickness": "length", "plies": "any", "description": "str",
         "offset": "length"}
-PLY_SPEC = {"material": "str", "angle": "angle", "thickness": "length"}
+PLY_SPEC = {"material": "str", "angle": "any", "thickness": "length", "wound": "bool"}
+ANGLE_FIELD_KEYS = ("field", "sign")
+
+
+def _angle(value: Any, at: str, units: UnitSystem) -> tuple[float, str | None, float]:
+    """(angle, field, sign) of a ply list entry: a fixed angle, or ``{ field = "NAME", sign = ±1 }``."""
+    from bridge.definition.schema import check_keys
+    from bridge.definition.units import convert
+
+    if isinstance(value, Mapping):
+        check_keys(value, ANGLE_FIELD_KEYS, f"{at}.angle", required=("field",))
+        name, sign = value["field"], value.get("sign", 1)
+        if not isinstance(name, str) or not name:
+            raise DefinitionError(f"{at}.angle.field must name a per-cell angle array of the mesh (degrees)")
+        if isinstance(sign, bool) or sign not in (1, -1):
+            raise DefinitionError(f"{at}.angle.sign = {sign!r}; use 1 or -1 (a -θ ply turns opposite to +θ)")
+        return 0.0, name, float(sign)
+    angle = convert(value, "angle", units, f"{at}.angle")
+    if not abs(angle) <= MAX_ANGLE:
+        raise DefinitionError(f"{at}.angle = {angle:g}° is more than {MAX_ANGLE:g} degrees; "
+                              "give the ply angle in degrees between -360 and 360")
+    return angle, None, 1.0
 
 
 def _material(name: str | None, materials: Mapping[str, Material], where: str) -> Material:
@@ -69,11 +92,13 @@ def parse_laminate(name: str, table: Mapping[str, Any], materials: Mapping[str, 
         for k, entry in enumerate(entries, start=1):
             at = f"{where}.plies[{k}]"
             ply = take(expect_table(entry, at), PLY_SPEC, at, units, required=("angle",))
-            if not abs(ply["angle"]) <= MAX_ANGLE:
-                raise DefinitionError(f"{at}.angle = {ply['angle']:g}° is more than {MAX_ANGLE:g} degrees; "
-                                      "give the ply angle in degrees between -360 and 360")
+            angle, field, sign = _angle(ply["angle"], at, units)
             mat = _material(ply.get("material", default_material), materials, at)
-            plies.append(Ply(mat, ply["angle"], _thickness(ply.get("thickness"), default_t, mat, at)))
+            wound = ply.get("wound", False)
+            if wound and mat.kind not in ("ply", "wood"):
+                raise DefinitionError(f"{at}: a wound ±angle ply needs an orthotropic material; '{mat.name}' is "
+                                      f"{mat.kind}")
+            plies.append(Ply(mat, angle, _thickness(ply.get("thickness"), default_t, mat, at), wound, field, sign))
     return Laminate(name, tuple(plies), values.get("offset", 0.0), values.get("layup"))
 
 

@@ -6,7 +6,7 @@ from dataclasses import fields
 from typing import Any, Mapping
 
 from shells.errors import DefinitionError, MaterialError
-from shells.materials import Core, Isotropic, Material, Orthotropic
+from shells.materials import Core, Isotropic, Material, Orthotropic, Wood
 from shells.ply_defaults import StrainLimits
 
 from bridge.definition.ranges import check_material_values
@@ -32,13 +32,19 @@ SPECS: dict[str, dict[str, str]] = {
         "yield_strength": S, "Xt": S, "Xc": S, "S12": S, "ilss": S,
     },
     "core": {
-        **_COMMON, "G13": S, "G23": S, "Ez": S, "E1": S, "E2": S, "S13": S, "S23": S, "Zc": S,
-        "cell_size": L,
+        **_COMMON, "G13": S, "G23": S, "Ez": S, "E1": S, "E2": S, "G12": S, "nu12": D, "S13": S, "S23": S,
+        "Zc": S, "Zt": S, "Xt": S, "Xc": S, "Yt": S, "Yc": S, "S12": S, "cell_size": L,
+    },
+    "wood": {
+        **_COMMON, "grain": "str", "E_L": S, "E_R": S, "E_T": S, "G_LR": S, "G_LT": S, "G_RT": S,
+        "nu_LR": D, "nu_LT": D, "nu_RT": D, "tension_parallel": S, "compression_parallel": S,
+        "tension_perpendicular": S, "compression_perpendicular": S, "shear_parallel": S, "rolling_shear": S,
     },
 }
-REQUIRED = {"ply": ("E1", "E2", "G12", "nu12"), "isotropic": ("E", "nu"), "core": ("G13", "G23")}
+REQUIRED = {"ply": ("E1", "E2", "G12", "nu12"), "isotropic": ("E", "nu"), "core": ("G13", "G23"),
+            "wood": ("grain", "E_L", "E_R", "E_T", "G_LR", "G_LT", "G_RT", "nu_LR", "nu_LT", "nu_RT")}
 _RENAME = {"isotropic": {"alpha": "cte", "beta": "cme"}, "ply": {"alpha0": "alpha0_deg"}}
-_CLASSES = {"ply": Orthotropic, "isotropic": Isotropic, "core": Core}
+_CLASSES = {"ply": Orthotropic, "isotropic": Isotropic, "core": Core, "wood": Wood}
 KNOCKDOWN_KEYS = ("environment", "damage", "other")
 #: Strain-limit keys of earlier versions, refused with a pointer to the strain_limits table.
 OLD_STRAIN_KEYS = ("e1t", "e1c", "e2t", "e2c", "g12u")

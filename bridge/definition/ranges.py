@@ -108,6 +108,21 @@ _NU23 = Range("dimensionless", 0.0, 0.95, 0.4, "0–0.95", "a transverse Poisson
               "matrix-dominated ν23 of plies is 0.3–0.6", usual=(0.2, 0.7))
 _NU_ISO = Range("dimensionless", 0.0, 0.499, 0.3, "0–0.499", "a Poisson's ratio",
                 "engineering metals and polymers 0.2–0.45 (auxetic layers are exotic)", usual=(0.1, 0.49))
+_WOOD_ALONG = Range("stress", 0.3 * GPA, 40 * GPA, 10 * GPA, "0.3–40 GPa", "a wood modulus along the grain",
+                    "from light balsa (about 1 GPa) to dense hardwoods (about 20 GPa)")
+_WOOD_ACROSS = Range("stress", 5 * MPA, 5 * GPA, 500 * MPA, "5 MPa–5 GPa", "a wood modulus across the grain",
+                     "radial and tangential moduli are 1–10 % of the modulus along the grain")
+_WOOD_SHEAR = Range("stress", 1 * MPA, 3 * GPA, 300 * MPA, "1 MPa–3 GPa", "a wood shear modulus",
+                    "from the rolling shear of balsa (some MPa) to the LR shear of hardwoods (about 1.5 GPa)")
+_WOOD_NU = Range("dimensionless", 0.0, 0.95, 0.4, "0–0.95", "a wood Poisson's ratio",
+                 "measured ratios of woods are 0.01–0.8 (the radial-tangential ratio is the largest)")
+_WOOD_STRENGTH = Range("stress", 0.05 * MPA, 500 * MPA, 20 * MPA, "0.05–500 MPa", "a wood strength",
+                       "from the tension across the grain of balsa (under 1 MPa) to the tension along the grain of "
+                       "dense hardwoods (about 200 MPa)")
+_WOOD_DENSITY = Range("density", 40.0, 1400.0, 500.0, "40–1400 kg/m³", "a wood density",
+                      "from the lightest balsa (about 60 kg/m³) to lignum vitae (about 1300 kg/m³)", zero_ok=True)
+_CORE_NU = Range("dimensionless", 0.0, 0.95, 0.3, "0–0.95", "a core in-plane Poisson's ratio",
+                 "foams 0.2–0.4, end-grain wood up to about 0.7")
 _FRACTURE_ANGLE = Range("angle", 30.0, 80.0, 53.0, "30–80°", "a fracture angle",
                         "measured fracture angles under transverse compression are 50–56°")
 _TOUGHNESS = Range("force_per_length", 20.0, 10000.0, 500.0, "20 J/m²–10 kJ/m² (0.02–10 N/mm)",
@@ -150,8 +165,16 @@ RANGES: dict[str, dict[str, Range]] = {
     },
     "core": {
         "density": _CORE_DENSITY, "knockdown": _KNOCKDOWN, "thickness": _CORE_THICKNESS, "G13": _CORE_SHEAR,
-        "G23": _CORE_SHEAR, "Ez": _CORE_MODULUS, "E1": _CORE_MODULUS, "E2": _CORE_MODULUS,
-        **{k: _CORE_STRENGTH for k in ("S13", "S23", "Zc")}, "cell_size": _CELL_SIZE,
+        "G23": _CORE_SHEAR, "Ez": _CORE_MODULUS, "E1": _CORE_MODULUS, "E2": _CORE_MODULUS, "G12": _CORE_SHEAR,
+        "nu12": _CORE_NU, **{k: _CORE_STRENGTH for k in ("S13", "S23", "Zc", "Zt", "Xt", "Xc", "Yt", "Yc", "S12")},
+        "cell_size": _CELL_SIZE,
+    },
+    "wood": {
+        "density": _WOOD_DENSITY, "knockdown": _KNOCKDOWN, "thickness": _CORE_THICKNESS, "E_L": _WOOD_ALONG,
+        "E_R": _WOOD_ACROSS, "E_T": _WOOD_ACROSS, **{k: _WOOD_SHEAR for k in ("G_LR", "G_LT", "G_RT")},
+        **{k: _WOOD_NU for k in ("nu_LR", "nu_LT", "nu_RT")},
+        **{k: _WOOD_STRENGTH for k in ("tension_parallel", "compression_parallel", "tension_perpendicular",
+                                       "compression_perpendicular", "shear_parallel", "rolling_shear")},
     },
 }
 #: ``[analysis]`` values that enter a criterion.

@@ -33,12 +33,20 @@ def zone_offset(defn: Definition, zone) -> float:
     return float(defn.laminates[zone.laminate].offset)
 
 
-def section_of(defn: Definition, name: str, offset: float | None = None) -> Section:
+def section_of(defn: Definition, name: str, offset: float | None = None,
+               angles: dict[str, float] | None = None) -> Section:
     """Build the section of laminate ``name`` with the definition's analysis settings.
 
-    ``offset`` replaces the laminate's own offset when given (see :func:`zone_offset`).
+    ``offset`` replaces the laminate's own offset when given (see :func:`zone_offset`); ``angles`` gives the
+    value (degrees) of each angle field the laminate's plies take their angles from.
     """
     lam = defn.laminates[name]
+    if lam.angle_fields:
+        if angles is None:
+            raise DefinitionError(f"laminate '{name}' takes ply angles from the mesh field(s) "
+                                  f"{', '.join(lam.angle_fields)}: its section depends on the cell; see it "
+                                  "through assign or recover with a mesh", defn.source)
+        lam = lam.with_field_angles(angles)
     if offset is not None:
         lam = lam.with_offset(offset)
     a = defn.analysis
@@ -49,4 +57,5 @@ def section_of(defn: Definition, name: str, offset: float | None = None) -> Sect
 
 
 def build_sections(defn: Definition, names: Iterable[str]) -> dict[str, Section]:
+    """Sections of the named laminates (a laminate whose angles come from a mesh field is refused)."""
     return {name: section_of(defn, name) for name in names}

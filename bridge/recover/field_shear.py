@@ -47,7 +47,7 @@ def field_plan(model) -> FieldPlan:
     mesh = model.mesh
     nb = edge_neighbours(mesh.corners(), model.zone)
     stencil = build_stencil(nb, mesh.centroids(), model.frame_x, model.frame_y, model.phi)
-    G = np.concatenate([gradient_shear_matrix(s.props) for s in model.sections])
+    G = np.concatenate([gradient_shear_matrix(s.props)[[k for k, _ in s.rows]] for s in model.sections])
     return FieldPlan(stencil, np.ascontiguousarray(G))
 
 

@@ -57,7 +57,9 @@ def section_info(i: int, name: str, sec) -> SectionInfo:
     lam = sec.laminate
     return SectionInfo(
         id=i, name=name, laminate=lam.name,
-        plies=tuple(PlyInfo(p.material.name, float(p.angle), float(p.thickness)) for p in lam.plies),
+        plies=tuple(PlyInfo(lam.plies[k].material.name, float(angle), float(lam.plies[k].thickness),
+                            (1 if r == 0 or lam.rows[r - 1][0] != k else -1) if lam.plies[k].wound else 0)
+                    for r, (k, angle) in enumerate(lam.rows)),
         thickness=float(s["thickness"]), offset=float(lam.offset), areal_mass=float(s["areal_mass"]),
         layup=lam.notation, shear_method=sec.shear_method,
         membrane=tuple(Named(k, float(v)) for k, v in s["membrane"]["restrained"].items()),

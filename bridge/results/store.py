@@ -228,6 +228,8 @@ def section_tables(tables, sections) -> dict[str, np.ndarray]:
         In section-id order.
     """
     out = {name: np.asarray(value) for name, value in tables.arrays._asdict().items()}
+    if tables.share is not None:
+        out["share"] = np.asarray(tables.share)
     for name in ("A", "B", "D"):
         out[name] = np.array([getattr(s.props, name) for s in sections])
     out["H"] = np.array([s.H for s in sections])
@@ -325,7 +327,7 @@ class StoreReader:
         g = self.h5["sections"]
         names = tuple(s.name for s in self.run.sections)
         return SectionTables(SectionArrays(*(np.ascontiguousarray(g[name][()]) for name in SectionArrays._fields)),
-                             names=names)
+                             names=names, share=g["share"][()] if "share" in g else None)
 
     def section_matrix(self, name: str, section: int) -> np.ndarray:
         """A, B, D (3, 3) or H (2, 2) of a section, laminate axes."""

@@ -6,6 +6,9 @@ Statement (common practice; e.g. Kaw, *Mechanics of Composite Materials*,
 Transverse shear and σ3 are checked by ``interlaminar`` and
 ``core-crushing``.
 
+A core with in-plane strengths (a foam, end-grain wood) is checked the same way on its own axes 1 and 2
+(modes in-plane tension, in-plane compression, in-plane shear); a core without them is not checked.
+
 An isotropic layer has no preferred axes, so it is checked on invariants
 (common practice for metals): the largest in-plane principal stress against
 Xt, the smallest against −Xc, and the largest shear stress of the plane-stress
@@ -15,6 +18,8 @@ solved exactly (:mod:`shells.criteria.principal`).
 """
 
 from __future__ import annotations
+
+import math
 
 from numba import njit
 
@@ -47,6 +52,10 @@ def limits_ratio(m1, f1, m2, f2, m6, f6, x_t, x_c, y_t, y_c, s):
 
 #: Mode indices of an isotropic layer (after the ply modes).
 ISO_TENSION, ISO_COMPRESSION, ISO_SHEAR = range(len(PLY_MODES), len(PLY_MODES) + len(ISOTROPIC_MODES))
+#: Modes of a core's in-plane check (after the isotropic ones); its shear is the ply mode "in-plane shear".
+CORE_MODES = ("in-plane tension", "in-plane compression")
+CORE_TENSION, CORE_COMPRESSION = range(len(PLY_MODES) + len(ISOTROPIC_MODES),
+                                       len(PLY_MODES) + len(ISOTROPIC_MODES) + len(CORE_MODES))
 
 
 @njit(cache=True, inline="always")
@@ -67,9 +76,10 @@ def isotropic_ratio(sm, sf, x_t, x_c, s):
 class MaxStress(Criterion):
     name = "max-stress"
     title = "Maximum stress"
-    modes = PLY_MODES + ISOTROPIC_MODES
+    modes = PLY_MODES + ISOTROPIC_MODES + CORE_MODES
     requires = {P.KIND_PLY: ("Xt", "Xc", "Yt", "Yc", "S12"),
-                P.KIND_ISOTROPIC: ("Xt", "Xc", "S12")}
+                P.KIND_ISOTROPIC: ("Xt", "Xc", "S12"),
+                P.KIND_CORE: ()}
 
     @staticmethod
     @njit(cache=True)
@@ -77,6 +87,16 @@ class MaxStress(Criterion):
         kind = p[P.KIND]
         if kind == P.KIND_ISOTROPIC:
             return isotropic_ratio(sm, sf, p[P.XT], p[P.XC], p[P.S12])
+        if kind == P.KIND_CORE:
+            if math.isnan(p[P.XT]):
+                return INF, -1
+            r, m = limits_ratio(sm[S1], sf[S1], sm[S2], sf[S2], sm[T12], sf[T12],
+                                p[P.XT], p[P.XC], p[P.YT], p[P.YC], p[P.S12])
+            if m == FT or m == MT:
+                return r, CORE_TENSION
+            if m == FC or m == MC:
+                return r, CORE_COMPRESSION
+            return r, m
         if kind != P.KIND_PLY:
             return INF, -1
         return limits_ratio(sm[S1], sf[S1], sm[S2], sf[S2], sm[T12], sf[T12],

@@ -25,7 +25,6 @@ import numpy as np
 from .cores import Core
 from .errors import MaterialError
 from .layer import _Layer, _require_positive
-from .materials import Orthotropic
 
 GRAINS = ("flat", "end")
 #: Definition keys of the wood strengths (positive magnitudes).
@@ -80,8 +79,10 @@ class Wood(_Layer):
         return "ply" if self.grain == "flat" else "core"
 
     @cached_property
-    def layer(self) -> Orthotropic | Core:
+    def layer(self) -> "Orthotropic | Core":
         """The equivalent ply (flat grain) or core (end grain) in the layer's axes 1, 2, 3."""
+        from .materials import Orthotropic          # shells.materials lists Wood among its kinds
+
         common = dict(name=self.name, density=self.density, thickness=self.thickness, knockdown=self.knockdown,
                       knockdown_factors=self.knockdown_factors, environment_knockdowns=self.environment_knockdowns,
                       source=self.source, description=self.description)

@@ -19,12 +19,16 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from functools import cached_property
+from typing import TYPE_CHECKING
 
 import numpy as np
 
 from .cores import Core
 from .errors import MaterialError
 from .layer import _Layer, _require_positive
+
+if TYPE_CHECKING:
+    from .materials import Orthotropic
 
 GRAINS = ("flat", "end")
 #: Definition keys of the wood strengths (positive magnitudes).

@@ -68,16 +68,28 @@ class Profile:
 
     def labels(self, length_unit: str) -> list[str]:
         return [f"ply {k}: core {p.material}, {sig(p.thickness)} {length_unit}" if kind == "core"
-                else f"ply {k}: {degrees(p.angle)} {p.material}"
+                else f"ply {k}: {degrees(p.angle)}{' (wound)' if getattr(p, 'wound', 0) else ''} {p.material}"
                 for k, (p, kind) in enumerate(zip(self.plies, self.kinds), start=1)]
 
 
 def _y(profile: Profile, axis: str) -> tuple[np.ndarray, np.ndarray]:
-    """(y of every ply point (nply, 3), y of the ply boundaries) on the chosen axis."""
+    """(y of every ply point (nply, 3), y of each ply's bottom and top (nply, 2)) on the chosen axis; the two
+    fibre directions of a wound ply share their place on the z axis."""
     n = len(profile.plies)
     if axis == "index":
-        return np.arange(n)[:, None] + np.array([0.0, 0.5, 1.0]), np.arange(n + 1, dtype=float)
-    return np.asarray(profile.z, float), np.asarray(profile.interfaces, float)
+        k = np.arange(n, dtype=float)
+        return k[:, None] + np.array([0.0, 0.5, 1.0]), np.column_stack([k, k + 1.0])
+    zi = np.asarray(profile.interfaces, float)
+    if len(zi) == n + 1:
+        edges = np.column_stack([zi[:-1], zi[1:]])
+    else:                                             # wound plies: one place, two rows
+        edges, j = np.empty((n, 2)), 0
+        for k, p in enumerate(profile.plies):
+            if getattr(p, "wound", 0) < 0:
+                edges[k] = edges[k - 1]
+                continue
+            edges[k], j = zi[j:j + 2], j + 1
+    return np.asarray(profile.z, float), edges
 
 
 def spread(positions: Sequence[float], gap: float, lo: float, hi: float) -> np.ndarray:
@@ -121,7 +133,8 @@ def profile_figure(profile: Profile, *, title: str, stress_unit: str, length_uni
     if not np.isfinite(np.asarray(profile.stress, float)).any():
         raise ValueError("no finite ply stress at this cell and case (a flagged cell, or a case with no load)")
     n = len(profile.plies)
-    y, bounds = _y(profile, axis)
+    y, edges = _y(profile, axis)
+    bounds = np.unique(edges)
     height = float(np.clip(0.24 * n + 2.6, 5.5, 16.0)) if axis == "index" else 6.0
     fig = new_figure(13.0, height)
     below = -0.55 / (height - 1.8)      # legends half an inch under each panel
@@ -166,8 +179,8 @@ def profile_figure(profile: Profile, *, title: str, stress_unit: str, length_uni
         a.hlines(bounds, 0, 1, transform=a.get_yaxis_transform(), color=colors.EDGE, lw=0.5, ls=":")
         for k, kind in enumerate(profile.kinds):
             if kind == "core":
-                a.axhspan(bounds[k], bounds[k + 1], color="#e6e3dc", zorder=0)
-    _ply_labels(fig, axes[-1], profile, axis, bounds, length_unit)
+                a.axhspan(edges[k, 0], edges[k, 1], color="#e6e3dc", zorder=0)
+    _ply_labels(fig, axes[-1], profile, axis, edges, length_unit)
     if axis == "index":
         axes[0].set_ylabel("ply (1 = bottom), each ply the same height")
         axes[0].set_yticks(np.arange(n) + 0.5, [str(k) for k in range(1, n + 1)] if n <= 60 else [""] * n,
@@ -194,10 +207,10 @@ def without_roundoff(stress: np.ndarray) -> np.ndarray:
     return s
 
 
-def _ply_labels(fig, ax, profile: Profile, axis: str, bounds: np.ndarray, length_unit: str) -> None:
+def _ply_labels(fig, ax, profile: Profile, axis: str, edges: np.ndarray, length_unit: str) -> None:
     """One label per ply beside the last panel, never overlapping (every k-th ply when they cannot fit)."""
     labels = list(profile.labels(length_unit))
-    mids = 0.5 * (bounds[:-1] + bounds[1:])
+    mids = edges.mean(axis=1)
     fig.canvas.draw()
     bbox = ax.get_window_extent()
     lo, hi = ax.get_ylim()

@@ -98,6 +98,7 @@ def _limits(kind: str, v: np.ndarray, cap: float | None) -> tuple[float, float] 
         return colors.diverging_limits(v, cap)
     finite = v[np.isfinite(v)]
     lo, hi = (float(finite.min()), float(finite.max())) if finite.size else (0.0, 1.0)
+    hi = hi if cap is None else min(hi, cap)
     return lo, (hi if hi > lo else lo + 1.0)
 
 
@@ -192,8 +193,8 @@ def draw_field(points: np.ndarray, blocks: Sequence[tuple[str, np.ndarray]], val
     limits = _limits(kind, v, cap)
     grid.cell_data["rgb"] = colors.cell_rgb(kind, v, limits, len(labels or ()))
     legend = build_legend(kind, v, labels, groups, mark)
-    bar = ColourBar(kind, limits, bar_title, cap if kind == "diverging" and cap is not None
-                    and limits[1] == cap else None) if limits is not None else None
+    bar = ColourBar(kind, limits, bar_title, cap if cap is not None and limits[1] == cap else None) \
+        if limits is not None else None
     cell_size = np.sqrt(geo.areas)
     typical = float(np.median(cell_size)) if cell_size.size else 1.0
     oriented = _orientations(views, pts, geo, mark)
@@ -281,7 +282,7 @@ def render_field(points: np.ndarray, blocks: Sequence[tuple[str, np.ndarray]], v
     mark_label : str, optional
         Text beside the mark (default ``"cell N"``).
     cap : float, optional
-        Upper colour limit of a ``diverging`` field (larger values take the end colour).
+        Upper colour limit of a ``diverging`` or ``sequential`` field (larger values take the end colour).
 
     Returns
     -------

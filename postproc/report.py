@@ -14,6 +14,7 @@ from typing import Mapping, Sequence
 
 from .hotspots import SAME, Cluster
 from .numbers import degrees, sig
+from .report_beyond import beyond_section
 from .report_compare import comparison_section
 from .report_html import data_uri, esc, margin, num, page, table
 from .report_inputs import inputs_section, provenance_section, settings_section
@@ -78,6 +79,8 @@ class ReportInputs:
         The comparison file's path.
     open_details : bool
         Show folded lists unfolded (for print and PDF).
+    sequences : sequence of postproc.report_beyond.FailureSequence
+        Failure sequences of the hot spots (progressive analysis).
     """
 
     meta: RunMeta
@@ -91,6 +94,7 @@ class ReportInputs:
     comparison: Mapping | None = None
     comparison_source: str = ""
     open_details: bool = False
+    sequences: Sequence = ()
 
 
 def _fact_columns(f: CellFact | None, skip: Sequence[str] = ()) -> list:
@@ -133,7 +137,7 @@ def _summary(r: ReportInputs) -> str:
         ["cells flagged (non-finite resultants in some case; those cases skipped)", num(s.flagged_cells)],
         ["cell order of the resultants", _CELL_ORDER.get(s.cell_order, s.cell_order or "—")],
         ["material values checked against plausible ranges", "yes" if m.analysis.check_ranges else
-         "NO (check_ranges = false): exotic values were accepted unchecked"]],
+         "NO (check_ranges = false): exotic values were accepted unchecked"], *_beyond_rows(m)],
         cls="summary")
     parts = ['<section id="summary"><h2>Summary</h2>', head, key]
     if s.flagged_cells:
@@ -160,6 +164,22 @@ def _no_margin_note(infos, names) -> str:
     return ('<p class="note">No finite margin in ' + "; ".join(why) + ": nothing in the case is scaled, and the "
             "strength ratio is the factor on the scaled part with the fixed part held (docs/conventions.md), "
             "infinite while the fixed state holds (0, margin −1, if it failed).</p>")
+
+
+def _beyond_rows(m: RunMeta) -> list:
+    """Summary rows of the misalignment tolerance and the progressive analysis, when the run used them."""
+    a, s = m.analysis, m.summary
+    rows = []
+    if a.misalignment > 0:
+        rows.append(["misalignment tolerance", f"±{degrees(a.misalignment)} applied (worst of three turns kept); "
+                     f"a turned laminate governs {s.misaligned_cells} cells"])
+    if a.progressive is not None:
+        firsts = [z.first for z in s.progressive if z.first is not None]
+        lasts = [z.last for z in s.progressive if z.last is not None]
+        rows.append(["lowest first-ply / last-ply load factor [-]",
+                     f"{sig(min(firsts)) if firsts else '∞'} / {sig(min(lasts)) if lasts else '∞'} (section "
+                     "beyond the first-ply envelope)"])
+    return rows
 
 
 def _minima(r: ReportInputs) -> str:
@@ -245,7 +265,8 @@ def build_report(r: ReportInputs) -> str:
               f"(stress {esc(m.label('stress'))}, length {esc(m.label('length'))}, temperature change "
               f"{esc(m.label('temperature'))})</p></header>")
     compare = comparison_section(r.comparison, r.comparison_source) if r.comparison is not None else ""
-    body = "\n".join([header, caution, _summary(r), _hot_spots(r), _figures(r), compare,
-                      inputs_section(m, r.open_details), settings_section(m), _verification(r.verification, r.open_details),
-                      provenance_section(m, r.store), caution])
+    body = "\n".join([header, caution, _summary(r), _hot_spots(r), _figures(r),
+                      beyond_section(m, r.sequences, r.open_details),
+                      compare, inputs_section(m, r.open_details), settings_section(m),
+                      _verification(r.verification, r.open_details), provenance_section(m, r.store), caution])
     return page(f"{m.title}: plybridge report", m.provenance.tool_version, body)

@@ -80,14 +80,15 @@ def cell_states(criteria: Sequence[type], tables: SectionTables, cell_sec: np.nd
     """
     ref = ply_states(tables, cell_sec, phi_deg, R, dT, dM, pres, shear, held, held_pressure, held_shear)
     return {"mech": ref["mech"], "fixed": ref["fixed"], "strain": ref["strain"], "z": ref["z"],
-            "ratio": ratios_of_states(criteria, tables, cell_sec, ref)}
+            "ratio": ratios_of_states(criteria, tables, cell_sec, ref, case_params)}
 
 
 def ratios_of_states(criteria: Sequence[type], tables: SectionTables, cell_sec: np.ndarray,
-                     ref: dict) -> np.ndarray:
+                     ref: dict, case_params=None) -> np.ndarray:
     """Strength ratios (ncrit, ncase, ncell, maxply, 3) of point states ``ref["mech"]``, ``ref["fixed"]``
     (ncase, ncell, maxply, 3, 6), as the run computes them: point criteria at every ply point, face-level
-    criteria on each sandwich face's mean stress (:func:`face_states`), shown at every point of the face."""
+    criteria on each sandwich face's mean stress (:func:`face_states`), shown at every point of the face;
+    ``case_params``: the allowables of each case's environment (:class:`postproc.recover.CaseParams`)."""
     n, mp = len(cell_sec), tables.max_plies
     pidx = np.full((n, mp), -1, dtype=np.int64)
     for i, s in enumerate(cell_sec):

@@ -16,10 +16,11 @@ from postproc.numbers import degrees, sig
 from shells.components import ALL, STRAINS, SYMBOLS, check_component
 from shells.errors import InputError
 
+from bridge.pictures.fields_beyond import BEYOND_FIELDS, beyond_field
 from bridge.results.components import component_states
 from bridge.results.store import StoreReader
 
-SCALAR_FIELDS = ("margin", "strength-ratio", "critical-ply", "criterion", "mode", "case")
+SCALAR_FIELDS = ("margin", "strength-ratio", "critical-ply", "criterion", "mode", "case") + BEYOND_FIELDS
 FIELDS = SCALAR_FIELDS + ALL
 TITLES = {"critical-ply": "Critical ply (the ply with the lowest margin)", "criterion": "Governing criterion",
           "mode": "Governing criterion and failure mode", "case": "Governing case"}
@@ -129,6 +130,8 @@ def select_field(st: StoreReader, field: str = "margin", ply: str | int = "envel
     """Values per cell of ``field`` at ``ply`` (number or ``envelope``) and ``case`` (name or ``envelope``)."""
     if field not in SCALAR_FIELDS:
         check_component(field, "--field", FIELDS)
+    if field in BEYOND_FIELDS:
+        return beyond_field(st, field, ply, case)
     k, c = ply_index(st, ply), case_index(st, case)
     where = ("critical ply" if k is None else f"ply {k + 1} of each laminate") + ", " + (
         "envelope of cases" if c is None else f"case {case}")

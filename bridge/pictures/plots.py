@@ -44,8 +44,13 @@ def _not_rebuilt(case) -> str:
     """Why the run's split of a case into a scaled and a fixed part cannot be rebuilt from /plies, or ''."""
     if case.held or case.held_steps:
         return f"case {case.name} holds the resultants of {', '.join(case.held) or 'a held case'} fixed"
-    if case.temperature_field is not None:
-        return f"case {case.name} takes its temperature change from the mesh array '{case.temperature_field}'"
+    for what, name in (("temperature change", case.temperature_field), ("moisture change", case.moisture_field),
+                       ("pressure", case.pressure_field)):
+        if name is not None:
+            return f"case {case.name} takes its {what} from the mesh array '{name}'"
+    if case.environment is not None:
+        return (f"case {case.name} is checked in environment '{case.environment}', whose allowables /sections does "
+                "not keep")
     return ""
 
 

@@ -68,6 +68,45 @@ def cell_facts(st: StoreReader, cells) -> dict:
     return out
 
 
+#: Hot spots whose failure sequence the report lists.
+SEQUENCES = 8
+
+
+def failure_sequences(st: StoreReader, limit: int = SEQUENCES) -> tuple:
+    """:class:`postproc.report_beyond.FailureSequence` of the stored hot spots with the lowest first-ply factors
+    (each in its case with the lowest one); () without a progressive analysis."""
+    from postproc.numbers import degrees
+    from postproc.report_beyond import DISCOUNTS, FailureEvent, FailureSequence
+
+    if not st.has("hotspots/progressive_sequence"):
+        return ()
+    run = st.run
+    cells, seq = st.array("hotspots/cell"), st.array("hotspots/progressive_sequence")
+    first, last = st.array("hotspots/first_ply_factor"), st.array("hotspots/last_ply_factor")
+    zone, section = st.array("model/zone"), st.array("model/section")
+    lowest = np.where(np.isnan(first), np.inf, first).min(axis=1)
+    out = []
+    for i in [int(i) for i in np.argsort(lowest, kind="stable") if np.isfinite(lowest[i])][:limit]:
+        j = int(np.argmin(np.where(np.isnan(first[i]), np.inf, first[i])))
+        sec = run.sections[int(section[cells[i]])]
+        events = []
+        for ply, code, mode, status, factor in seq[j, i]:
+            if not np.isfinite(factor):
+                break
+            p = sec.plies[int(ply)]
+            wound = " (wound)" if p.wound else ""
+            if code < 0:
+                what = "fibre check after a matrix failure (σ1 against Xt, Xc)"
+            else:
+                c = run.criteria[int(code)]
+                what = f"{c.name} ({c.modes[int(mode)]})" if 0 <= mode < len(c.modes) else c.name
+            events.append(FailureEvent(float(factor), f"{int(ply) + 1}: {degrees(p.angle)}{wound} {p.material}", what,
+                                       DISCOUNTS.get(int(status), "")))
+        out.append(FailureSequence(int(cells[i]), run.zones[int(zone[cells[i]])].name, st.case_names[j],
+                                   float(first[i, j]), float(last[i, j]), tuple(events)))
+    return tuple(out)
+
+
 def _figures(st: StoreReader) -> list:
     from postproc.plots import save_figure
     from postproc.report import Figure
@@ -78,12 +117,28 @@ def _figures(st: StoreReader) -> list:
         hidden = [v.name for v in pic.views if v.mark_visible is False]
         note = f" (the worst cell is hidden in the {', '.join(hidden)} view)" if hidden else ""
         out.append(Figure(caption + note, png_bytes(pic.image)))
+    for field, caption in _beyond_maps(st):
+        f, pic = draw_store_field(st, field, views=("iso",))
+        out.append(Figure(caption, png_bytes(pic.image)))
     if st.run.summary.worst is not None:
         fig, info = profile_figure_of(st)
         buf = io.BytesIO()
         save_figure(fig, buf, "png")
         out.append(Figure(f"Through the thickness of the worst cell ({info['cell']}, zone {info['zone']}), case "
                           f"{info['case']}: stresses and the failure index of each criterion", buf.getvalue()))
+    return out
+
+
+def _beyond_maps(st: StoreReader) -> list[tuple[str, str]]:
+    """Maps of the progressive analysis and of the misalignment, when the run made them."""
+    out = []
+    if st.has("cells/first_ply_factor"):
+        out += [("first-ply-factor", "First-ply load factor: the lowest over the cases of the factor on the case's "
+                                     "mechanical load at which the first ply fails"),
+                ("last-ply-factor", "Last-ply load factor: the lowest over the cases of the factor at which the "
+                                    "laminate can carry no more")]
+    if st.has("cells/misalignment"):
+        out.append(("misalignment", "Laminate turn (misalignment tolerance) that governs each cell"))
     return out
 
 
@@ -210,7 +265,8 @@ def report_inputs(st: StoreReader, comparison: dict | None = None, comparison_so
         rows = [check(case) for case in all_cases()]
     return ReportInputs(meta=run, store=st.path, cells=cell_facts(st, named), hot=hot, figures=_figures(st),
                         n_cells=int(margin.size), failing_cells=int(np.sum(margin < 0)), verification=rows,
-                        comparison=comparison, comparison_source=comparison_source, open_details=open_details)
+                        comparison=comparison, comparison_source=comparison_source, open_details=open_details,
+                        sequences=failure_sequences(st))
 
 
 def browser() -> str | None:

@@ -207,13 +207,15 @@ def test_matches_the_independent_ply_discount(angles, load, criterion, ratio_fn,
     np.testing.assert_allclose([x for *_, x in events], [x for *_, x in want_events], rtol=1e-9)
 
 
-def test_cross_ply_in_closed_form():
-    # [0/90]s under Nx, maximum stress, failed moduli set to zero. First ply: the 90° plies reach Yt in σ2 with
-    # the intact section. After their matrix failure they keep only E1 along y; the 0° plies then carry
-    # σ1 = Q11 εx + Q12 εy with (εx, εy) from A11 = h0 Q11, A12 = h0 Q12, A22 = h0 Q22 + h90 E1. Last ply: σ1 = Xt
-    # (here that is Nx = Xt·h0 exactly up to the Poisson term).
-    m = _ply_material()
-    Q = m.Q()
+def cross_ply_factors() -> tuple[float, float]:
+    """First- and last-ply load factors per unit Nx of the [0/90]s of Kaw's ply (0.125 mm plies), maximum stress,
+    failed moduli set to zero, in closed form.
+
+    First ply: the 90° plies reach Yt in σ2 with the intact section. After their matrix failure they keep only
+    E1 along y; the 0° plies then carry σ1 = Q11 εx + Q12 εy with (εx, εy) from A11 = h0 Q11, A12 = h0 Q12,
+    A22 = h0 Q22 + h90 E1. Last ply: σ1 = Xt (here that is Nx = Xt·h0 exactly up to the Poisson term).
+    """
+    Q = _ply_material().Q()
     h0 = h90 = 2 * T
     a11, a12, a22 = Q[0, 0] * h0 + Q[1, 1] * h90, Q[0, 1] * (h0 + h90), Q[1, 1] * h0 + Q[0, 0] * h90
     det = a11 * a22 - a12 ** 2
@@ -222,7 +224,12 @@ def test_cross_ply_in_closed_form():
     a11, a12, a22 = Q[0, 0] * h0, Q[0, 1] * h0, Q[1, 1] * h0 + E1 * h90
     det = a11 * a22 - a12 ** 2
     ex, ey = a22 / det, -a12 / det
-    lpf = XT / (Q[0, 0] * ex + Q[0, 1] * ey)
+    return fpf, XT / (Q[0, 0] * ex + Q[0, 1] * ey)
+
+
+def test_cross_ply_in_closed_form():
+    # [0/90]s under Nx against the closed form of cross_ply_factors.
+    fpf, lpf = cross_ply_factors()
     first, last, events = _ours(CROSS, [1.0, 0, 0, 0, 0, 0], "max-stress")
     np.testing.assert_allclose(first, fpf, rtol=1e-12)
     np.testing.assert_allclose(last, lpf, rtol=1e-12)

@@ -282,3 +282,13 @@ def test_progressive_summary_ratio(tmp_path):
                                 np.zeros((1, 1)))
     zone = summary["progressive"]["zone-1"]
     assert zone["last"] == pytest.approx(g[0, 0]) and zone["ratio_max"] == pytest.approx(g[0, 0] / f[0, 0])
+
+
+@pytest.mark.parametrize("values, needle", [(np.array([0.0, np.nan, 0.0, 0.0, 0.0, 0.0]), "not finite at cells 1"),
+                                            (np.zeros((6, 2)), "one number per cell")])
+def test_a_bad_field_array_is_refused(tmp_path, values, needle):
+    mesh = flat_plate(3, 2)
+    mesh.cell_data["dM"] = values
+    defn = UD.split("[[zones]]")[0] + '[[zones]]\nlaminate = "ud"\n[cases.wet]\nstep = 1\nmoisture_field = "dM"\n'
+    with pytest.raises(InputError, match=needle):
+        _recover(tmp_path, defn, _nx(100.0), mesh)

@@ -119,6 +119,9 @@ def plan_cases(defn: Definition, model: Model, step_names: tuple[str, ...]) -> C
             if name is not None and name not in model.mesh.cell_data:
                 raise ResultantsError(f"cases.{c.name}.{key}: the mesh has no cell array '{name}'; arrays: "
                                       f"{', '.join(sorted(model.mesh.cell_data)) or '(none)'}", defn.source)
+            if name is not None:
+                check_field_array(model.mesh.cell_data[name], model.n_cells, f"cases.{c.name}.{key} = '{name}'",
+                                  defn.source)
     environments = tuple(dict.fromkeys(c.environment for c in cases))
     check_environments(defn, cases)
     held = any(c.held_factors for c in cases)
@@ -126,6 +129,18 @@ def plan_cases(defn: Definition, model: Model, step_names: tuple[str, ...]) -> C
                     np.array([defn.analysis.fos(c.kind) for c in cases]), H if held else None,
                     np.array([c.held_pressure for c in cases]) if held else None, environments,
                     np.array([environments.index(c.environment) for c in cases], dtype=np.int64))
+
+
+def check_field_array(values, n_cells: int, where: str, source) -> None:
+    """Refuse a per-cell field that is not one finite number per cell (one line naming the first bad cells)."""
+    a = np.asarray(values)
+    if a.dtype.kind not in "fiu" or a.size != n_cells:
+        raise ResultantsError(f"{where}: a per-cell field needs one number per cell ({n_cells}); the array has "
+                              f"{a.size} values of type {a.dtype}", source)
+    bad = np.flatnonzero(~np.isfinite(a.astype(float).reshape(-1)))
+    if bad.size:
+        raise ResultantsError(f"{where}: the array is not finite at cells {', '.join(map(str, bad[:5]))}; give "
+                              "finite values", source)
 
 
 def check_environments(defn: Definition, cases) -> None:

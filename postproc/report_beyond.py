@@ -64,9 +64,10 @@ def _progressive(m: RunMeta, sequences, open_details: bool) -> str:
     out = [head, zones]
     if sequences:
         out.append("<h3>Failure sequence of the hot spots</h3><p class=\"note\">Cells with the lowest first-ply "
-                   "factors, each in its case with the lowest one, laminate as placed; plies that fail in the same "
-                   f"step share a load factor.</p><details{' open' if open_details else ''}><summary>The sequences "
-                   f"({len(sequences)} cells)</summary>")
+                   "factors, each in its case with the lowest one, laminate at the cell's governing turn; plies "
+                   "that fail in the same step share a load factor.</p>"
+                   f"<details{' open' if open_details else ''}><summary>The sequences ({len(sequences)} cells)"
+                   "</summary>")
         for q in sequences:
             rows = [[num(k + 1), num(e.factor), e.ply, e.criterion, e.discount] for k, e in enumerate(q.events)]
             out.append(f"<h4>Cell {esc(q.cell)}, zone {esc(q.zone)}, case {esc(q.case)}: first-ply λ "

@@ -12,7 +12,8 @@ from postproc.render import VIEWS as VIEW_NAMES
 
 from bridge.commands.summary import echo_summary
 
-FIELD_HELP = ("margin, strength-ratio, critical-ply, criterion, mode, case, or a ply component (needs recover "
+FIELD_HELP = ("margin, strength-ratio, critical-ply, criterion, mode, case, first-ply-factor, last-ply-factor "
+              "(progressive analysis), misalignment (the governing turn), or a ply component (needs recover "
               "--store plies): sigma1 sigma2 tau12 tau13 tau23, eps1 eps2 gamma12 gamma13 gamma23 (material "
               "axes), sigma_x sigma_y tau_xy tau_xz tau_yz, eps_x eps_y gamma_xy gamma_xz gamma_yz (element axes)")
 

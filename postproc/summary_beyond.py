@@ -32,11 +32,9 @@ class BeyondAccumulator:
     def __init__(self, zone_of_cell: np.ndarray, n_zones: int, n_cases: int, envelopes=(), hot_spots: int = 1):
         self.zone = np.asarray(zone_of_cell)
         self.n_zones = n_zones
-        self.first = np.full(n_zones, np.inf)
-        self.first_cell = np.full(n_zones, -1)
-        self.last = np.full(n_zones, np.inf)
-        self.last_cell = np.full(n_zones, -1)
-        self.ratio_lo = np.full(n_zones, np.inf)
+        # Per zone: lowest first- and last-ply factors and their cells, the range of last/first.
+        self.first, self.last, self.ratio_lo = (np.full(n_zones, np.inf) for _ in range(3))
+        self.first_cell, self.last_cell = np.full(n_zones, -1), np.full(n_zones, -1)
         self.ratio_hi = np.full(n_zones, -np.inf)
         self.progressive = False
         self.misaligned = 0

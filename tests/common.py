@@ -63,3 +63,22 @@ def recover_once(tmp_path, definition: str, R, mesh=None, names=None, name: str 
     summary = run_recover(str(tmp_path / "d.toml"), str(tmp_path / "m.vtu"), [str(tmp_path / "r.h5")], str(out),
                           store_plies=store_plies)
     return summary, out
+
+
+def kaw_definition(layup: str, laminate: str = "l", criteria: str = '["max-stress"]', thickness: float = 0.125,
+                   material: str = "") -> str:
+    """An N-mm definition of Kaw's ply (``KAW_PLY_TOML``, named ``cf``, plies ``thickness`` thick, ``material``
+    lines added to it) in the laminate ``layup``, ending in its ``[analysis]`` table with ``criteria``: append
+    more analysis keys, then zones (:func:`zone_cases`)."""
+    return (f'units = "N-mm"\n[materials.cf]\n{KAW_PLY_TOML}thickness = {thickness!r}\n{material}'
+            f'[laminates.{laminate}]\nlayup = "{layup}"\nmaterial = "cf"\n[analysis]\ncriteria = {criteria}\n')
+
+
+def zone_cases(laminate: str, cases: dict) -> str:
+    """One zone of ``laminate`` over every cell and the ``[cases.NAME]`` tables of ``cases`` (name → keys; strings
+    are quoted, numbers written as they are)."""
+    out = [f'[[zones]]\nlaminate = "{laminate}"\n']
+    for name, keys in cases.items():
+        out.append(f"[cases.{name}]\n" + "".join(f"{k} = {v!r}\n" if not isinstance(v, str) else f'{k} = "{v}"\n'
+                                                  for k, v in keys.items()))
+    return "".join(out)

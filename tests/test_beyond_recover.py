@@ -13,7 +13,7 @@ import pytest
 
 from bridge.results.store import StoreReader
 from shells.errors import InputError
-from tests.common import KAW_PLY_TOML, recover_once
+from tests.common import KAW_PLY_TOML, kaw_definition, recover_once, zone_cases
 from tests.meshes import flat_plate
 
 XT, YT, E1 = 1500.0, 40.0, 181e3
@@ -29,18 +29,8 @@ def _nx(value: float) -> np.ndarray:
     return R
 
 
-UD = f"""units = "N-mm"
-[materials.cf]
-{KAW_PLY_TOML}thickness = 0.125
-knockdown = {{ environment = {{ hot-wet = 0.80, cold-dry = 0.95 }}, damage = 0.9 }}
-[laminates.ud]
-layup = "[0]4"
-material = "cf"
-[analysis]
-criteria = ["max-stress"]
-[[zones]]
-laminate = "ud"
-"""
+UD = kaw_definition("[0]4", "ud", material="knockdown = { environment = { hot-wet = 0.80, cold-dry = 0.95 }, "
+                    "damage = 0.9 }\n") + '[[zones]]\nlaminate = "ud"\n'
 
 
 def test_environment_per_case(tmp_path):
@@ -103,16 +93,9 @@ material = "cf"
 [analysis]
 criteria = ["max-stress", "core-crushing"]
 factor_of_safety = {{ burst = 2.0 }}
-[[zones]]
-laminate = "sand"
-[cases.wet]
-step = 1
-moisture_field = "dM"
-[cases.crush]
-step = 2
-kind = "burst"
-pressure_field = "p"
-""" + "".join(f"[cases.m{k}]\nstep = 1\ndelta_M = {float(v)!r}\n" for k, v in enumerate(mesh.cell_data["dM"]))
+""" + zone_cases("sand", {"wet": {"step": 1, "moisture_field": "dM"},
+                          "crush": {"step": 2, "kind": "burst", "pressure_field": "p"},
+                          **{f"m{k}": {"step": 1, "delta_M": float(v)} for k, v in enumerate(mesh.cell_data["dM"])}})
     R = np.zeros((2, 1, 8))
     R[0, 0, 0] = 200.0
     summary, out = _recover(tmp_path, defn, R, mesh)
@@ -126,27 +109,12 @@ pressure_field = "p"
     assert meta.cases[1].factor_of_safety == 2.0 and meta.cases[1].kind == "burst"
 
 
-CROSS = f"""units = "N-mm"
-[materials.cf]
-{KAW_PLY_TOML}thickness = 0.125
-[laminates.cp]
-layup = "[0/90]s"
-material = "cf"
-[analysis]
-criteria = ["max-stress"]
-factor_of_safety = {{ limit = 1.5, ultimate = 1.0, proof = 1.5, burst = 2.25 }}
-[analysis.envelopes.burst-fibre]
+KINDS = "factor_of_safety = { limit = 1.5, ultimate = 1.0, proof = 1.5, burst = 2.25 }\n"
+CROSS = kaw_definition("[0/90]s", "cp") + KINDS + """[analysis.envelopes.burst-fibre]
 criteria = ["max-stress"]
 modes = ["fibre"]
 kinds = ["burst"]
-[[zones]]
-laminate = "cp"
-[cases.ops]
-step = 1
-[cases.burst]
-step = 1
-kind = "burst"
-"""
+""" + zone_cases("cp", {"ops": {"step": 1}, "burst": {"step": 1, "kind": "burst"}})
 
 
 def _cross_ply_strains():
@@ -203,18 +171,10 @@ def test_misalignment_is_the_worst_of_three_turned_runs(tmp_path):
     rng = np.random.default_rng(5)
     mesh = flat_plate(3, 2)
     R = rng.normal(size=(2, mesh.n_cells, 8)) * np.array([100, 60, 40, 10, 8, 4, 3, 2.0])
-    qi = f"""units = "N-mm"
-[materials.cf]
-{KAW_PLY_TOML}thickness = 0.125
-[laminates.qi]
-layup = "[0/45/-45/90]s"
-material = "cf"
-[analysis]
-criteria = ["max-stress", "tsai-wu", "hashin"]
-MIS
+    qi = kaw_definition("[0/45/-45/90]s", "qi", '["max-stress", "tsai-wu", "hashin"]') + """MIS
 [[zones]]
 laminate = "qi"
-orientation = {{ vector = VEC }}
+orientation = { vector = VEC }
 """
     margins = []
     for k, turn in enumerate((0.0, -3.0, 3.0)):

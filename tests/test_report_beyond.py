@@ -17,30 +17,14 @@ from bridge.results.store import StoreReader
 from postproc.numbers import sig
 from postproc.report_beyond import beyond_section
 from postproc.report_inputs import inputs_section, settings_section
-from tests.common import KAW_PLY_TOML, recover_once
+from tests.common import kaw_definition, recover_once, zone_cases
 from tests.meshes import flat_plate
 from tests.test_progressive import cross_ply_factors
 
-CROSS = f"""units = "N-mm"
-[materials.cf]
-{KAW_PLY_TOML}thickness = 0.125
-knockdown = {{ environment = {{ hot-wet = 0.80, cold-dry = 0.95 }} }}
-[laminates.cp]
-layup = "[0/90]s"
-material = "cf"
-[analysis]
-criteria = ["max-stress"]
-factor_of_safety = {{ limit = 1.5, ultimate = 1.0, burst = 2.25 }}
-[[zones]]
-laminate = "cp"
-[cases.ops]
-step = 1
-environment = "cold-dry"
-[cases.burst]
-step = 2
-kind = "burst"
-environment = "hot-wet"
-"""
+CROSS = (kaw_definition("[0/90]s", "cp", material="knockdown = { environment = { hot-wet = 0.80, cold-dry = 0.95 } }\n")
+         + "factor_of_safety = { limit = 1.5, ultimate = 1.0, burst = 2.25 }\n"
+         + zone_cases("cp", {"ops": {"step": 1, "environment": "cold-dry"},
+                             "burst": {"step": 2, "kind": "burst", "environment": "hot-wet"}}))
 NX = 100.0
 #: Knockdowns of the cases (on the allowables, so on the factors too: no thermal part here): cold-dry, hot-wet.
 K_OPS, K_BURST = 0.95, 0.80

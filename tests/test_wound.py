@@ -61,18 +61,10 @@ def test_a_wound_layer_is_the_mean_of_its_two_directions():
     np.testing.assert_allclose(sp.A, mean * t, rtol=1e-12, atol=1e-9)
 
 
-NETTING = """units = "N-mm"
-[materials.fibre]
-E1 = "181 GPa"
-E2 = "0.181 MPa"
-G12 = "0.181 MPa"
-nu12 = 0.28
-Xt = 1500
-Xc = 1500
-Yt = 40
-Yc = 246
-S12 = 68
-thickness = 1.0
+NETTING = ('units = "N-mm"\n[materials.fibre]\n'
+           + KAW_PLY_TOML.replace('E2 = "10.3 GPa"', 'E2 = "0.181 MPa"')
+                         .replace('G12 = "7.17 GPa"', 'G12 = "0.181 MPa"')
+           + """thickness = 1.0
 [laminates.wound]
 plies = [{material = "fibre", angle = {field = "wind"}, wound = true}]
 [analysis]
@@ -80,7 +72,7 @@ criteria = ["max-stress"]
 check_ranges = false
 [[zones]]
 laminate = "wound"
-"""
+""")
 
 
 def test_netting_angle_of_a_closed_cylinder(tmp_path):

@@ -20,7 +20,7 @@ ENVELOPE_KEYS = ("criteria", "modes", "kinds", "cases", "description")
 class Progressive:
     """The ply-discount analysis (docs/criteria.md, progressive failure).
 
-    Attributes
+    Parameters
     ----------
     matrix_retained : float
         Fraction of E2 and G12 a ply keeps after a matrix failure (0: discounted entirely).
@@ -40,9 +40,10 @@ class Progressive:
 class Restricted:
     """An envelope restricted to chosen criteria, modes and cases, kept beside the full one.
 
-    Attributes
+    Parameters
     ----------
     name : str
+        The envelope's name, as in ``[analysis.envelopes.NAME]`` (its store group ``/envelopes/NAME``).
     criteria : tuple of str
         Criteria evaluated (a subset of the run's).
     modes : tuple of str

@@ -225,3 +225,12 @@ def test_compare_refuses_wound_layers(tmp_path):
     recover_once(tmp_path, NETTING, np.zeros((1, 1, 8)), mesh)
     with pytest.raises(InputError, match="wound"):
         load_inputs(str(tmp_path / "d.toml"), str(tmp_path / "m.vtu"), [str(tmp_path / "r.h5")], [])
+
+
+def test_section_lists_a_wound_ply_as_plus_minus(tmp_path):
+    from tests.common import run_cli
+
+    (tmp_path / "d.toml").write_text(WOUND_KAW.replace('{field = "wind"}', "55"), encoding="utf-8")
+    proc = run_cli("section", tmp_path / "d.toml")
+    assert proc.returncode == 0, proc.stderr
+    assert "±55.00" in proc.stdout

@@ -69,7 +69,8 @@ def format_sections(summaries: dict[str, dict], units: UnitSystem) -> str:
                   f"  flags: {flags}",
                   "  ply  material              angle     thickness   z bottom      z top"]
         for k, (ply, zb, zt) in enumerate(zip(s["plies"], s["z"][:-1], s["z"][1:]), start=1):
-            lines.append(f"  {k:>3}  {ply['material'][:20]:<20} {ply['angle']:>7.2f}  {ply['thickness']:>11.5g}"
+            angle = f"±{abs(ply['angle']):.2f}" if ply.get("wound") else f"{ply['angle']:.2f}"   # a wound ±θ layer
+            lines.append(f"  {k:>3}  {ply['material'][:20]:<20} {angle:>7}  {ply['thickness']:>11.5g}"
                          f"  {zb:>9.5g}  {zt:>9.5g}")
         lines += _matrix("A", s["A"], units.label("stiffness_A"))
         lines += _matrix("B", s["B"], units.label("stiffness_B"))

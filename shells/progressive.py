@@ -199,6 +199,7 @@ def progressive_block(sec, share, kappa, codes, masks, fibre_mode, retained, blk
                     rk[k] = np.inf
                     lb[k] = np.inf
                     if status[k] == 2:
+                        done[k] = True             # fibre-failed: never checked again
                         continue
                     row = p0 + k
                     ct, st = cs[row, 0], cs[row, 1]

@@ -71,7 +71,9 @@ def _input_path(st: StoreReader, role: str) -> str:
 
 def recover_cell(st: StoreReader, cell: int) -> CellStates:
     """Recover one cell again from the run's inputs (every case, the thermal part held apart)."""
-    from bridge.recover.run import prepare, states_of_cells
+    from bridge.recover.field_shear import METHOD as FIELD_METHOD, field_plan
+    from bridge.recover.hotspots import states_of_cells
+    from bridge.recover.run import case_params, prepare
 
     roles = sorted((i.role for i in st.run.provenance.inputs if i.role.startswith("resultants")),
                    key=lambda r: int(r[len("resultants"):] or 0))
@@ -80,7 +82,11 @@ def recover_cell(st: StoreReader, cell: int) -> CellStates:
     if plan.names != st.case_names or model.n_cells != st.h5["cells/min_margin"].shape[0]:
         raise StoreError("the run's inputs no longer give the store's cells and cases; run plybridge recover "
                          "again", st.path)
-    states = states_of_cells(np.array([cell], dtype=np.int64), crit, model.tables(), model, source, plan)
+    # As the run: each case's environment allowables, the cell's governing turn, the field shear when chosen.
+    turn = st.h5["cells/misalignment"][cell:cell + 1] if st.has("cells/misalignment") else None
+    field = field_plan(model) if defn.analysis.transverse_shear == FIELD_METHOD else None
+    states = states_of_cells(np.array([cell], dtype=np.int64), crit, model.tables(), model, source, plan, field,
+                             case_params=case_params(model, plan), turn=turn)
     nply = len(st.run.sections[int(st.h5["model/section"][cell])].plies)
     group = {k: states[k] for k in ("mech", "fixed", "z", "ratio", "criteria")}
     return _from_group(group, 0, nply, "recovered")

@@ -110,8 +110,10 @@ class Wood(_Layer):
     def params(self) -> np.ndarray:
         return self.layer.params()
 
-    def defaults_used(self) -> dict[str, str]:
-        return self.layer.defaults_used() if self.grain == "flat" else {}
+    def defaults_used(self, stress_unit: str = "") -> dict[str, str]:
+        """The defaults a flat-grain layer relies on as a ply (:meth:`shells.materials.Orthotropic.defaults_used`);
+        none for end grain."""
+        return self.layer.defaults_used(stress_unit) if self.grain == "flat" else {}
 
     # The attributes a ply's checks read (in-situ strengths, Puck defaults) come from the equivalent layer.
     def __getattr__(self, name: str):

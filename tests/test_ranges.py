@@ -263,7 +263,7 @@ _REQUIRED = {"ply": {"E1": 181e9, "E2": 10.3e9, "G12": 7.17e9, "nu12": 0.28},
 
 def _parse(kind: str, key: str, value, units) -> str | None:
     """parse_material on a minimal material of ``kind`` with ``key`` set to ``value``; the refusal or None."""
-    table = {"kind": kind, **{k: v / si_factor("stress", units) for k, v in _REQUIRED[kind].items()}}
+    table = {"kind": kind, **_required(kind, units)}
     outer, _, inner = key.partition(".")          # a key of a sub-table: strain_limits.fibre_tension
     if outer == "knockdown" and inner:
         table[outer] = {inner: value}
@@ -310,6 +310,12 @@ def si_factor_of(unit: str, kind: str) -> float:
     return float(registry().Quantity(1.0, unit).to(SI[kind]).magnitude)
 
 
+def _required(kind: str, units) -> dict:
+    """The required values of a material kind in ``units`` (moduli converted; ratios and names as they are)."""
+    return {k: v / si_factor("stress", units) if isinstance(v, float) and k.startswith(("E", "G")) else v
+            for k, v in _REQUIRED[kind].items()}
+
+
 @settings(max_examples=150, deadline=None)
 @given(st.sampled_from(_KEYS), st.sampled_from(sorted(SYSTEMS)), st.floats(-4.0, 4.0))
 def test_values_inside_pass_and_outside_are_refused(kind_key, system_name, spread):
@@ -321,8 +327,7 @@ def test_values_inside_pass_and_outside_are_refused(kind_key, system_name, sprea
     si = low * (r.high / low) ** spread if r.low > 0 else r.high * spread
     if abs(spread - 0) < 1e-9 or abs(spread - 1) < 1e-9 or si == 0:
         return
-    table = {"kind": kind, **{k: v / si_factor("stress", units) if isinstance(v, float) and k.startswith(("E", "G"))
-                              else v for k, v in _REQUIRED[kind].items()}}
+    table = {"kind": kind, **_required(kind, units)}
     value = si / si_factor(r.kind, units)
     outer, _, inner = key.partition(".")          # a key of a sub-table: strain_limits.fibre_tension
     table[outer] = {inner: value} if inner else value

@@ -233,4 +233,8 @@ def test_section_lists_a_wound_ply_as_plus_minus(tmp_path):
     (tmp_path / "d.toml").write_text(WOUND_KAW.replace('{field = "wind"}', "55"), encoding="utf-8")
     proc = run_cli("section", tmp_path / "d.toml")
     assert proc.returncode == 0, proc.stderr
+    assert "ply\tw\t1\tcf\t55.0\t1.0\t-0.625\t0.375\twound\n" in proc.stdout
+    assert "\twound" not in proc.stdout.split("ply\tw\t2")[1].splitlines()[0]
+    proc = run_cli("section", tmp_path / "d.toml", "--table")
+    assert proc.returncode == 0, proc.stderr
     assert "±55.00" in proc.stdout

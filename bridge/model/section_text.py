@@ -42,7 +42,8 @@ def section_lines(summaries: dict[str, dict], units: UnitSystem) -> str:
                  ["areal_mass", name, _n(s["areal_mass"])], ["plies", name, str(len(s["plies"]))],
                  ["flags", name, *(k for k, v in s["flags"].items() if v)],
                  ["shear_method", name, s["shear_method"]]]
-        rows += [["ply", name, str(k), p["material"], _n(p["angle"]), _n(p["thickness"]), _n(zb), _n(zt)]
+        rows += [["ply", name, str(k), p["material"], _n(p["angle"]), _n(p["thickness"]), _n(zb), _n(zt),
+                  *(["wound"] if p.get("wound") else [])]
                  for k, (p, zb, zt) in enumerate(zip(s["plies"], s["z"][:-1], s["z"][1:]), start=1)]
         for key in ("A", "B", "D", "H"):
             rows.append([key, name, *(_n(v) for row in s[key] for v in row)])

@@ -6,6 +6,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Any
 
+from postproc.run_meta import EnvelopeInfo
 from shells.errors import DefinitionError
 from shells.progressive import DEFAULT_FIBRE_RETAINED, DEFAULT_MATRIX_RETAINED, in_plane
 from shells.separable import FAMILIES, chosen_modes, separable
@@ -13,7 +14,6 @@ from shells.separable import FAMILIES, chosen_modes, separable
 from bridge.definition.schema import check_keys, check_name, expect_table, suggest
 
 PROGRESSIVE_KEYS = ("matrix_retained", "fibre_retained", "criteria")
-ENVELOPE_KEYS = ("criteria", "modes", "kinds", "cases", "description")
 
 
 @dataclass(frozen=True)
@@ -36,30 +36,19 @@ class Progressive:
     criteria: tuple[str, ...] = ()
 
 
+#: Keys of an ``[analysis.envelopes.NAME]`` table.
+ENVELOPE_KEYS = ("criteria", "modes", "kinds", "cases", "description")
+
+
 @dataclass(frozen=True)
-class Restricted:
-    """An envelope restricted to chosen criteria, modes and cases, kept beside the full one.
+class Restricted(EnvelopeInfo):
+    """An envelope restricted to chosen criteria, modes and cases, kept beside the full one: the fields of
+    :class:`postproc.run_meta.EnvelopeInfo` (as stored in the run metadata), with what the run asks of them.
 
-    Parameters
-    ----------
-    name : str
-        The envelope's name, as in ``[analysis.envelopes.NAME]`` (its store group ``/envelopes/NAME``).
-    criteria : tuple of str
-        Criteria evaluated (a subset of the run's).
-    modes : tuple of str
-        Mode names or families (``fibre``, ``matrix``) kept; empty: every mode.
-    kinds, cases : tuple of str
-        Case kinds and case names kept (both empty: every case; otherwise a case is kept when its kind or its
-        name is listed).
-    description : str
+    ``criteria`` is a subset of the run's; ``modes`` mode names or families (``fibre``, ``matrix``), empty:
+    every mode; ``kinds``, ``cases`` the case kinds and names kept (both empty: every case; otherwise a case is
+    kept when its kind or its name is listed).
     """
-
-    name: str
-    criteria: tuple[str, ...]
-    modes: tuple[str, ...] = ()
-    kinds: tuple[str, ...] = ()
-    cases: tuple[str, ...] = ()
-    description: str = ""
 
     def modes_of(self, criterion) -> tuple[str, ...]:
         """The modes of ``criterion`` (a criterion class) this envelope keeps."""

@@ -14,6 +14,7 @@ from types import MappingProxyType
 import numpy as np
 
 from .. import params as P
+from .lanes import generic_prepare, no_lanes
 
 
 class Criterion:
@@ -42,6 +43,15 @@ class Criterion:
         ``"point"``: evaluated on the state at each ply point; ``"face"``: evaluated once per sandwich face
         on the face's mean stress (face resultant / face thickness, laminate axes in slots σ1, σ2, τ12)
         with the face's property vector, and recorded on every ply of the face at the middle point.
+    convex : bool
+        True when the criterion reads σ1, σ2, τ12 (and σ3) only and its safe region is convex in them:
+        these stresses vary linearly through a ply, so the strength ratio at the middle is never below
+        the smaller one at the faces and the kernel evaluates the faces only (docs/criteria.md).
+        :meth:`convex_for` may refuse it for particular plies.
+    prepare, lanes : numba functions, optional
+        The lane form (:mod:`shells.criteria.lanes`): ``prepare(p, out) -> form`` once per ply and
+        ``lanes(w, nl, c)`` over many cells at once, the same arithmetic as ``ratio``. Without them the
+        kernel calls ``ratio`` point by point.
     """
 
     name: str = ""
@@ -50,7 +60,10 @@ class Criterion:
     requires = MappingProxyType({})
     points: tuple = (0, 1, 2)
     level: str = "point"
+    convex: bool = False
     ratio = None
+    prepare = staticmethod(generic_prepare)
+    lanes = staticmethod(no_lanes)
 
     def __init_subclass__(cls, **kwargs):
         super().__init_subclass__(**kwargs)
@@ -68,6 +81,11 @@ class Criterion:
                     if key not in P.INDEX:
                         raise TypeError(f"criterion {cls.name!r}: unknown property {key!r}")
         cls.requires = MappingProxyType({k: tuple(v) for k, v in cls.requires.items()})
+
+    @classmethod
+    def convex_for(cls, params: np.ndarray) -> bool:
+        """Whether the safe region is convex for every ply of the property table ``params`` (nrows, NPARAM)."""
+        return cls.convex
 
     @classmethod
     def missing(cls, p: np.ndarray) -> str | None:

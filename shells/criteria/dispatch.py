@@ -1,8 +1,11 @@
-"""Criterion evaluation by registry code: the cached block driver and the call the kernel inlines.
+"""Criterion evaluation by registry code: the cached block driver and the calls the kernel makes.
 
-The recovery kernel calls :func:`ratio_by_code` with the integer code of each
-chosen criterion. The branches below call the registered ``ratio`` functions as
-module globals, so numba inlines them and caches the kernel across processes
+The recovery kernel calls :func:`prepare_by_code` once per ply and
+:func:`lanes_by_code` (lane forms, :mod:`shells.criteria.lanes`) or
+:func:`generic_lanes` (:func:`ratio_by_code` point by point) with the integer
+code of each chosen criterion. The branches below call the registered
+functions as module globals, so numba compiles them into the kernel and caches
+it across processes
 (a kernel that takes criterion functions as arguments recompiles in every
 process). The functions are taken from :data:`shells.criteria.registry.CRITERIA`
 in registry order; the unpacking fails loudly if a criterion is added to the
@@ -21,10 +24,13 @@ from numba import njit, prange
 
 from .. import params as P
 from ..errors import ResultantsError
+from .lanes import GENERIC, LD, LR, OF, OM
 from .registry import CRITERIA, code
 from .state import NPOINT, NSTATE
 
 (_r0, _r1, _r2, _r3, _r4, _r5, _r6, _r7, _r8, _r9, _r10, _r11, _r12, _r13) = (c.ratio for c in CRITERIA)
+(_p0, _p1, _p2, _p3, _p4, _p5, _p6, _p7, _p8, _p9, _p10, _p11, _p12, _p13) = (c.prepare for c in CRITERIA)
+(_l0, _l1, _l2, _l3, _l4, _l5, _l6, _l7, _l8, _l9, _l10, _l11, _l12, _l13) = (c.lanes for c in CRITERIA)
 
 
 @njit(cache=True)
@@ -59,6 +65,87 @@ def ratio_by_code(code, sm, sf, p):
     if code == 13:
         return _r13(sm, sf, p)
     return np.inf, -1
+
+
+@njit(cache=True)
+def prepare_by_code(code, p, out):
+    """``CRITERIA[code].prepare(p, out)`` → the form of the criterion on a ply (:mod:`shells.criteria.lanes`)."""
+    if code == 0:
+        return _p0(p, out)
+    if code == 1:
+        return _p1(p, out)
+    if code == 2:
+        return _p2(p, out)
+    if code == 3:
+        return _p3(p, out)
+    if code == 4:
+        return _p4(p, out)
+    if code == 5:
+        return _p5(p, out)
+    if code == 6:
+        return _p6(p, out)
+    if code == 7:
+        return _p7(p, out)
+    if code == 8:
+        return _p8(p, out)
+    if code == 9:
+        return _p9(p, out)
+    if code == 10:
+        return _p10(p, out)
+    if code == 11:
+        return _p11(p, out)
+    if code == 12:
+        return _p12(p, out)
+    if code == 13:
+        return _p13(p, out)
+    return GENERIC
+
+
+@njit(cache=True)
+def lanes_by_code(code, w, nl, c):
+    """``CRITERIA[code].lanes(w, nl, c)``: ratios and modes of lanes 0 … nl − 1 into ``w`` (a FAST form)."""
+    if code == 0:
+        _l0(w, nl, c)
+    elif code == 1:
+        _l1(w, nl, c)
+    elif code == 2:
+        _l2(w, nl, c)
+    elif code == 3:
+        _l3(w, nl, c)
+    elif code == 4:
+        _l4(w, nl, c)
+    elif code == 5:
+        _l5(w, nl, c)
+    elif code == 6:
+        _l6(w, nl, c)
+    elif code == 7:
+        _l7(w, nl, c)
+    elif code == 8:
+        _l8(w, nl, c)
+    elif code == 9:
+        _l9(w, nl, c)
+    elif code == 10:
+        _l10(w, nl, c)
+    elif code == 11:
+        _l11(w, nl, c)
+    elif code == 12:
+        _l12(w, nl, c)
+    elif code == 13:
+        _l13(w, nl, c)
+
+
+@njit(cache=True)
+def generic_lanes(code, w, nl, p):
+    """The GENERIC form: ``ratio_by_code`` point by point on the lanes' states in ``w``, property vector ``p``."""
+    sm = np.empty(NSTATE)
+    sf = np.empty(NSTATE)
+    for l in range(nl):
+        for a in range(NSTATE):
+            sm[a] = w[OM[a] + l]
+            sf[a] = w[OF[a] + l]
+        r, m = ratio_by_code(code, sm, sf, p)
+        w[LR + l] = r
+        w[LD + l] = m
 
 
 @njit(cache=True, parallel=True)

@@ -27,59 +27,62 @@ from numba import njit
 
 from .. import params as P
 from .base import Criterion
-from .roots import break_point, first_crossing, product_coeffs, sign_between
+from .lanes import FAST, LD, LR, OF, OM, SKIP
+from .roots import break_point, first_crossing, sign_between
 from .state import INF, PLY_MODES, S1, S2, S3, T12, T13, T23
 
 
-@njit(cache=True, inline="always")
-def _shear_terms(sm, sf, s12, s23):
-    """Coefficients of (τ12² + τ13²)/S12² + (τ23² − σ2σ3)/S23²."""
-    a12, b12, c12 = product_coeffs(sf[T12], sm[T12], sf[T12], sm[T12])
-    a13, b13, c13 = product_coeffs(sf[T13], sm[T13], sf[T13], sm[T13])
-    a23, b23, c23 = product_coeffs(sf[T23], sm[T23], sf[T23], sm[T23])
-    ax, bx, cx = product_coeffs(sf[S2], sm[S2], sf[S3], sm[S3])
-    k, q = 1.0 / (s12 * s12), 1.0 / (s23 * s23)
-    return (k * (a12 + a13) + q * (a23 - ax), k * (b12 + b13) + q * (b23 - bx),
-            k * (c12 + c13) + q * (c23 - cx))
+@njit(cache=True)
+def hashin_constants(p):
+    """(Xc, 1/Xt², 1/S12², 1/S_T², 1/Yt², ((Yc/2S_T)² − 1)/Yc, 1/(4 S_T²)) of a ply."""
+    xt, yt, yc, s12, s23 = p[P.XT], p[P.YT], p[P.YC], p[P.S12], p[P.S_T]
+    return (p[P.XC], 1.0 / (xt * xt), 1.0 / (s12 * s12), 1.0 / (s23 * s23), 1.0 / (yt * yt),
+            ((0.5 * yc / s23) ** 2 - 1.0) / yc, 0.25 / (s23 * s23))
 
 
-@njit(cache=True, inline="always")
-def _fibre(sm, sf, p, lo, hi):
-    """First failure R of the fibre modes on a piece of constant sign of σ1; (R, mode)."""
-    if not hi > lo:
-        return INF, -1
-    sign = sign_between(sf[S1], sm[S1], lo, hi)
-    if sign == 0:
-        return INF, -1
-    g1, m1 = sf[S1], sm[S1]
-    if sign < 0:
-        xc = p[P.XC]
-        return first_crossing(0.0, -m1 / xc, -g1 / xc - 1.0, lo, hi), 1
-    xt, s12 = p[P.XT], p[P.S12]
-    k, q = 1.0 / (xt * xt), 1.0 / (s12 * s12)
-    a = k * m1 * m1 + q * (sm[T12] * sm[T12] + sm[T13] * sm[T13])
-    b = 2.0 * (k * g1 * m1 + q * (sf[T12] * sm[T12] + sf[T13] * sm[T13]))
-    c = k * g1 * g1 + q * (sf[T12] * sf[T12] + sf[T13] * sf[T13]) - 1.0
-    return first_crossing(a, b, c, lo, hi), 0
+@njit(cache=True, error_model="numpy")
+def _piece(fibre, g, m, lo, hi, an, bn, cn, ap, bp, cp):
+    """First failure R of a mode pair on the piece [lo, hi] of the ray where ``g + R·m`` keeps its sign.
+
+    Coefficients (an, bn, cn) where that sign is negative (compression), (ap, bp, cp) else; (R, mode).
+    Fibre: no mode where σ1 ≡ 0 on the piece; matrix: σ2 + σ3 = 0 counts as tension.
+    """
+    sign = sign_between(g, m, lo, hi)
+    neg = sign < 0
+    r = first_crossing(an if neg else ap, bn if neg else bp, cn if neg else cp, lo, hi)
+    mode = (1 if neg else 0) if fibre else (3 if neg else 2)
+    none = (not hi > lo) or (fibre and sign == 0)
+    return (INF if none else r), (-1 if none else mode)
 
 
-@njit(cache=True, inline="always")
-def _matrix(sm, sf, p, lo, hi, s23):
-    """First failure R of the matrix modes on a piece of constant sign of σ2 + σ3; (R, mode)."""
-    if not hi > lo:
-        return INF, -1
-    gs, ms = sf[S2] + sf[S3], sm[S2] + sm[S3]
-    a, b, c = _shear_terms(sm, sf, p[P.S12], s23)
-    c -= 1.0
-    if sign_between(gs, ms, lo, hi) >= 0:
-        yt = p[P.YT]
-        k = 1.0 / (yt * yt)
-        return first_crossing(a + k * ms * ms, b + 2.0 * k * gs * ms, c + k * gs * gs, lo, hi), 2
-    yc = p[P.YC]
-    lin = ((0.5 * yc / s23) ** 2 - 1.0) / yc
-    k = 0.25 / (s23 * s23)
-    return first_crossing(a + k * ms * ms, b + 2.0 * k * gs * ms + lin * ms,
-                          c + k * gs * gs + lin * gs, lo, hi), 3
+@njit(cache=True, error_model="numpy")
+def hashin_ratio(m1, m2, m6, m13, m23, m3, g1, g2, g6, g13, g23, g3, xc, k_xt, k_s12, k_st, k_yt, lin, k_c):
+    """Exact R and mode of Hashin's four modes for the stresses ``g + R·m`` (constants: :func:`hashin_constants`).
+
+    The ray is cut where σ1 (fibre) and σ2 + σ3 (matrix) change sign; each piece is solved exactly.
+    """
+    # Fibre: compression −σ1 = Xc (linear); tension (σ1/Xt)² + (τ12² + τ13²)/S12² = 1.
+    ap = k_xt * m1 * m1 + k_s12 * (m6 * m6 + m13 * m13)
+    bp = 2.0 * (k_xt * g1 * m1 + k_s12 * (g6 * m6 + g13 * m13))
+    cp = k_xt * g1 * g1 + k_s12 * (g6 * g6 + g13 * g13) - 1.0
+    an, bn, cn = 0.0, -m1 / xc, -g1 / xc - 1.0
+    bf = break_point(g1, m1)
+    r0, d0 = _piece(True, g1, m1, 0.0, bf, an, bn, cn, ap, bp, cp)
+    r1, d1 = _piece(True, g1, m1, bf, INF, an, bn, cn, ap, bp, cp)
+    rf, df = (r1 if r0 == INF else r0), (d1 if r0 == INF else d0)
+    # Matrix: (τ12² + τ13²)/S12² + (τ23² − σ2σ3)/S_T² plus the tension or compression terms of σ2 + σ3.
+    gs, ms = g2 + g3, m2 + m3
+    a = k_s12 * (m6 * m6 + m13 * m13) + k_st * (m23 * m23 - m2 * m3)
+    b = k_s12 * ((g6 * m6 + g6 * m6) + (g13 * m13 + g13 * m13)) + k_st * ((g23 * m23 + g23 * m23) - (g2 * m3 + g3 * m2))
+    c = k_s12 * (g6 * g6 + g13 * g13) + k_st * (g23 * g23 - g2 * g3) - 1.0
+    at, bt, ct = a + k_yt * ms * ms, b + 2.0 * k_yt * gs * ms, c + k_yt * gs * gs
+    ac, bc, cc = a + k_c * ms * ms, b + 2.0 * k_c * gs * ms + lin * ms, c + k_c * gs * gs + lin * gs
+    bm = break_point(gs, ms)
+    r0, d0 = _piece(False, gs, ms, 0.0, bm, ac, bc, cc, at, bt, ct)
+    r1, d1 = _piece(False, gs, ms, bm, INF, ac, bc, cc, at, bt, ct)
+    rm, dm = (r1 if r0 == INF else r0), (d1 if r0 == INF else d0)
+    r = rm if rm < rf else (INF if rf == INF else rf)
+    return r, (dm if rm < rf else (-1 if rf == INF else df))
 
 
 class Hashin(Criterion):
@@ -93,17 +96,25 @@ class Hashin(Criterion):
     def ratio(sm, sf, p):
         if p[P.KIND] != P.KIND_PLY:
             return INF, -1
-        s23 = p[P.S_T]
-        bf = break_point(sf[S1], sm[S1])
-        r, m = _fibre(sm, sf, p, 0.0, bf)
-        if r == INF:
-            r, m = _fibre(sm, sf, p, bf, INF)
-        bm = break_point(sf[S2] + sf[S3], sm[S2] + sm[S3])
-        rm, mm = _matrix(sm, sf, p, 0.0, bm, s23)
-        if rm == INF:
-            rm, mm = _matrix(sm, sf, p, bm, INF, s23)
-        if rm < r:
-            return rm, mm
-        if r == INF:
-            return INF, -1
-        return r, m
+        xc, k_xt, k_s12, k_st, k_yt, lin, k_c = hashin_constants(p)
+        return hashin_ratio(sm[S1], sm[S2], sm[T12], sm[T13], sm[T23], sm[S3], sf[S1], sf[S2], sf[T12], sf[T13],
+                            sf[T23], sf[S3], xc, k_xt, k_s12, k_st, k_yt, lin, k_c)
+
+    @staticmethod
+    @njit(cache=True)
+    def prepare(p, out):
+        if p[P.KIND] != P.KIND_PLY:
+            return SKIP
+        out[0], out[1], out[2], out[3], out[4], out[5], out[6] = hashin_constants(p)
+        return FAST
+
+    @staticmethod
+    @njit(cache=True, error_model="numpy")
+    def lanes(w, nl, c):
+        xc, k_xt, k_s12, k_st, k_yt, lin, k_c = c[0], c[1], c[2], c[3], c[4], c[5], c[6]
+        for l in range(nl):
+            r, m = hashin_ratio(w[OM[S1] + l], w[OM[S2] + l], w[OM[T12] + l], w[OM[T13] + l], w[OM[T23] + l],
+                                w[OM[S3] + l], w[OF[S1] + l], w[OF[S2] + l], w[OF[T12] + l], w[OF[T13] + l],
+                                w[OF[T23] + l], w[OF[S3] + l], xc, k_xt, k_s12, k_st, k_yt, lin, k_c)
+            w[LR + l] = r
+            w[LD + l] = m

@@ -36,7 +36,8 @@ from numba import njit
 
 from .. import params as P
 from .base import Criterion
-from .roots import at, has_fixed
+from .lanes import FAST, LD, LR, OF, OM, SKIP, lane_unloaded
+from .roots import has_fixed
 from .search import search_done, search_next, search_point, search_result, search_start
 from .state import INF, PLY_MODES, S1, S2, T12
 
@@ -77,39 +78,50 @@ def _matrix_compression(s2, t, alpha0, eta_t, eta_l, s_t, s_l):
     return math.sqrt(max(best, v1, v2))
 
 
+#: Constants of a ply (:func:`larc03_constants`): α0, Yc, Y_T, S_L, Xt, Xc, ν12, G12, η_T, S_T, η_L, φc.
+NLARC = 12
+
+
+@njit(cache=True, error_model="numpy")
+def larc03_constants(p, out):
+    """The ply's constants (see :data:`NLARC`) into ``out``, computed once: η_T, S_T, η_L and the
+    misalignment angle φc of pure axial compression follow from α0, Yc, S12, S_L and Xc alone."""
+    a0, yc, s_l = p[P.ALPHA0], p[P.YC], p[P.S12_IS]
+    eta_l = -p[P.S12] * math.cos(2.0 * a0) / (yc * math.cos(a0) ** 2)
+    q = s_l / p[P.XC]
+    out[0], out[1], out[2], out[3] = a0, yc, p[P.YT_IS], s_l
+    out[4], out[5], out[6], out[7] = p[P.XT], p[P.XC], p[P.NU12], p[P.G12]
+    out[8] = -1.0 / math.tan(2.0 * a0)
+    out[9] = yc * math.cos(a0) * (math.sin(a0) + math.cos(a0) / math.tan(2.0 * a0))
+    out[10] = eta_l
+    out[11] = math.atan((1.0 - math.sqrt(max(0.0, 1.0 - 4.0 * (q + eta_l) * q))) / (2.0 * (q + eta_l)))
+
+
 @njit(cache=True)
-def _misaligned(s1, s2, t, p, phic):
+def _misaligned(s1, s2, t, g12, xc, phic):
     """(σ2m, τ12m) in the fibre-misalignment frame; ``t`` = |τ12|. NaN pair when the kink is unstable."""
-    g12 = p[P.G12]
     den = g12 + s1 - s2
     if not den > 0.0:
         return np.nan, np.nan
-    phi = (t + (g12 - p[P.XC]) * phic) / den
+    phi = (t + (g12 - xc) * phic) / den
     c, s = math.cos(phi), math.sin(phi)
     return (s1 * s * s + s2 * c * c - 2.0 * t * s * c,
             -s1 * s * c + s2 * s * c + t * (c * c - s * s))
 
 
 @njit(cache=True)
-def _exposure(sm, sf, r, p):
-    """LaRC03 exposure (failure at 1) and mode index at ``sf + r·sm``."""
-    s1, s2, t = at(sm, sf, r, S1), at(sm, sf, r, S2), abs(at(sm, sf, r, T12))
-    a0, yc, y_t, s_l = p[P.ALPHA0], p[P.YC], p[P.YT_IS], p[P.S12_IS]
-    eta_t = -1.0 / math.tan(2.0 * a0)
-    s_t = yc * math.cos(a0) * (math.sin(a0) + math.cos(a0) / math.tan(2.0 * a0))
-    eta_l = -p[P.S12] * math.cos(2.0 * a0) / (yc * math.cos(a0) ** 2)
-    phic = 0.0
+def exposure(s1, s2, t, c):
+    """LaRC03 exposure (failure at 1) and mode index at (σ1, σ2, |τ12| = ``t``), ply constants ``c``."""
+    a0, yc, y_t, s_l, eta_t, s_t, eta_l = c[0], c[1], c[2], c[3], c[8], c[9], c[10]
     s2m, t2m = s2, t
     if s1 < 0.0:
-        q = s_l / p[P.XC]
-        phic = math.atan((1.0 - math.sqrt(max(0.0, 1.0 - 4.0 * (q + eta_l) * q))) / (2.0 * (q + eta_l)))
-        s2m, t2m = _misaligned(s1, s2, t, p, phic)
+        s2m, t2m = _misaligned(s1, s2, t, c[7], c[5], c[11])
         if s2m != s2m:
             return INF, 1
         t2m = abs(t2m)
     # fibre modes
     if s1 >= 0.0:
-        ff, fm = max(0.0, (s1 - p[P.NU12] * s2) / p[P.XT]), 0
+        ff, fm = max(0.0, (s1 - c[6] * s2) / c[4]), 0
     elif s2m < 0.0:
         ff, fm = max(0.0, t2m + eta_l * s2m) / s_l, 1
     else:
@@ -126,6 +138,20 @@ def _exposure(sm, sf, r, p):
     return fmx, mm
 
 
+@njit(cache=True)
+def larc03_ratio(m1, m2, m6, g1, g2, g6, homogeneous, c):
+    """Strength ratio and mode along ``g + R·m`` (σ1, σ2, τ12); ``homogeneous``: σ1 ≥ 0 along the load and no
+    fixed part at all (R in closed form), else searched."""
+    st = search_start(homogeneous)
+    r = 0.0
+    while True:
+        f, m = exposure(g1 + r * m1, g2 + r * m2, abs(g6 + r * m6), c)
+        if search_done(st):
+            return search_result(st, m)
+        st = search_next(st, f)
+        r = search_point(st)
+
+
 class LaRC03(Criterion):
     name = "larc03"
     title = "LaRC03 (Dávila, Camanho & Rose 2005)"
@@ -137,9 +163,25 @@ class LaRC03(Criterion):
     def ratio(sm, sf, p):
         if p[P.KIND] != P.KIND_PLY:
             return INF, -1
-        st = search_start(sm[S1] >= 0.0 and not has_fixed(sf))
-        f, m = _exposure(sm, sf, 0.0, p)
-        while not search_done(st):
-            st = search_next(st, f)
-            f, m = _exposure(sm, sf, search_point(st), p)
-        return search_result(st, m)
+        c = np.empty(NLARC)
+        larc03_constants(p, c)
+        return larc03_ratio(sm[S1], sm[S2], sm[T12], sf[S1], sf[S2], sf[T12], sm[S1] >= 0.0 and not has_fixed(sf),
+                            c)
+
+    @staticmethod
+    @njit(cache=True)
+    def prepare(p, out):
+        if p[P.KIND] != P.KIND_PLY:
+            return SKIP
+        larc03_constants(p, out)
+        return FAST
+
+    @staticmethod
+    @njit(cache=True)
+    def lanes(w, nl, c):
+        for l in range(nl):
+            m1 = w[OM[S1] + l]
+            r, m = larc03_ratio(m1, w[OM[S2] + l], w[OM[T12] + l], w[OF[S1] + l], w[OF[S2] + l], w[OF[T12] + l],
+                                m1 >= 0.0 and lane_unloaded(w, l), c)
+            w[LR + l] = r
+            w[LD + l] = m

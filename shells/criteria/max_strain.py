@@ -17,8 +17,16 @@ from numba import njit
 
 from .. import params as P
 from .base import Criterion
+from .lanes import FAST, LD, LR, OF, OM, SKIP
 from .max_stress import limits_ratio
 from .state import INF, PLY_MODES, S1, S2, T12
+
+
+@njit(cache=True, error_model="numpy")
+def strain_ratio(m1, m2, m6, g1, g2, g6, e1, e2, g12, nu12, l_ft, l_fc, l_mt, l_mc, l_sh):
+    """Exact R of the strain limits for the stresses ``g + R·m`` (compliance strains of each part)."""
+    return limits_ratio((m1 - nu12 * m2) / e1, (g1 - nu12 * g2) / e1, m2 / e2 - nu12 * m1 / e1,
+                        g2 / e2 - nu12 * g1 / e1, m6 / g12, g6 / g12, l_ft, l_fc, l_mt, l_mc, l_sh)
 
 
 class MaxStrain(Criterion):
@@ -28,16 +36,33 @@ class MaxStrain(Criterion):
     requires = {P.KIND_PLY: ("E1", "E2", "G12", "nu12", "strain_fibre_tension", "strain_fibre_compression",
                              "strain_matrix_tension", "strain_matrix_compression", "strain_shear")}
 
+    convex = True      # a box in strain, a linear image of the stresses
+
     @staticmethod
     @njit(cache=True)
     def ratio(sm, sf, p):
         if p[P.KIND] != P.KIND_PLY:
             return INF, -1
-        e1, e2, g12, nu12 = p[P.E1], p[P.E2], p[P.G12], p[P.NU12]
-        m1 = (sm[S1] - nu12 * sm[S2]) / e1
-        f1 = (sf[S1] - nu12 * sf[S2]) / e1
-        m2 = sm[S2] / e2 - nu12 * sm[S1] / e1
-        f2 = sf[S2] / e2 - nu12 * sf[S1] / e1
-        return limits_ratio(m1, f1, m2, f2, sm[T12] / g12, sf[T12] / g12,
-                            p[P.STRAIN_FT], p[P.STRAIN_FC], p[P.STRAIN_MT], p[P.STRAIN_MC],
+        return strain_ratio(sm[S1], sm[S2], sm[T12], sf[S1], sf[S2], sf[T12], p[P.E1], p[P.E2], p[P.G12],
+                            p[P.NU12], p[P.STRAIN_FT], p[P.STRAIN_FC], p[P.STRAIN_MT], p[P.STRAIN_MC],
                             p[P.STRAIN_SH])
+
+    @staticmethod
+    @njit(cache=True)
+    def prepare(p, out):
+        if p[P.KIND] != P.KIND_PLY:
+            return SKIP
+        for k, i in enumerate((P.E1, P.E2, P.G12, P.NU12, P.STRAIN_FT, P.STRAIN_FC, P.STRAIN_MT, P.STRAIN_MC,
+                               P.STRAIN_SH)):
+            out[k] = p[i]
+        return FAST
+
+    @staticmethod
+    @njit(cache=True, error_model="numpy")
+    def lanes(w, nl, c):
+        e1, e2, g12, nu12, l_ft, l_fc, l_mt, l_mc, l_sh = c[0], c[1], c[2], c[3], c[4], c[5], c[6], c[7], c[8]
+        for l in range(nl):
+            r, m = strain_ratio(w[OM[S1] + l], w[OM[S2] + l], w[OM[T12] + l], w[OF[S1] + l], w[OF[S2] + l],
+                                w[OF[T12] + l], e1, e2, g12, nu12, l_ft, l_fc, l_mt, l_mc, l_sh)
+            w[LR + l] = r
+            w[LD + l] = m

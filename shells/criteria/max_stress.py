@@ -26,11 +26,12 @@ from numba import njit
 from .. import params as P
 from .base import Criterion
 from .principal import max_shear_ratio, principal_ratio
+from .lanes import FAST, GENERIC, LD, LR, OF, OM
 from .roots import linear_ratio
 from .state import FC, FT, INF, ISOTROPIC_MODES, MC, MT, PLY_MODES, S1, S2, SH, T12
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True, error_model="numpy")
 def limits_ratio(m1, f1, m2, f2, m6, f6, x_t, x_c, y_t, y_c, s):
     """Exact R for independent limits on three in-plane components; mode in :data:`PLY_MODES`.
 
@@ -41,13 +42,12 @@ def limits_ratio(m1, f1, m2, f2, m6, f6, x_t, x_c, y_t, y_c, s):
     r1 = linear_ratio(f1, m1, x_t, x_c)
     r2 = linear_ratio(f2, m2, y_t, y_c)
     r6 = linear_ratio(f6, m6, s, s)
-    if r1 == INF and r2 == INF and r6 == INF:
-        return INF, -1
-    if r1 <= r2 and r1 <= r6:
-        return r1, (FT if f1 + r1 * m1 >= 0.0 else FC)
-    if r2 <= r6:
-        return r2, (MT if f2 + r2 * m2 >= 0.0 else MC)
-    return r6, SH
+    none = r1 == INF and r2 == INF and r6 == INF
+    first = r1 <= r2 and r1 <= r6
+    second = r2 <= r6
+    r = r1 if first else (r2 if second else r6)
+    mode = (FT if f1 + r1 * m1 >= 0.0 else FC) if first else ((MT if f2 + r2 * m2 >= 0.0 else MC) if second else SH)
+    return (INF if none else r), (-1 if none else mode)
 
 
 #: Mode indices of an isotropic layer (after the ply modes).
@@ -58,7 +58,7 @@ CORE_TENSION, CORE_COMPRESSION = range(len(PLY_MODES) + len(ISOTROPIC_MODES),
                                        len(PLY_MODES) + len(ISOTROPIC_MODES) + len(CORE_MODES))
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True)
 def isotropic_ratio(sm, sf, x_t, x_c, s):
     """Exact R of the invariant maximum-stress check of an isotropic layer; mode ISO_* or -1."""
     rt = principal_ratio(sm, sf, x_t, 1.0)
@@ -80,6 +80,7 @@ class MaxStress(Criterion):
     requires = {P.KIND_PLY: ("Xt", "Xc", "Yt", "Yc", "S12"),
                 P.KIND_ISOTROPIC: ("Xt", "Xc", "S12"),
                 P.KIND_CORE: ()}
+    convex = True      # a box in (σ1, σ2, τ12); on invariants, principal stresses and Tresca: convex too
 
     @staticmethod
     @njit(cache=True)
@@ -101,3 +102,21 @@ class MaxStress(Criterion):
             return INF, -1
         return limits_ratio(sm[S1], sf[S1], sm[S2], sf[S2], sm[T12], sf[T12],
                             p[P.XT], p[P.XC], p[P.YT], p[P.YC], p[P.S12])
+
+    @staticmethod
+    @njit(cache=True)
+    def prepare(p, out):
+        if p[P.KIND] != P.KIND_PLY:     # isotropic layers and cores: the point-by-point ratio
+            return GENERIC
+        out[0], out[1], out[2], out[3], out[4] = p[P.XT], p[P.XC], p[P.YT], p[P.YC], p[P.S12]
+        return FAST
+
+    @staticmethod
+    @njit(cache=True, error_model="numpy")
+    def lanes(w, nl, c):
+        xt, xc, yt, yc, s = c[0], c[1], c[2], c[3], c[4]
+        for l in range(nl):
+            r, m = limits_ratio(w[OM[S1] + l], w[OF[S1] + l], w[OM[S2] + l], w[OF[S2] + l], w[OM[T12] + l],
+                                w[OF[T12] + l], xt, xc, yt, yc, s)
+            w[LR + l] = r
+            w[LD + l] = m

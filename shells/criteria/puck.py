@@ -24,13 +24,19 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
 from numba import njit
 
 from .. import params as P
 from .base import Criterion
-from .roots import at, has_fixed
+from .lanes import FAST, LD, LR, OF, OM, SKIP, lane_unloaded
+from .roots import has_fixed
 from .search import search_done, search_next, search_point, search_result, search_start
 from .state import INF, S1, S2, T12
+
+#: Constants of a ply (:func:`puck_constants`): Xt, Xc, S21, Yt, Yc, p⊥∥⁺, p⊥∥⁻, R⊥⊥A, τ21c,
+#: 1 − p⊥∥⁺·Yt/S21 and 2(1 + p⊥⊥⁻)·S21.
+NPUCK = 11
 
 
 @njit(cache=True)
@@ -43,29 +49,48 @@ def inter_fibre_constants(p):
 
 
 @njit(cache=True)
-def _exposure(sm, sf, r, p):
-    """Puck stress exposure and mode index at ``sf + r·sm``."""
-    s1, s2, t = at(sm, sf, r, S1), at(sm, sf, r, S2), abs(at(sm, sf, r, T12))
+def puck_constants(p, out):
+    """The ply's constants (see :data:`NPUCK`) into ``out``, computed once."""
+    s21, yt, pt = p[P.S12], p[P.YT], p[P.P_TPL]
+    raa, ptt, tc = inter_fibre_constants(p)
+    out[0], out[1], out[2], out[3], out[4], out[5], out[6] = p[P.XT], p[P.XC], s21, yt, p[P.YC], pt, p[P.P_CPL]
+    out[7], out[8], out[9], out[10] = raa, tc, 1.0 - pt * yt / s21, 2.0 * (1.0 + ptt) * s21
+
+
+@njit(cache=True)
+def exposure(s1, s2, t, c):
+    """Puck stress exposure and mode index at (σ1, σ2, |τ21| = ``t``), ply constants ``c``."""
     if s1 >= 0.0:
-        ff, fm = s1 / p[P.XT], 0
+        ff, fm = s1 / c[0], 0
     else:
-        ff, fm = -s1 / p[P.XC], 1
-    s21, yt, yc, pt, pc = p[P.S12], p[P.YT], p[P.YC], p[P.P_TPL], p[P.P_CPL]
+        ff, fm = -s1 / c[1], 1
+    s21, yt, yc, pt, pc = c[2], c[3], c[4], c[5], c[6]
     if s2 >= 0.0:
-        k = 1.0 - pt * yt / s21
-        iff = math.sqrt((t / s21) ** 2 + (k * s2 / yt) ** 2) + pt * s2 / s21
+        iff = math.sqrt((t / s21) ** 2 + (c[9] * s2 / yt) ** 2) + pt * s2 / s21
         im = 2
+    elif -s2 * c[8] <= c[7] * t:
+        iff = (math.sqrt(t * t + (pc * s2) ** 2) + pc * s2) / s21
+        im = 3
     else:
-        raa, ptt, tc = inter_fibre_constants(p)
-        if -s2 * tc <= raa * t:
-            iff = (math.sqrt(t * t + (pc * s2) ** 2) + pc * s2) / s21
-            im = 3
-        else:
-            iff = ((t / (2.0 * (1.0 + ptt) * s21)) ** 2 + (s2 / yc) ** 2) * yc / (-s2)
-            im = 4
+        iff = ((t / c[10]) ** 2 + (s2 / yc) ** 2) * yc / (-s2)
+        im = 4
     if ff >= iff:
         return ff, fm
     return iff, im
+
+
+@njit(cache=True)
+def puck_ratio(m1, m2, m6, g1, g2, g6, homogeneous, c):
+    """Strength ratio and mode along ``g + R·m`` (σ1, σ2, τ21); ``homogeneous``: no fixed part at all (R in
+    closed form), else searched."""
+    st = search_start(homogeneous)
+    r = 0.0
+    while True:
+        f, m = exposure(g1 + r * m1, g2 + r * m2, abs(g6 + r * m6), c)
+        if search_done(st):
+            return search_result(st, m)
+        st = search_next(st, f)
+        r = search_point(st)
 
 
 class Puck(Criterion):
@@ -80,9 +105,23 @@ class Puck(Criterion):
     def ratio(sm, sf, p):
         if p[P.KIND] != P.KIND_PLY:
             return INF, -1
-        st = search_start(True and not has_fixed(sf))
-        f, m = _exposure(sm, sf, 0.0, p)
-        while not search_done(st):
-            st = search_next(st, f)
-            f, m = _exposure(sm, sf, search_point(st), p)
-        return search_result(st, m)
+        c = np.empty(NPUCK)
+        puck_constants(p, c)
+        return puck_ratio(sm[S1], sm[S2], sm[T12], sf[S1], sf[S2], sf[T12], not has_fixed(sf), c)
+
+    @staticmethod
+    @njit(cache=True)
+    def prepare(p, out):
+        if p[P.KIND] != P.KIND_PLY:
+            return SKIP
+        puck_constants(p, out)
+        return FAST
+
+    @staticmethod
+    @njit(cache=True)
+    def lanes(w, nl, c):
+        for l in range(nl):
+            r, m = puck_ratio(w[OM[S1] + l], w[OM[S2] + l], w[OM[T12] + l], w[OF[S1] + l], w[OF[S2] + l],
+                              w[OF[T12] + l], lane_unloaded(w, l), c)
+            w[LR + l] = r
+            w[LD + l] = m

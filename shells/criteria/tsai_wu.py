@@ -16,8 +16,16 @@ from numba import njit
 
 from .. import params as P
 from .base import Criterion
-from .plane import plane_strengths, polynomial_ratio
-from .state import INF, PLY_MODES
+from .lanes import FAST, LD, LR, OF, OM, SKIP
+from .plane import plane_ratio, plane_strengths, polynomial_ratio
+from .state import INF, PLY_MODES, S1, S2, T12
+
+
+@njit(cache=True)
+def tsai_wu_strengths(p):
+    """(F1, F2, F11, F22, F66, F12) of a ply."""
+    f1, f2, f11, f22, f66 = plane_strengths(p)
+    return f1, f2, f11, f22, f66, p[P.F12STAR] * math.sqrt(f11 * f22)
 
 
 class TsaiWu(Criterion):
@@ -26,11 +34,37 @@ class TsaiWu(Criterion):
     modes = PLY_MODES
     requires = {P.KIND_PLY: ("Xt", "Xc", "Yt", "Yc", "S12", "F12star")}
 
+    convex = True      # when F12² ≤ F11·F22, i.e. |F12*| ≤ 1 (checked per table by convex_for)
+
+    @classmethod
+    def convex_for(cls, params):
+        import numpy as np
+
+        ply = params[:, P.KIND] == P.KIND_PLY
+        return bool(np.all(np.abs(params[ply, P.F12STAR]) <= 1.0))
+
     @staticmethod
     @njit(cache=True)
     def ratio(sm, sf, p):
         if p[P.KIND] != P.KIND_PLY:
             return INF, -1
-        f1, f2, f11, f22, f66 = plane_strengths(p)
-        f12 = p[P.F12STAR] * math.sqrt(f11 * f22)
+        f1, f2, f11, f22, f66, f12 = tsai_wu_strengths(p)
         return polynomial_ratio(sm, sf, f1, f2, f11, f22, f66, f12, 0.0, INF)
+
+    @staticmethod
+    @njit(cache=True)
+    def prepare(p, out):
+        if p[P.KIND] != P.KIND_PLY:
+            return SKIP
+        out[0], out[1], out[2], out[3], out[4], out[5] = tsai_wu_strengths(p)
+        return FAST
+
+    @staticmethod
+    @njit(cache=True, error_model="numpy")
+    def lanes(w, nl, c):
+        f1, f2, f11, f22, f66, f12 = c[0], c[1], c[2], c[3], c[4], c[5]
+        for l in range(nl):
+            r, m = plane_ratio(w[OM[S1] + l], w[OM[S2] + l], w[OM[T12] + l], w[OF[S1] + l], w[OF[S2] + l],
+                               w[OF[T12] + l], f1, f2, f11, f22, f66, f12, 0.0, INF)
+            w[LR + l] = r
+            w[LD + l] = m

@@ -24,7 +24,8 @@ from __future__ import annotations
 import numpy as np
 from numba import njit, prange
 
-from .criteria.dispatch import ratio_by_code
+from .criteria.dispatch import point_by_code, prepare_table, ratio_by_code
+from .criteria.prepared import FAST, SKIP
 from .numba_cache import configure
 from .recovery_tables import ROUNDOFF
 
@@ -140,6 +141,7 @@ def recover_block(sel, sec, blk, env, out):
     field = field_shear.size > 0
     held = held_R.size > 0
     held_field = held_shear.size > 0
+    forms, consts = prepare_table(codes, params)   # each criterion's constants on each ply, computed once
     for i in prange(ncell):
         sm = np.empty(6)
         sf = np.empty(6)
@@ -221,6 +223,8 @@ def recover_block(sel, sec, blk, env, out):
                 fx = alpha[row, 0] * t + beta[row, 0] * h
                 fy = alpha[row, 1] * t + beta[row, 1] * h
                 pr = params[row]
+                fr = forms[row]
+                cr = consts[row]
                 for q in range(3):
                     zz = z[row, q]
                     exm = em[0] + zz * em[3]
@@ -263,8 +267,14 @@ def recover_block(sel, sec, blk, env, out):
                     for m in range(codes.shape[0]):
                         if not masks[m, q]:
                             continue
+                        form = fr[m]
+                        if form == SKIP:          # not applicable to this ply: R = inf, nothing to record
+                            continue
                         cm = codes[m]
-                        sr, mode = ratio_by_code(cm, sm, sf, pr)
+                        if form == FAST:
+                            sr, mode = point_by_code(cm, sm, sf, cr, m)
+                        else:
+                            sr, mode = ratio_by_code(cm, sm, sf, pr)
                         ms = sr * inv_fos - 1.0
                         if ms < case_ms[i, cj]:
                             case_ms[i, cj] = ms

@@ -14,7 +14,7 @@ from types import MappingProxyType
 import numpy as np
 
 from .. import params as P
-from .lanes import generic_prepare, no_lanes
+from .prepared import generic_prepare, no_point
 
 
 class Criterion:
@@ -48,10 +48,10 @@ class Criterion:
         these stresses vary linearly through a ply, so the strength ratio at the middle is never below
         the smaller one at the faces and the kernel evaluates the faces only (docs/criteria.md).
         :meth:`convex_for` may refuse it for particular plies.
-    prepare, lanes : numba functions, optional
-        The lane form (:mod:`shells.criteria.lanes`): ``prepare(p, out) -> form`` once per ply and
-        ``lanes(w, nl, c)`` over many cells at once, the same arithmetic as ``ratio``. Without them the
-        kernel calls ``ratio`` point by point.
+    prepare, point : numba functions, optional
+        The prepared form (:mod:`shells.criteria.prepared`): ``prepare(p, out) -> form`` once per ply and
+        ``point(sm, sf, c, m) -> (R, mode)`` with the ply's constants in row ``m`` of ``c``, the same
+        arithmetic as ``ratio``. Without them the kernel calls ``ratio`` at every point.
     """
 
     name: str = ""
@@ -63,7 +63,7 @@ class Criterion:
     convex: bool = False
     ratio = None
     prepare = staticmethod(generic_prepare)
-    lanes = staticmethod(no_lanes)
+    point = staticmethod(no_point)
 
     def __init_subclass__(cls, **kwargs):
         super().__init_subclass__(**kwargs)

@@ -1,9 +1,9 @@
 """Criterion evaluation by registry code: the cached block driver and the calls the kernel makes.
 
-The recovery kernel calls :func:`prepare_by_code` once per ply and
-:func:`lanes_by_code` (lane forms, :mod:`shells.criteria.lanes`) or
-:func:`generic_lanes` (:func:`ratio_by_code` point by point) with the integer
-code of each chosen criterion. The branches below call the registered
+The recovery kernel calls :func:`prepare_table` once (the prepared forms of
+:mod:`shells.criteria.prepared` on every ply), then at every point
+:func:`point_by_code` (FAST) or :func:`ratio_by_code` (GENERIC) with the
+integer code of each chosen criterion. The branches below call the registered
 functions as module globals, so numba compiles them into the kernel and caches
 it across processes
 (a kernel that takes criterion functions as arguments recompiles in every
@@ -24,13 +24,13 @@ from numba import njit, prange
 
 from .. import params as P
 from ..errors import ResultantsError
-from .lanes import GENERIC, LD, LR, OF, OM
+from .prepared import GENERIC, NCONST
 from .registry import CRITERIA, code
 from .state import NPOINT, NSTATE
 
 (_r0, _r1, _r2, _r3, _r4, _r5, _r6, _r7, _r8, _r9, _r10, _r11, _r12, _r13) = (c.ratio for c in CRITERIA)
 (_p0, _p1, _p2, _p3, _p4, _p5, _p6, _p7, _p8, _p9, _p10, _p11, _p12, _p13) = (c.prepare for c in CRITERIA)
-(_l0, _l1, _l2, _l3, _l4, _l5, _l6, _l7, _l8, _l9, _l10, _l11, _l12, _l13) = (c.lanes for c in CRITERIA)
+(_q0, _q1, _q2, _q3, _q4, _q5, _q6, _q7, _q8, _q9, _q10, _q11, _q12, _q13) = (c.point for c in CRITERIA)
 
 
 @njit(cache=True)
@@ -69,7 +69,7 @@ def ratio_by_code(code, sm, sf, p):
 
 @njit(cache=True)
 def prepare_by_code(code, p, out):
-    """``CRITERIA[code].prepare(p, out)`` → the form of the criterion on a ply (:mod:`shells.criteria.lanes`)."""
+    """``CRITERIA[code].prepare(p, out)`` → the form of the criterion on a ply (:mod:`shells.criteria.prepared`)."""
     if code == 0:
         return _p0(p, out)
     if code == 1:
@@ -102,50 +102,49 @@ def prepare_by_code(code, p, out):
 
 
 @njit(cache=True)
-def lanes_by_code(code, w, nl, c):
-    """``CRITERIA[code].lanes(w, nl, c)``: ratios and modes of lanes 0 … nl − 1 into ``w`` (a FAST form)."""
+def point_by_code(code, sm, sf, c, m):
+    """``CRITERIA[code].point(sm, sf, c, m)``: (R, mode) at a point of a ply whose form is FAST."""
     if code == 0:
-        _l0(w, nl, c)
-    elif code == 1:
-        _l1(w, nl, c)
-    elif code == 2:
-        _l2(w, nl, c)
-    elif code == 3:
-        _l3(w, nl, c)
-    elif code == 4:
-        _l4(w, nl, c)
-    elif code == 5:
-        _l5(w, nl, c)
-    elif code == 6:
-        _l6(w, nl, c)
-    elif code == 7:
-        _l7(w, nl, c)
-    elif code == 8:
-        _l8(w, nl, c)
-    elif code == 9:
-        _l9(w, nl, c)
-    elif code == 10:
-        _l10(w, nl, c)
-    elif code == 11:
-        _l11(w, nl, c)
-    elif code == 12:
-        _l12(w, nl, c)
-    elif code == 13:
-        _l13(w, nl, c)
+        return _q0(sm, sf, c, m)
+    if code == 1:
+        return _q1(sm, sf, c, m)
+    if code == 2:
+        return _q2(sm, sf, c, m)
+    if code == 3:
+        return _q3(sm, sf, c, m)
+    if code == 4:
+        return _q4(sm, sf, c, m)
+    if code == 5:
+        return _q5(sm, sf, c, m)
+    if code == 6:
+        return _q6(sm, sf, c, m)
+    if code == 7:
+        return _q7(sm, sf, c, m)
+    if code == 8:
+        return _q8(sm, sf, c, m)
+    if code == 9:
+        return _q9(sm, sf, c, m)
+    if code == 10:
+        return _q10(sm, sf, c, m)
+    if code == 11:
+        return _q11(sm, sf, c, m)
+    if code == 12:
+        return _q12(sm, sf, c, m)
+    if code == 13:
+        return _q13(sm, sf, c, m)
+    return np.inf, -1
 
 
 @njit(cache=True)
-def generic_lanes(code, w, nl, p):
-    """The GENERIC form: ``ratio_by_code`` point by point on the lanes' states in ``w``, property vector ``p``."""
-    sm = np.empty(NSTATE)
-    sf = np.empty(NSTATE)
-    for l in range(nl):
-        for a in range(NSTATE):
-            sm[a] = w[OM[a] + l]
-            sf[a] = w[OF[a] + l]
-        r, m = ratio_by_code(code, sm, sf, p)
-        w[LR + l] = r
-        w[LD + l] = m
+def prepare_table(codes, params):
+    """Forms (nrows, ncrit) and constants (nrows, ncrit, NCONST) of the criteria ``codes`` on every ply row."""
+    nrow, ncrit = params.shape[0], codes.shape[0]
+    forms = np.empty((nrow, ncrit), np.int64)
+    consts = np.zeros((nrow, ncrit, NCONST))
+    for row in range(nrow):
+        for m in range(ncrit):
+            forms[row, m] = prepare_by_code(codes[m], params[row], consts[row, m])
+    return forms, consts
 
 
 @njit(cache=True, parallel=True)

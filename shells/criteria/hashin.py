@@ -27,7 +27,7 @@ from numba import njit
 
 from .. import params as P
 from .base import Criterion
-from .lanes import FAST, LD, LR, OF, OM, SKIP
+from .prepared import FAST, SKIP
 from .roots import break_point, first_crossing, sign_between
 from .state import INF, PLY_MODES, S1, S2, S3, T12, T13, T23
 
@@ -109,12 +109,7 @@ class Hashin(Criterion):
         return FAST
 
     @staticmethod
-    @njit(cache=True, error_model="numpy")
-    def lanes(w, nl, c):
-        xc, k_xt, k_s12, k_st, k_yt, lin, k_c = c[0], c[1], c[2], c[3], c[4], c[5], c[6]
-        for l in range(nl):
-            r, m = hashin_ratio(w[OM[S1] + l], w[OM[S2] + l], w[OM[T12] + l], w[OM[T13] + l], w[OM[T23] + l],
-                                w[OM[S3] + l], w[OF[S1] + l], w[OF[S2] + l], w[OF[T12] + l], w[OF[T13] + l],
-                                w[OF[T23] + l], w[OF[S3] + l], xc, k_xt, k_s12, k_st, k_yt, lin, k_c)
-            w[LR + l] = r
-            w[LD + l] = m
+    @njit(cache=True)
+    def point(sm, sf, c, m):
+        return hashin_ratio(sm[S1], sm[S2], sm[T12], sm[T13], sm[T23], sm[S3], sf[S1], sf[S2], sf[T12], sf[T13],
+                            sf[T23], sf[S3], c[m, 0], c[m, 1], c[m, 2], c[m, 3], c[m, 4], c[m, 5], c[m, 6])

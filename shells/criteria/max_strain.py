@@ -17,7 +17,7 @@ from numba import njit
 
 from .. import params as P
 from .base import Criterion
-from .lanes import FAST, LD, LR, OF, OM, SKIP
+from .prepared import FAST, SKIP
 from .max_stress import limits_ratio
 from .state import INF, PLY_MODES, S1, S2, T12
 
@@ -58,11 +58,7 @@ class MaxStrain(Criterion):
         return FAST
 
     @staticmethod
-    @njit(cache=True, error_model="numpy")
-    def lanes(w, nl, c):
-        e1, e2, g12, nu12, l_ft, l_fc, l_mt, l_mc, l_sh = c[0], c[1], c[2], c[3], c[4], c[5], c[6], c[7], c[8]
-        for l in range(nl):
-            r, m = strain_ratio(w[OM[S1] + l], w[OM[S2] + l], w[OM[T12] + l], w[OF[S1] + l], w[OF[S2] + l],
-                                w[OF[T12] + l], e1, e2, g12, nu12, l_ft, l_fc, l_mt, l_mc, l_sh)
-            w[LR + l] = r
-            w[LD + l] = m
+    @njit(cache=True)
+    def point(sm, sf, c, m):
+        return strain_ratio(sm[S1], sm[S2], sm[T12], sf[S1], sf[S2], sf[T12], c[m, 0], c[m, 1], c[m, 2], c[m, 3],
+                            c[m, 4], c[m, 5], c[m, 6], c[m, 7], c[m, 8])

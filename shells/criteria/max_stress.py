@@ -26,7 +26,7 @@ from numba import njit
 from .. import params as P
 from .base import Criterion
 from .principal import max_shear_ratio, principal_ratio
-from .lanes import FAST, GENERIC, LD, LR, OF, OM
+from .prepared import FAST, GENERIC
 from .roots import linear_ratio
 from .state import FC, FT, INF, ISOTROPIC_MODES, MC, MT, PLY_MODES, S1, S2, SH, T12
 
@@ -112,11 +112,7 @@ class MaxStress(Criterion):
         return FAST
 
     @staticmethod
-    @njit(cache=True, error_model="numpy")
-    def lanes(w, nl, c):
-        xt, xc, yt, yc, s = c[0], c[1], c[2], c[3], c[4]
-        for l in range(nl):
-            r, m = limits_ratio(w[OM[S1] + l], w[OF[S1] + l], w[OM[S2] + l], w[OF[S2] + l], w[OM[T12] + l],
-                                w[OF[T12] + l], xt, xc, yt, yc, s)
-            w[LR + l] = r
-            w[LD + l] = m
+    @njit(cache=True)
+    def point(sm, sf, c, m):
+        return limits_ratio(sm[S1], sf[S1], sm[S2], sf[S2], sm[T12], sf[T12], c[m, 0], c[m, 1], c[m, 2], c[m, 3],
+                            c[m, 4])

@@ -4,7 +4,7 @@
 ``sf + R·sm``, solved exactly for the first R at which it reaches 1, and the
 dominant term at failure (the mode). Written on the components (mechanical
 m1, m2, m6 and fixed g1, g2, g6 of σ1, σ2, τ12), without branches, so that the
-lane form of Tsai-Wu vectorises (:mod:`shells.criteria.lanes`).
+a loop over many points calling it can be vectorised.
 """
 
 from __future__ import annotations

@@ -29,7 +29,7 @@ from numba import njit
 
 from .. import params as P
 from .base import Criterion
-from .lanes import FAST, LD, LR, OF, OM, SKIP, lane_unloaded
+from .prepared import FAST, SKIP
 from .roots import has_fixed
 from .search import search_done, search_next, search_point, search_result, search_start
 from .state import INF, S1, S2, T12
@@ -119,9 +119,5 @@ class Puck(Criterion):
 
     @staticmethod
     @njit(cache=True)
-    def lanes(w, nl, c):
-        for l in range(nl):
-            r, m = puck_ratio(w[OM[S1] + l], w[OM[S2] + l], w[OM[T12] + l], w[OF[S1] + l], w[OF[S2] + l],
-                              w[OF[T12] + l], lane_unloaded(w, l), c)
-            w[LR + l] = r
-            w[LD + l] = m
+    def point(sm, sf, c, m):
+        return puck_ratio(sm[S1], sm[S2], sm[T12], sf[S1], sf[S2], sf[T12], not has_fixed(sf), c[m])

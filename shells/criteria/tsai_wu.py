@@ -16,7 +16,7 @@ from numba import njit
 
 from .. import params as P
 from .base import Criterion
-from .lanes import FAST, LD, LR, OF, OM, SKIP
+from .prepared import FAST, SKIP
 from .plane import plane_ratio, plane_strengths, polynomial_ratio
 from .state import INF, PLY_MODES, S1, S2, T12
 
@@ -60,11 +60,7 @@ class TsaiWu(Criterion):
         return FAST
 
     @staticmethod
-    @njit(cache=True, error_model="numpy")
-    def lanes(w, nl, c):
-        f1, f2, f11, f22, f66, f12 = c[0], c[1], c[2], c[3], c[4], c[5]
-        for l in range(nl):
-            r, m = plane_ratio(w[OM[S1] + l], w[OM[S2] + l], w[OM[T12] + l], w[OF[S1] + l], w[OF[S2] + l],
-                               w[OF[T12] + l], f1, f2, f11, f22, f66, f12, 0.0, INF)
-            w[LR + l] = r
-            w[LD + l] = m
+    @njit(cache=True)
+    def point(sm, sf, c, m):
+        return plane_ratio(sm[S1], sm[S2], sm[T12], sf[S1], sf[S2], sf[T12], c[m, 0], c[m, 1], c[m, 2], c[m, 3],
+                           c[m, 4], c[m, 5], 0.0, INF)

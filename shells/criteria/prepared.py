@@ -1,0 +1,36 @@
+"""Prepared forms: a criterion's per-ply constants computed once, then evaluated point by point without them.
+
+A criterion's ``prepare(p, out) -> form`` looks at one ply's property vector
+``p`` once per kernel call and returns its form: :data:`SKIP` (the criterion
+does not apply: R = inf, mode −1 at every point, nothing to record),
+:data:`FAST` (its constants, at most :data:`NCONST`, written to ``out``; the
+kernel then calls ``point(sm, sf, c, m)`` with those constants in row ``m`` of
+``c``) or :data:`GENERIC` (the point-by-point ``ratio`` on the property vector,
+e.g. maximum stress on an isotropic layer). The constants are the strengths'
+reciprocals and products the criterion would otherwise form on every call; a
+criterion's ``ratio`` and ``point`` run the same arithmetic on the same
+constants, so both give the same bits.
+"""
+
+from __future__ import annotations
+
+from numba import njit
+
+from .state import INF
+
+#: Most constants a prepared form keeps per ply.
+NCONST = 16
+#: Forms returned by ``prepare``.
+SKIP, FAST, GENERIC = 0, 1, 2
+
+
+@njit(cache=True)
+def generic_prepare(p, out):
+    """``prepare`` of a criterion without a prepared form: every ply point by the criterion's ``ratio``."""
+    return GENERIC
+
+
+@njit(cache=True)
+def no_point(sm, sf, c, m):
+    """``point`` of a criterion without a prepared form (never called: its ``prepare`` answers GENERIC)."""
+    return INF, -1

@@ -40,49 +40,61 @@ def hashin_constants(p):
             ((0.5 * yc / s23) ** 2 - 1.0) / yc, 0.25 / (s23 * s23))
 
 
-@njit(cache=True, error_model="numpy")
-def _piece(fibre, g, m, lo, hi, an, bn, cn, ap, bp, cp):
-    """First failure R of a mode pair on the piece [lo, hi] of the ray where ``g + R·m`` keeps its sign.
+@njit(cache=True, inline="always")
+def _fibre(m1, m6, m13, g1, g6, g13, xc, k_xt, k_s12, lo, hi):
+    """First failure R of the fibre modes on a piece of constant sign of σ1; (R, mode)."""
+    if not hi > lo:
+        return INF, -1
+    sign = sign_between(g1, m1, lo, hi)
+    if sign == 0:
+        return INF, -1
+    if sign < 0:   # compression −σ1 = Xc (linear)
+        return first_crossing(0.0, -m1 / xc, -g1 / xc - 1.0, lo, hi), 1
+    # tension (σ1/Xt)² + (τ12² + τ13²)/S12² = 1
+    a = k_xt * m1 * m1 + k_s12 * (m6 * m6 + m13 * m13)
+    b = 2.0 * (k_xt * g1 * m1 + k_s12 * (g6 * m6 + g13 * m13))
+    c = k_xt * g1 * g1 + k_s12 * (g6 * g6 + g13 * g13) - 1.0
+    return first_crossing(a, b, c, lo, hi), 0
 
-    Coefficients (an, bn, cn) where that sign is negative (compression), (ap, bp, cp) else; (R, mode).
-    Fibre: no mode where σ1 ≡ 0 on the piece; matrix: σ2 + σ3 = 0 counts as tension.
+
+@njit(cache=True, inline="always")
+def _matrix(gs, ms, a, b, c, k_yt, lin, k_c, lo, hi):
+    """First failure R of the matrix modes on a piece of constant sign of σ2 + σ3; (R, mode).
+
+    (a, b, c): the shear terms minus 1, to which the tension or compression terms of σ2 + σ3 are added.
     """
-    sign = sign_between(g, m, lo, hi)
-    neg = sign < 0
-    r = first_crossing(an if neg else ap, bn if neg else bp, cn if neg else cp, lo, hi)
-    mode = (1 if neg else 0) if fibre else (3 if neg else 2)
-    none = (not hi > lo) or (fibre and sign == 0)
-    return (INF if none else r), (-1 if none else mode)
+    if not hi > lo:
+        return INF, -1
+    if sign_between(gs, ms, lo, hi) >= 0:
+        return first_crossing(a + k_yt * ms * ms, b + 2.0 * k_yt * gs * ms, c + k_yt * gs * gs, lo, hi), 2
+    return first_crossing(a + k_c * ms * ms, b + 2.0 * k_c * gs * ms + lin * ms, c + k_c * gs * gs + lin * gs,
+                          lo, hi), 3
 
 
-@njit(cache=True, error_model="numpy")
+@njit(cache=True, inline="always")
 def hashin_ratio(m1, m2, m6, m13, m23, m3, g1, g2, g6, g13, g23, g3, xc, k_xt, k_s12, k_st, k_yt, lin, k_c):
     """Exact R and mode of Hashin's four modes for the stresses ``g + R·m`` (constants: :func:`hashin_constants`).
 
     The ray is cut where σ1 (fibre) and σ2 + σ3 (matrix) change sign; each piece is solved exactly.
     """
-    # Fibre: compression −σ1 = Xc (linear); tension (σ1/Xt)² + (τ12² + τ13²)/S12² = 1.
-    ap = k_xt * m1 * m1 + k_s12 * (m6 * m6 + m13 * m13)
-    bp = 2.0 * (k_xt * g1 * m1 + k_s12 * (g6 * m6 + g13 * m13))
-    cp = k_xt * g1 * g1 + k_s12 * (g6 * g6 + g13 * g13) - 1.0
-    an, bn, cn = 0.0, -m1 / xc, -g1 / xc - 1.0
     bf = break_point(g1, m1)
-    r0, d0 = _piece(True, g1, m1, 0.0, bf, an, bn, cn, ap, bp, cp)
-    r1, d1 = _piece(True, g1, m1, bf, INF, an, bn, cn, ap, bp, cp)
-    rf, df = (r1 if r0 == INF else r0), (d1 if r0 == INF else d0)
+    r, mode = _fibre(m1, m6, m13, g1, g6, g13, xc, k_xt, k_s12, 0.0, bf)
+    if r == INF:
+        r, mode = _fibre(m1, m6, m13, g1, g6, g13, xc, k_xt, k_s12, bf, INF)
     # Matrix: (τ12² + τ13²)/S12² + (τ23² − σ2σ3)/S_T² plus the tension or compression terms of σ2 + σ3.
     gs, ms = g2 + g3, m2 + m3
     a = k_s12 * (m6 * m6 + m13 * m13) + k_st * (m23 * m23 - m2 * m3)
     b = k_s12 * ((g6 * m6 + g6 * m6) + (g13 * m13 + g13 * m13)) + k_st * ((g23 * m23 + g23 * m23) - (g2 * m3 + g3 * m2))
     c = k_s12 * (g6 * g6 + g13 * g13) + k_st * (g23 * g23 - g2 * g3) - 1.0
-    at, bt, ct = a + k_yt * ms * ms, b + 2.0 * k_yt * gs * ms, c + k_yt * gs * gs
-    ac, bc, cc = a + k_c * ms * ms, b + 2.0 * k_c * gs * ms + lin * ms, c + k_c * gs * gs + lin * gs
     bm = break_point(gs, ms)
-    r0, d0 = _piece(False, gs, ms, 0.0, bm, ac, bc, cc, at, bt, ct)
-    r1, d1 = _piece(False, gs, ms, bm, INF, ac, bc, cc, at, bt, ct)
-    rm, dm = (r1 if r0 == INF else r0), (d1 if r0 == INF else d0)
-    r = rm if rm < rf else (INF if rf == INF else rf)
-    return r, (dm if rm < rf else (-1 if rf == INF else df))
+    rm, mm = _matrix(gs, ms, a, b, c, k_yt, lin, k_c, 0.0, bm)
+    if rm == INF:
+        rm, mm = _matrix(gs, ms, a, b, c, k_yt, lin, k_c, bm, INF)
+    if rm < r:
+        return rm, mm
+    if r == INF:
+        return INF, -1
+    return r, mode
 
 
 class Hashin(Criterion):

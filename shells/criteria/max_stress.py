@@ -31,7 +31,7 @@ from .roots import linear_ratio
 from .state import FC, FT, INF, ISOTROPIC_MODES, MC, MT, PLY_MODES, S1, S2, SH, T12
 
 
-@njit(cache=True, error_model="numpy")
+@njit(cache=True, inline="always")
 def limits_ratio(m1, f1, m2, f2, m6, f6, x_t, x_c, y_t, y_c, s):
     """Exact R for independent limits on three in-plane components; mode in :data:`PLY_MODES`.
 
@@ -42,12 +42,13 @@ def limits_ratio(m1, f1, m2, f2, m6, f6, x_t, x_c, y_t, y_c, s):
     r1 = linear_ratio(f1, m1, x_t, x_c)
     r2 = linear_ratio(f2, m2, y_t, y_c)
     r6 = linear_ratio(f6, m6, s, s)
-    none = r1 == INF and r2 == INF and r6 == INF
-    first = r1 <= r2 and r1 <= r6
-    second = r2 <= r6
-    r = r1 if first else (r2 if second else r6)
-    mode = (FT if f1 + r1 * m1 >= 0.0 else FC) if first else ((MT if f2 + r2 * m2 >= 0.0 else MC) if second else SH)
-    return (INF if none else r), (-1 if none else mode)
+    if r1 == INF and r2 == INF and r6 == INF:
+        return INF, -1
+    if r1 <= r2 and r1 <= r6:
+        return r1, (FT if f1 + r1 * m1 >= 0.0 else FC)
+    if r2 <= r6:
+        return r2, (MT if f2 + r2 * m2 >= 0.0 else MC)
+    return r6, SH
 
 
 #: Mode indices of an isotropic layer (after the ply modes).

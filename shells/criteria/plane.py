@@ -3,8 +3,7 @@
 ``F1σ1 + F2σ2 + F11σ1² + F22σ2² + F66τ12² + 2F12σ1σ2`` along the load ray
 ``sf + R·sm``, solved exactly for the first R at which it reaches 1, and the
 dominant term at failure (the mode). Written on the components (mechanical
-m1, m2, m6 and fixed g1, g2, g6 of σ1, σ2, τ12), without branches, so that the
-a loop over many points calling it can be vectorised.
+m1, m2, m6 and fixed g1, g2, g6 of σ1, σ2, τ12).
 """
 
 from __future__ import annotations
@@ -16,7 +15,7 @@ from .roots import first_crossing
 from .state import FC, FT, INF, MC, MT, S1, S2, SH, T12
 
 
-@njit(cache=True, error_model="numpy")
+@njit(cache=True, inline="always")
 def plane_quadratic(m1, m2, m6, g1, g2, g6, f1, f2, f11, f22, f66, f12):
     """Coefficients (a, b, c) of the in-plane polynomial criterion minus 1 along the ray.
 
@@ -30,20 +29,24 @@ def plane_quadratic(m1, m2, m6, g1, g2, g6, f1, f2, f11, f22, f66, f12):
     return a, b, c
 
 
-@njit(cache=True, error_model="numpy")
+@njit(cache=True, inline="always")
 def dominant_mode(m1, m2, m6, g1, g2, g6, r, f1, f2, f11, f22, f66):
     """Index in ``PLY_MODES`` of the largest term of an in-plane polynomial at ``g + r·m``.
 
     Terms: fibre ``F1σ1 + F11σ1²``, matrix ``F2σ2 + F22σ2²``, shear ``F66τ12²``;
     the interaction term is left out. -1 when ``r`` is inf.
     """
+    if r == INF:
+        return -1
     s1, s2, s6 = g1 + r * m1, g2 + r * m2, g6 + r * m6
     fib = f1 * s1 + f11 * s1 * s1
     mat = f2 * s2 + f22 * s2 * s2
     she = f66 * s6 * s6
-    mode = SH if (she >= fib and she >= mat) else ((FT if s1 >= 0.0 else FC) if fib >= mat
-                                                   else (MT if s2 >= 0.0 else MC))
-    return -1 if r == INF else mode
+    if she >= fib and she >= mat:
+        return SH
+    if fib >= mat:
+        return FT if s1 >= 0.0 else FC
+    return MT if s2 >= 0.0 else MC
 
 
 @njit(cache=True)
@@ -53,7 +56,7 @@ def plane_strengths(p):
     return 1.0 / xt - 1.0 / xc, 1.0 / yt - 1.0 / yc, 1.0 / (xt * xc), 1.0 / (yt * yc), 1.0 / (s * s)
 
 
-@njit(cache=True, error_model="numpy")
+@njit(cache=True, inline="always")
 def plane_ratio(m1, m2, m6, g1, g2, g6, f1, f2, f11, f22, f66, f12, lo, hi):
     """Exact first R in [lo, hi] at which the in-plane polynomial reaches 1, and the mode; (inf, -1) if none."""
     a, b, c = plane_quadratic(m1, m2, m6, g1, g2, g6, f1, f2, f11, f22, f66, f12)
@@ -61,7 +64,7 @@ def plane_ratio(m1, m2, m6, g1, g2, g6, f1, f2, f11, f22, f66, f12, lo, hi):
     return r, dominant_mode(m1, m2, m6, g1, g2, g6, r, f1, f2, f11, f22, f66)
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def polynomial_ratio(sm, sf, f1, f2, f11, f22, f66, f12, lo, hi):
     """:func:`plane_ratio` on point states ``sm``, ``sf`` (see :mod:`shells.criteria.state`)."""
     return plane_ratio(sm[S1], sm[S2], sm[T12], sf[S1], sf[S2], sf[T12], f1, f2, f11, f22, f66, f12, lo, hi)

@@ -22,6 +22,7 @@ from __future__ import annotations
 import functools
 import hashlib
 import os
+import sys
 import tempfile
 from pathlib import Path
 
@@ -70,10 +71,15 @@ def _folder() -> str:
 
 
 def configure() -> str:
-    """Point numba's cache at the keyed folder (idempotent); return the folder."""
-    from numba.core import config
+    """Point numba's cache at the keyed folder (idempotent); return the folder.
 
+    Numba is not imported here (``plybridge --help`` must stay fast): the folder is put in the environment as
+    ``NUMBA_CACHE_DIR``, which numba reads when it is first imported (and child processes inherit: a keyed
+    folder is kept as is, :func:`cache_folder`), and set in numba's configuration if numba is loaded already.
+    """
     folder = _folder()
-    if config.CACHE_DIR != folder:
+    os.environ["NUMBA_CACHE_DIR"] = folder
+    config = sys.modules.get("numba.core.config")
+    if config is not None and config.CACHE_DIR != folder:
         config.CACHE_DIR = folder
     return folder

@@ -101,7 +101,7 @@ def prepare_by_code(code, p, out):
     return GENERIC
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def point_by_code(code, sm, sf, c, m):
     """``CRITERIA[code].point(sm, sf, c, m)``: (R, mode) at a point of a ply whose form is FAST."""
     if code == 0:

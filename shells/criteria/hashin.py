@@ -121,7 +121,7 @@ class Hashin(Criterion):
         return FAST
 
     @staticmethod
-    @njit(cache=True)
+    @njit(cache=True, inline="always")
     def point(sm, sf, c, m):
         return hashin_ratio(sm[S1], sm[S2], sm[T12], sm[T13], sm[T23], sm[S3], sf[S1], sf[S2], sf[T12], sf[T13],
                             sf[T23], sf[S3], c[m, 0], c[m, 1], c[m, 2], c[m, 3], c[m, 4], c[m, 5], c[m, 6])

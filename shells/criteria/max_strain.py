@@ -58,7 +58,7 @@ class MaxStrain(Criterion):
         return FAST
 
     @staticmethod
-    @njit(cache=True)
+    @njit(cache=True, inline="always")
     def point(sm, sf, c, m):
         return strain_ratio(sm[S1], sm[S2], sm[T12], sf[S1], sf[S2], sf[T12], c[m, 0], c[m, 1], c[m, 2], c[m, 3],
                             c[m, 4], c[m, 5], c[m, 6], c[m, 7], c[m, 8])

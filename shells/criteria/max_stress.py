@@ -113,7 +113,7 @@ class MaxStress(Criterion):
         return FAST
 
     @staticmethod
-    @njit(cache=True)
+    @njit(cache=True, inline="always")
     def point(sm, sf, c, m):
         return limits_ratio(sm[S1], sf[S1], sm[S2], sf[S2], sm[T12], sf[T12], c[m, 0], c[m, 1], c[m, 2], c[m, 3],
                             c[m, 4])

@@ -8,6 +8,7 @@ import pytest
 from postproc.recover import Envelope, recover_cells, recover_into
 from shells.criteria import CRITERIA, by_name, code
 from shells.criteria.dispatch import ratio_by_code
+from shells.criteria.prepared import FAST, NCONST, SKIP
 from shells.laminate import Laminate, Ply
 from shells.materials import Core, Isotropic, Orthotropic
 from shells.ply_defaults import StrainLimits
@@ -43,6 +44,24 @@ def test_dispatch_matches_every_registered_criterion(criterion):
         for _ in range(20):
             sm, sf = rng.normal(0, 30, 6), rng.normal(0, 5, 6)
             assert ratio_by_code(code(criterion.name), sm, sf, p) == criterion.ratio(sm, sf, p)
+
+
+@pytest.mark.parametrize("criterion", CRITERIA, ids=lambda c: c.name)
+def test_prepared_form_gives_the_bits_of_ratio(criterion):
+    # The kernel's fast path (constants prepared once per ply, then point) against the criterion's own ratio,
+    # with and without a fixed part (the closed-form and the searched paths of Puck and LaRC03).
+    rng = np.random.default_rng(100 + code(criterion.name))
+    for mat in (KAW, AL, CORE):
+        p = mat.params()
+        c = np.zeros((2, NCONST))
+        form = criterion.prepare(p, c[1])
+        for k in range(20):
+            sm, sf = rng.normal(0, 30, 6), rng.normal(0, 5, 6) * (k % 2)
+            want = criterion.ratio(sm, sf, p)
+            if form == FAST:
+                assert criterion.point(sm, sf, c, 1) == want
+            elif form == SKIP:
+                assert want == (np.inf, -1)
 
 
 def _random_model(n=60, ncase=3, seed=1):

@@ -142,14 +142,28 @@ def exposure(s1, s2, t, c):
 def larc03_ratio(m1, m2, m6, g1, g2, g6, homogeneous, c):
     """Strength ratio and mode along ``g + R·m`` (σ1, σ2, τ12); ``homogeneous``: σ1 ≥ 0 along the load and no
     fixed part at all (R in closed form), else searched."""
-    st = search_start(homogeneous)
-    r = 0.0
-    while True:
-        f, m = exposure(g1 + r * m1, g2 + r * m2, abs(g6 + r * m6), c)
-        if search_done(st):
-            return search_result(st, m)
+    st, m = search_start(homogeneous), -1       # the first point is R = 0
+    while not search_done(st):
+        f, m = exposure(g1 + search_point(st) * m1, g2 + search_point(st) * m2, abs(g6 + search_point(st) * m6), c)
         st = search_next(st, f)
-        r = search_point(st)
+    return search_result(st, m)
+
+
+@njit(cache=True)
+def larc03_prepare(p, out):
+    """The prepared form of a ply (:mod:`shells.criteria.prepared`): its constants, or SKIP off plies."""
+    ply = p[P.KIND] == P.KIND_PLY
+    if ply:
+        larc03_constants(p, out)
+    return FAST if ply else SKIP
+
+
+@njit(cache=True)
+def larc03_point(sm, sf, c, m):
+    """(R, mode) at a point with the ply's constants in row ``m`` of ``c``; R in closed form when σ1 ≥ 0 along
+    the load and nothing is fixed."""
+    return larc03_ratio(sm[S1], sm[S2], sm[T12], sf[S1], sf[S2], sf[T12], sm[S1] >= 0.0 and not has_fixed(sf),
+                        c[m])
 
 
 class LaRC03(Criterion):
@@ -161,23 +175,8 @@ class LaRC03(Criterion):
     @staticmethod
     @njit(cache=True)
     def ratio(sm, sf, p):
-        if p[P.KIND] != P.KIND_PLY:
-            return INF, -1
-        c = np.empty(NLARC)
-        larc03_constants(p, c)
-        return larc03_ratio(sm[S1], sm[S2], sm[T12], sf[S1], sf[S2], sf[T12], sm[S1] >= 0.0 and not has_fixed(sf),
-                            c)
+        c = np.empty((1, NLARC))
+        return larc03_point(sm, sf, c, 0) if larc03_prepare(p, c[0]) == FAST else (INF, -1)
 
-    @staticmethod
-    @njit(cache=True)
-    def prepare(p, out):
-        if p[P.KIND] != P.KIND_PLY:
-            return SKIP
-        larc03_constants(p, out)
-        return FAST
-
-    @staticmethod
-    @njit(cache=True)
-    def point(sm, sf, c, m):
-        return larc03_ratio(sm[S1], sm[S2], sm[T12], sf[S1], sf[S2], sf[T12], sm[S1] >= 0.0 and not has_fixed(sf),
-                            c[m])
+    prepare = staticmethod(larc03_prepare)
+    point = staticmethod(larc03_point)

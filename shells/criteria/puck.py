@@ -83,14 +83,26 @@ def exposure(s1, s2, t, c):
 def puck_ratio(m1, m2, m6, g1, g2, g6, homogeneous, c):
     """Strength ratio and mode along ``g + R·m`` (σ1, σ2, τ21); ``homogeneous``: no fixed part at all (R in
     closed form), else searched."""
-    st = search_start(homogeneous)
-    r = 0.0
-    while True:
-        f, m = exposure(g1 + r * m1, g2 + r * m2, abs(g6 + r * m6), c)
-        if search_done(st):
-            return search_result(st, m)
+    st, m = search_start(homogeneous), -1       # the first point is R = 0
+    while not search_done(st):
+        f, m = exposure(g1 + search_point(st) * m1, g2 + search_point(st) * m2, abs(g6 + search_point(st) * m6), c)
         st = search_next(st, f)
-        r = search_point(st)
+    return search_result(st, m)
+
+
+@njit(cache=True)
+def puck_prepare(p, out):
+    """The prepared form of a ply (:mod:`shells.criteria.prepared`): its constants, or SKIP off plies."""
+    if p[P.KIND] != P.KIND_PLY:
+        return SKIP
+    puck_constants(p, out)
+    return FAST
+
+
+@njit(cache=True)
+def puck_point(sm, sf, c, m):
+    """(R, mode) at a point with the ply's constants in row ``m`` of ``c``: closed form without a fixed part."""
+    return puck_ratio(sm[S1], sm[S2], sm[T12], sf[S1], sf[S2], sf[T12], not has_fixed(sf), c[m])
 
 
 class Puck(Criterion):
@@ -103,21 +115,8 @@ class Puck(Criterion):
     @staticmethod
     @njit(cache=True)
     def ratio(sm, sf, p):
-        if p[P.KIND] != P.KIND_PLY:
-            return INF, -1
-        c = np.empty(NPUCK)
-        puck_constants(p, c)
-        return puck_ratio(sm[S1], sm[S2], sm[T12], sf[S1], sf[S2], sf[T12], not has_fixed(sf), c)
+        c = np.empty((1, NPUCK))
+        return puck_point(sm, sf, c, 0) if puck_prepare(p, c[0]) == FAST else (INF, -1)
 
-    @staticmethod
-    @njit(cache=True)
-    def prepare(p, out):
-        if p[P.KIND] != P.KIND_PLY:
-            return SKIP
-        puck_constants(p, out)
-        return FAST
-
-    @staticmethod
-    @njit(cache=True)
-    def point(sm, sf, c, m):
-        return puck_ratio(sm[S1], sm[S2], sm[T12], sf[S1], sf[S2], sf[T12], not has_fixed(sf), c[m])
+    prepare = staticmethod(puck_prepare)
+    point = staticmethod(puck_point)

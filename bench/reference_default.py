@@ -14,12 +14,14 @@ functions with their per-ply constants computed once (so that reference measures
 what the kernel adds around a criterion, not a faster criterion).
 
 - :func:`plain` — a single-purpose fused kernel written the plain way: a loop over cells (parallel), cases,
-  plies and points, each criterion written out with its per-ply constants computed once.
+  plies and points, each criterion by its module's scalar function (``limits_ratio``, ``strain_ratio``,
+  ``plane_ratio``, ``hashin_ratio``) called directly with its per-ply constants computed once: no dispatch by
+  code, no property vector, no point-state arrays.
 - :func:`vector` — written for the vector units: blocks of 64 cells held as structure-of-arrays, one loop over
   the cells of a block per ply point in which every branch is a select, so the compiler vectorises it.
 
-Both follow the product's arithmetic operation by operation, so their margins equal the product's bit for
-bit (``bench/kernel_bench.py`` checks this on every run).
+Both follow the product's arithmetic operation by operation (the vectorised one in its own select forms), so
+their margins equal the product's bit for bit (``bench/kernel_bench.py`` checks this on every run).
 """
 
 from __future__ import annotations
@@ -29,7 +31,11 @@ import math
 import numpy as np
 from numba import njit, prange
 
+from shells.criteria.hashin import hashin_ratio
 from shells.criteria.larc03 import larc03_ratio
+from shells.criteria.max_strain import strain_ratio
+from shells.criteria.max_stress import limits_ratio
+from shells.criteria.plane import plane_ratio
 from shells.criteria.puck import puck_ratio
 
 INF = np.inf
@@ -68,144 +74,36 @@ def constants(params: np.ndarray) -> np.ndarray:
 
 
 # ---------------------------------------------------------------------------------------------------------
-# Plain scalar forms
+# Plain scalar forms: the criteria's own scalar functions on the constants of :func:`constants`
 
 
-@njit(inline="always", error_model="numpy")
-def lin(f, m, up, lo):
-    if f >= up or f <= -lo:
-        return 0.0
-    if m > 0.0:
-        return (up - f) / m
-    if m < 0.0:
-        return (f + lo) / (-m)
-    return INF
+@njit(inline="always")
+def default_ratio(slot, m1, m2, m6, m13, m23, m3, g1, g2, g6, g3, k):
+    """Strength ratio and mode of default criterion ``slot`` (max stress, max strain, Tsai-Wu, Hashin)."""
+    if slot == 0:
+        return limits_ratio(m1, g1, m2, g2, m6, g6, k[XT], k[XC], k[YT], k[YC], k[S12])
+    if slot == 1:
+        return strain_ratio(m1, m2, m6, g1, g2, g6, k[E1], k[E2], k[G12], k[NU12], k[EFT], k[EFC], k[EMT],
+                            k[EMC], k[ESH])
+    if slot == 2:
+        return plane_ratio(m1, m2, m6, g1, g2, g6, k[F1], k[F2], k[F11], k[F22], k[F66], k[F12], 0.0, INF)
+    return hashin_ratio(m1, m2, m6, m13, m23, m3, g1, g2, g6, 0.0, 0.0, g3, k[XC], k[HK], k[HQ], k[HQ23], k[HKT],
+                        k[HLIN], k[HKC])
 
 
-@njit(inline="always", error_model="numpy")
-def limits(m1, f1, m2, f2, m6, f6, xt, xc, yt, yc, s):
-    r1 = lin(f1, m1, xt, xc)
-    r2 = lin(f2, m2, yt, yc)
-    r6 = lin(f6, m6, s, s)
-    if r1 == INF and r2 == INF and r6 == INF:
-        return INF, -1
-    if r1 <= r2 and r1 <= r6:
-        return r1, (0 if f1 + r1 * m1 >= 0.0 else 1)
-    if r2 <= r6:
-        return r2, (2 if f2 + r2 * m2 >= 0.0 else 3)
-    return r6, 4
+@njit(inline="always")
+def to_material(ex, ey, gxy, pc, ps, px):
+    """Strains (ε1, ε2, γ12) from laminate-axis strains; pc, ps, px = cos²θ, sin²θ, cosθ·sinθ."""
+    return pc * ex + ps * ey + px * gxy, ps * ex + pc * ey - px * gxy, -2.0 * px * ex + 2.0 * px * ey + (pc - ps) * gxy
 
 
-@njit(inline="always", error_model="numpy")
-def crossing(a, b, c, lo, hi):
-    if (a * lo + b) * lo + c >= 0.0:
-        return lo
-    if a == 0.0:
-        if b == 0.0:
-            return INF
-        r1, r2 = -c / b, INF
-    else:
-        disc = b * b - 4.0 * a * c
-        if disc < 0.0:
-            return INF
-        q = -0.5 * (b + math.copysign(math.sqrt(disc), b))
-        if q == 0.0:
-            r1, r2 = 0.0, 0.0
-        else:
-            r1, r2 = q / a, c / q
-            if not r1 <= r2:
-                r1, r2 = r2, r1
-    if lo < r1 <= hi:
-        return r1
-    if lo < r2 <= hi:
-        return r2
-    return INF
-
-
-@njit(inline="always", error_model="numpy")
-def tsai_wu(m1, m2, m6, g1, g2, g6, k):
-    f1, f2, f11, f22, f66, f12 = k[F1], k[F2], k[F11], k[F22], k[F66], k[F12]
-    a = f11 * m1 * m1 + f22 * m2 * m2 + f66 * m6 * m6 + 2.0 * f12 * m1 * m2
-    b = (f1 * m1 + f2 * m2 + 2.0 * (f11 * g1 * m1 + f22 * g2 * m2 + f66 * g6 * m6)
-         + 2.0 * f12 * (g1 * m2 + g2 * m1))
-    c = f1 * g1 + f2 * g2 + f11 * g1 * g1 + f22 * g2 * g2 + f66 * g6 * g6 + 2.0 * f12 * g1 * g2 - 1.0
-    r = crossing(a, b, c, 0.0, INF)
-    if r == INF:
-        return r, -1
-    s1, s2, s6 = g1 + r * m1, g2 + r * m2, g6 + r * m6
-    fib = f1 * s1 + f11 * s1 * s1
-    mat = f2 * s2 + f22 * s2 * s2
-    she = f66 * s6 * s6
-    if she >= fib and she >= mat:
-        return r, 4
-    if fib >= mat:
-        return r, (0 if s1 >= 0.0 else 1)
-    return r, (2 if s2 >= 0.0 else 3)
-
-
-@njit(inline="always", error_model="numpy")
-def sign_on(f, m, lo, hi):
-    mid = 2.0 * lo + 1.0 if hi == INF else 0.5 * (lo + hi)
-    v = f + mid * m
-    return 1 if v > 0.0 else (-1 if v < 0.0 else 0)
-
-
-@njit(inline="always", error_model="numpy")
-def hashin_fibre(m1, m6, m13, g1, g6, g13, k, lo, hi):
-    if not hi > lo:
-        return INF, -1
-    sg = sign_on(g1, m1, lo, hi)
-    if sg == 0:
-        return INF, -1
-    if sg < 0:
-        xc = k[XC]
-        return crossing(0.0, -m1 / xc, -g1 / xc - 1.0, lo, hi), 1
-    kk, q = k[HK], k[HQ]
-    a = kk * m1 * m1 + q * (m6 * m6 + m13 * m13)
-    b = 2.0 * (kk * g1 * m1 + q * (g6 * m6 + g13 * m13))
-    c = kk * g1 * g1 + q * (g6 * g6 + g13 * g13) - 1.0
-    return crossing(a, b, c, lo, hi), 0
-
-
-@njit(inline="always", error_model="numpy")
-def hashin_matrix(m2, m6, m13, m23, m3, g2, g6, g13, g23, g3, k, lo, hi):
-    if not hi > lo:
-        return INF, -1
-    gs, ms = g2 + g3, m2 + m3
-    kq, q = k[HQ], k[HQ23]
-    a = kq * (m6 * m6 + m13 * m13) + q * (m23 * m23 - m2 * m3)
-    b = kq * ((g6 * m6 + g6 * m6) + (g13 * m13 + g13 * m13)) + q * ((g23 * m23 + g23 * m23) - (g2 * m3 + g3 * m2))
-    c = kq * (g6 * g6 + g13 * g13) + q * (g23 * g23 - g2 * g3) - 1.0
-    if sign_on(gs, ms, lo, hi) >= 0:
-        kt = k[HKT]
-        return crossing(a + kt * ms * ms, b + 2.0 * kt * gs * ms, c + kt * gs * gs, lo, hi), 2
-    lin_, kc = k[HLIN], k[HKC]
-    return crossing(a + kc * ms * ms, b + 2.0 * kc * gs * ms + lin_ * ms, c + kc * gs * gs + lin_ * gs, lo, hi), 3
-
-
-@njit(inline="always", error_model="numpy")
-def breaks(f, m):
-    if m == 0.0:
-        return INF
-    r = -f / m
-    return r if r > 0.0 else INF
-
-
-@njit(inline="always", error_model="numpy")
-def hashin(m1, m2, m6, m13, m23, m3, g1, g2, g6, g13, g23, g3, k):
-    bf = breaks(g1, m1)
-    r, md = hashin_fibre(m1, m6, m13, g1, g6, g13, k, 0.0, bf)
-    if r == INF:
-        r, md = hashin_fibre(m1, m6, m13, g1, g6, g13, k, bf, INF)
-    bm = breaks(g2 + g3, m2 + m3)
-    rm, mm = hashin_matrix(m2, m6, m13, m23, m3, g2, g6, g13, g23, g3, k, 0.0, bm)
-    if rm == INF:
-        rm, mm = hashin_matrix(m2, m6, m13, m23, m3, g2, g6, g13, g23, g3, k, bm, INF)
-    if rm < r:
-        return rm, mm
-    if r == INF:
-        return INF, -1
-    return r, md
+@njit(inline="always")
+def ply_stresses(exm, eym, gxm, exf, eyf, gxf, pc, ps, px, q11, q12, q22, q66, fx, fy):
+    """Material-axis stresses (σ1, σ2, τ12), mechanical then fixed, from laminate-axis strains at a point."""
+    e1m, e2m, g12m = to_material(exm, eym, gxm, pc, ps, px)
+    e1f, e2f, g12f = to_material(exf, eyf, gxf, pc, ps, px)
+    return (q11 * e1m + q12 * e2m, q12 * e1m + q22 * e2m, q66 * g12m, q11 * (e1f - fx) + q12 * (e2f - fy),
+            q12 * (e1f - fx) + q22 * (e2f - fy), q66 * g12f)
 
 
 @njit(inline="always", error_model="numpy")
@@ -277,48 +175,25 @@ def plain(R, dT, dM, pres, hpres, fos, cphi, sphi, comp, fixed, z, Q, cs, alpha,
                 fy = alpha[k, 1] * t + beta[k, 1] * h
                 for q in range(3):
                     zz = z[k, q]
-                    exm, eym, gxm = em[0] + zz * em[3], em[1] + zz * em[4], em[2] + zz * em[5]
-                    exf, eyf, gxf = ef[0] + zz * ef[3], ef[1] + zz * ef[4], ef[2] + zz * ef[5]
-                    e1m = pc * exm + ps * eym + px * gxm
-                    e2m = ps * exm + pc * eym - px * gxm
-                    g12m = -2.0 * px * exm + 2.0 * px * eym + (pc - ps) * gxm
-                    e1f = pc * exf + ps * eyf + px * gxf
-                    e2f = ps * exf + pc * eyf - px * gxf
-                    g12f = -2.0 * px * exf + 2.0 * px * eyf + (pc - ps) * gxf
-                    m1, m2, m6 = q11 * e1m + q12 * e2m, q12 * e1m + q22 * e2m, q66 * g12m
-                    g1 = q11 * (e1f - fx) + q12 * (e2f - fy)
-                    g2 = q12 * (e1f - fx) + q22 * (e2f - fy)
-                    g6 = q66 * g12f
+                    m1, m2, m6, g1, g2, g6 = ply_stresses(
+                        em[0] + zz * em[3], em[1] + zz * em[4], em[2] + zz * em[5], ef[0] + zz * ef[3],
+                        ef[1] + zz * ef[4], ef[2] + zz * ef[5], pc, ps, px, q11, q12, q22, q66, fx, fy)
                     txz = F[k, q, 0, 0] * qx + F[k, q, 0, 1] * qy
                     tyz = F[k, q, 1, 0] * qx + F[k, q, 1, 1] * qy
                     m13, m23 = ct * txz + st * tyz, -st * txz + ct * tyz
                     for slot in range(4 if extra < 0 else 5):
                         if faces_only and slot < 3 and q == 1:          # in-plane criteria at the faces only
                             continue
-                        if slot == 0:
-                            sr, mode = limits(m1, g1, m2, g2, m6, g6, kk[XT], kk[XC], kk[YT], kk[YC], kk[S12])
-                        elif slot == 1:
-                            nu, e1, e2, gg = kk[NU12], kk[E1], kk[E2], kk[G12]
-                            sr, mode = limits((m1 - nu * m2) / e1, (g1 - nu * g2) / e1,
-                                              m2 / e2 - nu * m1 / e1, g2 / e2 - nu * g1 / e1, m6 / gg, g6 / gg,
-                                              kk[EFT], kk[EFC], kk[EMT], kk[EMC], kk[ESH])
-                        elif slot == 2:
-                            sr, mode = tsai_wu(m1, m2, m6, g1, g2, g6, kk)
-                        elif slot == 3:
-                            sr, mode = hashin(m1, m2, m6, m13, m23, m3, g1, g2, g6, 0.0, 0.0, g3, kk)
+                        if slot < 4:
+                            sr, mode = default_ratio(slot, m1, m2, m6, m13, m23, m3, g1, g2, g6, g3, kk)
                         else:
                             sr, mode = extra_ratio(extra, m1, m2, m6, g1, g2, g6, g3, KX[k])
                         ms = sr * inv_fos - 1.0
-                        if ms < case_ms[i, j]:
-                            case_ms[i, j] = ms
-                        if ms < crit_ms[i, slot]:
-                            crit_ms[i, slot] = ms
+                        case_ms[i, j] = ms if ms < case_ms[i, j] else case_ms[i, j]
+                        crit_ms[i, slot] = ms if ms < crit_ms[i, slot] else crit_ms[i, slot]
                         if ms < env_ms[i, k]:
-                            env_ms[i, k] = ms
-                            env_sr[i, k] = sr
-                            env_case[i, k] = j
-                            env_point[i, k] = q
-                            env_crit[i, k] = CODES[slot] if slot < 4 else extra
+                            env_ms[i, k], env_sr[i, k], env_case[i, k] = ms, sr, j
+                            env_point[i, k], env_crit[i, k] = q, (CODES[slot] if slot < 4 else extra)
                             env_mode[i, k] = mode
 
 
@@ -469,16 +344,7 @@ def lanes_at(w, nl, zz, base, face, pc, ps, px, q11, q12, q22, q66, a0, a1, b0, 
         exf = w[EF * LANES + l] + zz * w[(EF + 3) * LANES + l]
         eyf = w[(EF + 1) * LANES + l] + zz * w[(EF + 4) * LANES + l]
         gxf = w[(EF + 2) * LANES + l] + zz * w[(EF + 5) * LANES + l]
-        e1m = pc * exm + ps * eym + px * gxm
-        e2m = ps * exm + pc * eym - px * gxm
-        g12m = -2.0 * px * exm + 2.0 * px * eym + (pc - ps) * gxm
-        e1f = pc * exf + ps * eyf + px * gxf
-        e2f = ps * exf + pc * eyf - px * gxf
-        g12f = -2.0 * px * exf + 2.0 * px * eyf + (pc - ps) * gxf
-        m1, m2, m6 = q11 * e1m + q12 * e2m, q12 * e1m + q22 * e2m, q66 * g12m
-        g1 = q11 * (e1f - fx) + q12 * (e2f - fy)
-        g2 = q12 * (e1f - fx) + q22 * (e2f - fy)
-        g6 = q66 * g12f
+        m1, m2, m6, g1, g2, g6 = ply_stresses(exm, eym, gxm, exf, eyf, gxf, pc, ps, px, q11, q12, q22, q66, fx, fy)
         if face:
             sr, md = limits_v(m1, g1, m2, g2, m6, g6, xt, xc, yt, yc, s12)
             merge_v(sr * inv_fos - 1.0, sr, base + md + 1, 0, l, w)

@@ -23,6 +23,7 @@ from click.testing import CliRunner
 
 from bridge.cli import main
 from tests.common import assert_one_line_error, run_cli
+from tests.corpus import hostile_files  # noqa: F401  (registers the mesh, store and folder generators)
 from tests.corpus.hostile import GENERATORS, SETUPS
 from tests.corpus.models import HERE, broken_input, write_model
 

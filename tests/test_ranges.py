@@ -13,7 +13,7 @@ import tomllib
 import h5py
 import numpy as np
 import pytest
-from hypothesis import given, settings
+from hypothesis import example, given, settings
 from hypothesis import strategies as st
 
 from bridge.definition.loader import parse_definition
@@ -281,6 +281,7 @@ _HINTED = [(kind, key) for kind, table in RANGES.items() for key in table if tab
 
 @settings(max_examples=400, deadline=None)
 @given(st.sampled_from(_HINTED), st.sampled_from(sorted(SYSTEMS)), st.floats(-12.0, 12.0), st.booleans())
+@example(("isotropic", "alpha"), "lbf-in", 2.0, False)      # 100e-6 /degF is unusual, 100e-6 /degC is not
 def test_following_a_hint_gives_a_value_inside_the_range(kind_key, system_name, exponent, negative):
     """Property: for any value outside its range, every fix the refusal suggests, written into the file as
     suggested, is accepted by the range check; a unit of the other family (psi in an SI file) is suggested only

@@ -122,9 +122,12 @@ def likely_mistake(value: float, r, units: UnitSystem) -> str:
     if r.kind == "dimensionless":
         return (f"looks like {_NAMES[first.reading.unit]}; write \"{first.text}\" or the plain ratio "
                 f"{first.value:g}")
-    if r.kind == "expansion":
-        return f"looks like 1e-6 per degree written without the exponent; write \"{first.text}\""
     here, declared = units.name, show(value, r.kind, units)
+    if r.kind == "expansion":
+        if first.reading.family in ("", FAMILY.get(here, "SI")):
+            return f"looks like 1e-6 per degree written without the exponent; write \"{first.text}\""
+        return (f"looks like 1e-6 {first.reading.spelled} written without the exponent in an {here} file; "
+                f"write \"{first.text}\"")
     options = " or ".join(f"\"{s.text}\" (= {show(s.value, r.kind, units)})" for s in found)
     if r.kind == "density" and here == "lbf-in" and first.reading.unit == "lb/in**3":
         return (f"{value:g} read as {declared}, the consistent mass of lbf-in (386 times lb/in³): "

@@ -40,7 +40,7 @@ def hashin_constants(p):
             ((0.5 * yc / s23) ** 2 - 1.0) / yc, 0.25 / (s23 * s23))
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True, forceinline=True)
 def _fibre(m1, m6, m13, g1, g6, g13, xc, k_xt, k_s12, lo, hi):
     """First failure R of the fibre modes on a piece of constant sign of σ1; (R, mode)."""
     if not hi > lo:
@@ -57,7 +57,7 @@ def _fibre(m1, m6, m13, g1, g6, g13, xc, k_xt, k_s12, lo, hi):
     return first_crossing(a, b, c, lo, hi), 0
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True, forceinline=True)
 def _matrix(gs, ms, a, b, c, k_yt, lin, k_c, lo, hi):
     """First failure R of the matrix modes on a piece of constant sign of σ2 + σ3; (R, mode).
 
@@ -71,7 +71,7 @@ def _matrix(gs, ms, a, b, c, k_yt, lin, k_c, lo, hi):
                           lo, hi), 3
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True, forceinline=True)
 def hashin_ratio(m1, m2, m6, m13, m23, m3, g1, g2, g6, g13, g23, g3, xc, k_xt, k_s12, k_st, k_yt, lin, k_c):
     """Exact R and mode of Hashin's four modes for the stresses ``g + R·m`` (constants: :func:`hashin_constants`).
 

@@ -22,7 +22,7 @@ from .max_stress import limits_ratio
 from .state import INF, PLY_MODES, S1, S2, T12
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True, forceinline=True)
 def strain_ratio(m1, m2, m6, g1, g2, g6, e1, e2, g12, nu12, l_ft, l_fc, l_mt, l_mc, l_sh):
     """Exact R of the strain limits for the stresses ``g + R·m`` (compliance strains of each part)."""
     return limits_ratio((m1 - nu12 * m2) / e1, (g1 - nu12 * g2) / e1, m2 / e2 - nu12 * m1 / e1,

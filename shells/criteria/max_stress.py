@@ -31,7 +31,7 @@ from .roots import linear_ratio
 from .state import FC, FT, INF, ISOTROPIC_MODES, MC, MT, PLY_MODES, S1, S2, SH, T12
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True, forceinline=True)
 def limits_ratio(m1, f1, m2, f2, m6, f6, x_t, x_c, y_t, y_c, s):
     """Exact R for independent limits on three in-plane components; mode in :data:`PLY_MODES`.
 

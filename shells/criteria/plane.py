@@ -15,7 +15,7 @@ from .roots import first_crossing
 from .state import FC, FT, INF, MC, MT, S1, S2, SH, T12
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True, forceinline=True)
 def plane_quadratic(m1, m2, m6, g1, g2, g6, f1, f2, f11, f22, f66, f12):
     """Coefficients (a, b, c) of the in-plane polynomial criterion minus 1 along the ray.
 
@@ -29,7 +29,7 @@ def plane_quadratic(m1, m2, m6, g1, g2, g6, f1, f2, f11, f22, f66, f12):
     return a, b, c
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True, forceinline=True)
 def dominant_mode(m1, m2, m6, g1, g2, g6, r, f1, f2, f11, f22, f66):
     """Index in ``PLY_MODES`` of the largest term of an in-plane polynomial at ``g + r·m``.
 
@@ -56,7 +56,7 @@ def plane_strengths(p):
     return 1.0 / xt - 1.0 / xc, 1.0 / yt - 1.0 / yc, 1.0 / (xt * xc), 1.0 / (yt * yc), 1.0 / (s * s)
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True, forceinline=True)
 def plane_ratio(m1, m2, m6, g1, g2, g6, f1, f2, f11, f22, f66, f12, lo, hi):
     """Exact first R in [lo, hi] at which the in-plane polynomial reaches 1, and the mode; (inf, -1) if none."""
     a, b, c = plane_quadratic(m1, m2, m6, g1, g2, g6, f1, f2, f11, f22, f66, f12)

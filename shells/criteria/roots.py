@@ -1,4 +1,4 @@
-"""Exact root solvers along the load ray ``sf + R·sm`` (numba, inlined into the criteria).
+"""Exact root solvers along the load ray ``sf + R·sm`` (numba; LLVM inlines them into the criteria).
 
 A criterion that is linear or quadratic in the load factor R (on a piece of
 the ray where its signs are constant) is solved exactly with these helpers.
@@ -28,7 +28,7 @@ def at(sm, sf, r, i):
     return sf[i] + r * sm[i]
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True, forceinline=True)
 def linear_ratio(f, m, upper, lower):
     """Smallest R ≥ 0 at which ``f + R·m`` reaches ``upper`` or ``-lower``.
 
@@ -44,7 +44,7 @@ def linear_ratio(f, m, upper, lower):
     return INF
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True, forceinline=True)
 def quadratic_roots(a, b, c):
     """Real roots (r1 ≤ r2) of ``a R² + b R + c = 0``; missing roots are inf.
 
@@ -67,7 +67,7 @@ def quadratic_roots(a, b, c):
     return r2, r1
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True, forceinline=True)
 def first_crossing(a, b, c, lo, hi):
     """First R in ``[lo, hi]`` with ``g(R) = a R² + b R + c ≥ 0``.
 
@@ -84,13 +84,13 @@ def first_crossing(a, b, c, lo, hi):
     return INF
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True, forceinline=True)
 def product_coeffs(gi, mi, gj, mj):
     """Coefficients (of R², R, 1) of the product (gi + R·mi)(gj + R·mj)."""
     return mi * mj, gi * mj + gj * mi, gi * gj
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True, forceinline=True)
 def break_point(f, m):
     """R > 0 at which ``f + R·m`` changes sign, inf if it never does."""
     if m == 0.0:
@@ -99,7 +99,7 @@ def break_point(f, m):
     return r if r > 0.0 else INF
 
 
-@njit(cache=True, inline="always")
+@njit(cache=True, forceinline=True)
 def sign_between(f, m, lo, hi):
     """Sign (−1, 0, 1) of ``f + R·m`` inside the open interval (lo, hi)."""
     mid = 2.0 * lo + 1.0 if hi == INF else 0.5 * (lo + hi)

@@ -36,7 +36,7 @@ from .criteria.dispatch import prepare_table
 from .criteria.roots import linear_ratio
 from .criteria.state import FC, FT
 from .degraded import NTERM, ply_stiffness, ply_terms, running_sums, section_from_sums, solve_scaled
-from .progressive_exact import point_ratios
+from .progressive_exact import ply_ratios
 from .numba_cache import configure
 from .recovery import drop_roundoff
 
@@ -257,11 +257,8 @@ def progressive_block(sec, share, kappa, codes, masks, fibre_mode, retained, blk
                         break
                     done[k] = True
                     row = p0 + k
-                    for pt in range(3):
-                        if pt == 1 and not middle:
-                            continue
-                        rk[k], ck[k], mk[k] = point_ratios(codes, masks, pt, forms[row], consts[row], params[row],
-                                                           bm[k, pt], bf[k, pt], rk[k], ck[k], mk[k])
+                    rk[k], ck[k], mk[k] = ply_ratios(codes, masks, middle, forms, consts, params, row, bm, bf, k,
+                                                     rk[k], ck[k], mk[k])
                     rmin = min(rmin, rk[k])
                 if rmin == np.inf:
                     break              # nothing fails any more under this load direction

@@ -17,39 +17,43 @@ configure()
 
 
 @njit(cache=True)
-def point_ratios(codes, masks, pt, form, const, p, sm, sf, r, crit, mode):
-    """The lowest ratio at point ``pt`` of a ply over the criteria ``codes``, starting from (r, crit, mode).
+def ply_ratios(codes, masks, middle, forms, consts, params, row, bm, bf, k, r, crit, mode):
+    """The lowest ratio of ply slot ``k`` (table row ``row``) over the criteria and points, from (r, crit, mode).
 
     Parameters
     ----------
     codes : int64 (ncrit,), masks : bool (ncrit, 3)
         Criteria and the points (bottom, middle, top) each is checked at.
-    pt : int
-        The point.
-    form : int64 (ncrit,), const : float64 (ncrit, NCONST)
-        The ply row's prepared forms and constants (:func:`shells.criteria.dispatch.prepare_table`).
-    p : float64 (NPARAM,)
-        The ply row's property vector (for criteria without a prepared form on it).
-    sm, sf : float64 (6,)
-        Mechanical and fixed material-axis stresses at the point.
+    middle : bool
+        Whether any criterion is checked at the middle point.
+    forms : int64 (nrows, ncrit), consts : float64 (nrows, ncrit, NCONST)
+        Prepared forms and constants (:func:`shells.criteria.dispatch.prepare_table`).
+    params : float64 (nrows, NPARAM)
+        Property vectors (for the criteria without a prepared form on the row).
+    bm, bf : float64 (maxply, 3, 6)
+        Mechanical and fixed material-axis stresses per ply slot and point.
     r, crit, mode : float, int, int
         The lowest ratio so far, the index in ``codes`` of its criterion and its mode.
 
     Returns
     -------
     r, crit, mode
-        Replaced by a criterion's when strictly lower (criteria in the order of ``codes``).
+        Replaced by a criterion's when strictly lower (points bottom to top, criteria in the order of ``codes``).
     """
-    for m in range(codes.shape[0]):
-        if not masks[m, pt]:
+    for pt in range(3):
+        if pt == 1 and not middle:
             continue
-        f = form[m]
-        if f == SKIP:                 # the criterion does not apply: R = inf
-            continue
-        if f == FAST:
-            sr, md = point_by_code(codes[m], sm, sf, const, m)
-        else:
-            sr, md = ratio_by_code(codes[m], sm, sf, p)
-        if sr < r:
-            r, crit, mode = sr, m, md
+        sm, sf = bm[k, pt], bf[k, pt]
+        for m in range(codes.shape[0]):
+            if not masks[m, pt]:
+                continue
+            f = forms[row, m]
+            if f == SKIP:             # the criterion does not apply: R = inf
+                continue
+            if f == FAST:
+                sr, md = point_by_code(codes[m], sm, sf, consts[row], m)
+            else:
+                sr, md = ratio_by_code(codes[m], sm, sf, params[row])
+            if sr < r:
+                r, crit, mode = sr, m, md
     return r, crit, mode

@@ -209,6 +209,9 @@ def progressive_block(sec, share, kappa, codes, masks, fibre_mode, retained, blk
                     ef[a] = sol[a, 1]
                 drop_roundoff(em, zmax)
                 drop_roundoff(ef, zmax)
+                no_fixed = True        # no fixed part at all: its stresses are zero (the same bits as formed)
+                for a in range(6):
+                    no_fixed = no_fixed and ef[a] == 0.0
                 # Stresses at the checked points; the exact ratio of plies with a matrix failure (their fibre
                 # check) and a lower bound for intact plies (leaving the box κ·B inside every criterion).
                 rmin = np.inf
@@ -227,7 +230,10 @@ def progressive_block(sec, share, kappa, codes, masks, fibre_mode, retained, blk
                         if pt == 1 and (status[k] == 1 or not middle):
                             continue           # convex checks: the faces govern
                         _point(em, z[row, pt], ct, st, q, 0.0, 0.0, bm[k, pt])
-                        _point(ef, z[row, pt], ct, st, q, f1, f2, bf[k, pt])
+                        if no_fixed and f1 == 0.0 and f2 == 0.0:
+                            bf[k, pt, 0] = bf[k, pt, 1] = bf[k, pt, 2] = 0.0
+                        else:
+                            _point(ef, z[row, pt], ct, st, q, f1, f2, bf[k, pt])
                         a, b = bm[k, pt], bf[k, pt]
                         if status[k] == 1:
                             sr = linear_ratio(b[0], a[0], pr[P.XT], pr[P.XC])

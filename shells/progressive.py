@@ -20,10 +20,13 @@ matrix), or when no ply fails any more. The first failure's λ is the first-ply 
 last-ply factor (inf when the laminate never fails completely under the load direction).
 
 Transverse shear, σ3 and sandwich face checks are not part of the discount: the stresses here are the in-plane
-ones (τ13 = τ23 = σ3 = 0). Cost: each step solves the section again and checks the plies; the criteria are
-evaluated exactly only on the intact plies whose lower bound (the ratio of leaving a strength box inside every
-criterion, :mod:`shells.progressive_bounds`) does not rule out a failure at this step, and :data:`CONVEX` criteria
-only at a ply's faces. Conventions: docs/conventions.md; the ply discount: docs/criteria.md.
+ones (τ13 = τ23 = σ3 = 0). Cost: each step sums the section again only from the first ply whose stiffness
+changed (each ply's terms are kept, :func:`shells.degraded.ply_terms`; the sums keep the ply order, so the section
+has the bits of a rebuild), solves it and checks the plies; the criteria are evaluated exactly
+(:mod:`shells.progressive_exact`) only on the intact plies whose lower bound (the ratio of leaving a strength box
+inside every criterion, :mod:`shells.progressive_bounds`) does not rule out a failure at this step, and
+:data:`CONVEX` criteria only at a ply's faces; without a fixed part no fixed stresses are formed. Conventions:
+docs/conventions.md; the ply discount: docs/criteria.md.
 """
 
 from __future__ import annotations

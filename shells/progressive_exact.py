@@ -5,7 +5,8 @@ Kept apart from the parallel kernel, which calls it as an ordinary compiled func
 inlined into the kernel (a shorter cold compile). The prepared forms are used when
 :func:`shells.criteria.dispatch.point_by_code` is itself an ordinary compiled function (its code then shared
 with the recovery kernel); while it is inlined into each caller, a second inlined copy here would add about a
-minute to a cold compile, and the criteria's own ``ratio`` (the same bits, about 1.45× the time) is used.
+minute to a cold compile, and the criteria's own ``ratio`` is used (the same bits; the ply discount about 1.4×
+slower).
 """
 
 from __future__ import annotations

@@ -1,4 +1,4 @@
-"""Exact strength ratios of one ply point for the ply discount (:mod:`shells.progressive`), through the prepared
+"""Exact strength ratios of a ply for the ply discount (:mod:`shells.progressive`), through the prepared
 per-ply forms of the criteria (:mod:`shells.criteria.prepared`), as the recovery kernel evaluates them.
 
 Kept apart from the parallel kernel, which calls it as an ordinary compiled function: the criteria are not

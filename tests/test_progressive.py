@@ -303,3 +303,30 @@ def test_random_stacks_and_cases_match_the_independent_ply_discount(seed):
         np.testing.assert_allclose(last[0, j], want_last, rtol=1e-9)
         assert [(k, s) for k, s, _ in events] == [(k, s) for k, s, _ in want_events]
         np.testing.assert_allclose([x for *_, x in events], [x for *_, x in want_events], rtol=1e-9)
+
+
+def test_prepared_forms_give_the_ratios_of_the_criteria(monkeypatch):
+    # The exact ratios of the discount go through the criteria's prepared per-ply forms once the prepared point
+    # function is called rather than inlined (shells.progressive_exact.PREPARED); either way they are the bits of
+    # the criteria's own ratio. Run as Python (py_func) with the prepared path switched on and off.
+    import shells.progressive_exact as exact
+    from shells.criteria import DEFAULT, code
+    from shells.criteria.dispatch import point_by_code, prepare_table
+
+    params = _tables(QUASI).params
+    codes = np.array([code(n) for n in DEFAULT], np.int64)
+    masks = np.ones((len(codes), 3), np.bool_)
+    forms, consts = prepare_table(codes, params)
+    rng = np.random.default_rng(5)
+    bm = np.zeros((8, 3, 6))
+    bf = np.zeros((8, 3, 6))
+    bm[..., :3] = rng.normal(size=(8, 3, 3)) * np.array([XT, YT, S])
+    bf[..., :3] = rng.normal(size=(8, 3, 3)) * np.array([XT, YT, S]) * 0.3
+    results = []
+    for prepared in (False, True):
+        monkeypatch.setattr(exact, "PREPARED", prepared)
+        monkeypatch.setattr(exact, "_point", point_by_code if prepared else exact._not_prepared)
+        results.append([exact.ply_ratios.py_func(codes, masks, True, forms, consts, params, k, bm, bf, k,
+                                                 np.inf, -1, -1) for k in range(8)])
+    assert results[0] == results[1]
+    assert all(np.isfinite(r) and c >= 0 for r, c, _ in results[0])

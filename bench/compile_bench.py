@@ -6,7 +6,9 @@ with ``NUMBA_CACHE_DIR`` pointing at a new empty folder for the cold run and at
 the same folder for the warm run. Prints wall and CPU seconds of both and their
 difference (the compile time) with ``uptime``.
 
-    python bench/compile_bench.py [--root /path/to/checkout] [--cells 2000] [--cases 2]
+    python bench/compile_bench.py [--root /path/to/checkout] [--cells 2000] [--cases 2] [--progressive]
+
+With ``--progressive`` the definition also runs the ply discount (``[analysis.progressive]``).
 """
 
 from __future__ import annotations
@@ -44,14 +46,17 @@ def main(argv=None) -> None:
     ap.add_argument("--cells", type=int, default=2000)
     ap.add_argument("--cases", type=int, default=2)
     ap.add_argument("--work", default="/tmp/plybridge-bench")
+    ap.add_argument("--progressive", action="store_true", help="with [analysis.progressive] in the definition")
     args = ap.parse_args(argv)
     paths = recover_bench.inputs(Path(args.work), args.cells, args.cases)
+    if args.progressive:
+        paths = recover_bench.with_progressive(paths)
     with tempfile.TemporaryDirectory(prefix="numba-cold-") as cache:
         env = dict(os.environ, NUMBA_CACHE_DIR=cache, PYTHONPATH=args.root)
         out = Path(cache) / "out.h5"
         cmd = [sys.executable, "-m", "bridge.cli", "recover", paths["definition"], paths["mesh"],
                paths["resultants"], "-o", str(out)]
-        print(f"# {args.root}: {args.cells} cells × {args.cases} cases; "
+        print(f"# {args.root}: {args.cells} cells × {args.cases} cases{' progressive' if args.progressive else ''}; "
               f"{subprocess.run(['uptime'], capture_output=True, text=True).stdout.strip()}", flush=True)
         cold = timed(cmd, args.root, env)
         out.unlink()

@@ -113,45 +113,70 @@ def ply_stiffness(row, Q, params, d1, d2, out):
     out[3] = d2 * params[row, P.G12]
 
 
+#: Values of one ply's terms in the section sums: its K[0:3, 0:3], K[0:3, 3:6] and K[3:6, 3:6] (row by row, 9
+#: each), then its thermal and moisture force and moment resultants (3 each).
+NTERM = 33
+
+
 @njit(cache=True)
-def degraded_section(p0, n, z, cs, alpha, beta, Q, params, share, d1, d2, t, h, K, fixed, q):
-    """[A B; B D] (6, 6) and the thermal and moisture resultants (6,) of the degraded section (in place);
-    ``q`` (4,) a work array."""
-    for a in range(6):
-        fixed[a] = 0.0
-        for b in range(6):
-            K[a, b] = 0.0
-    for k in range(n):
-        row = p0 + k
-        ply_stiffness(row, Q, params, d1[k], d2[k], q)
-        c, s = cs[row, 0], cs[row, 1]
-        cc, ss, cx = c * c, s * s, c * s
-        q11, q12, q22, q66 = q[0], q[1], q[2], q[3]
-        # Q̄ = T Q Tᵀ (docs/conventions.md), order x, y, xy.
-        b11 = q11 * cc * cc + 2.0 * (q12 + 2.0 * q66) * cc * ss + q22 * ss * ss
-        b22 = q11 * ss * ss + 2.0 * (q12 + 2.0 * q66) * cc * ss + q22 * cc * cc
-        b12 = (q11 + q22 - 4.0 * q66) * cc * ss + q12 * (cc * cc + ss * ss)
-        b66 = (q11 + q22 - 2.0 * q12 - 2.0 * q66) * cc * ss + q66 * (cc * cc + ss * ss)
-        b16 = (q11 - q12 - 2.0 * q66) * cc * cx + (q12 - q22 + 2.0 * q66) * ss * cx
-        b26 = (q11 - q12 - 2.0 * q66) * ss * cx + (q12 - q22 + 2.0 * q66) * cc * cx
-        Qb = ((b11, b12, b16), (b12, b22, b26), (b16, b26, b66))
-        zb, zt = z[row, 0], z[row, 2]
-        w1 = share[row] * (zt - zb)
-        w2 = share[row] * (zt * zt - zb * zb) / 2.0
-        w3 = share[row] * (zt * zt * zt - zb * zb * zb) / 3.0
-        # Free strain in laminate axes, ε_xy = T⁻ᵀ ε_12: (α1 c² + α2 s², α1 s² + α2 c², 2 (α1 − α2) c s).
-        f1 = alpha[row, 0] * t + beta[row, 0] * h
-        f2 = alpha[row, 1] * t + beta[row, 1] * h
-        free = (f1 * cc + f2 * ss, f1 * ss + f2 * cc, 2.0 * (f1 - f2) * cx)
-        for a in range(3):
-            nt = 0.0
-            for b in range(3):
-                K[a, b] += w1 * Qb[a][b]
-                K[a, b + 3] += w2 * Qb[a][b]
-                K[a + 3, b + 3] += w3 * Qb[a][b]
-                nt += Qb[a][b] * free[b]
-            fixed[a] += w1 * nt
-            fixed[a + 3] += w2 * nt
+def ply_terms(row, z, cs, share, q, f1, f2, out):
+    """One ply's terms of [A B; B D] and of the thermal and moisture resultants into ``out`` (:data:`NTERM`,).
+
+    ``q`` (4,): the ply's Q11, Q12, Q22, Q66 (:func:`ply_stiffness`); ``f1``, ``f2``: its free strains along the
+    material axes (α·ΔT + β·ΔM). The section is the sum of the terms of its plies in ply order
+    (:func:`running_sums`).
+    """
+    c, s = cs[row, 0], cs[row, 1]
+    cc, ss, cx = c * c, s * s, c * s
+    q11, q12, q22, q66 = q[0], q[1], q[2], q[3]
+    # Q̄ = T Q Tᵀ (docs/conventions.md), order x, y, xy.
+    b11 = q11 * cc * cc + 2.0 * (q12 + 2.0 * q66) * cc * ss + q22 * ss * ss
+    b22 = q11 * ss * ss + 2.0 * (q12 + 2.0 * q66) * cc * ss + q22 * cc * cc
+    b12 = (q11 + q22 - 4.0 * q66) * cc * ss + q12 * (cc * cc + ss * ss)
+    b66 = (q11 + q22 - 2.0 * q12 - 2.0 * q66) * cc * ss + q66 * (cc * cc + ss * ss)
+    b16 = (q11 - q12 - 2.0 * q66) * cc * cx + (q12 - q22 + 2.0 * q66) * ss * cx
+    b26 = (q11 - q12 - 2.0 * q66) * ss * cx + (q12 - q22 + 2.0 * q66) * cc * cx
+    Qb = ((b11, b12, b16), (b12, b22, b26), (b16, b26, b66))
+    zb, zt = z[row, 0], z[row, 2]
+    w1 = share[row] * (zt - zb)
+    w2 = share[row] * (zt * zt - zb * zb) / 2.0
+    w3 = share[row] * (zt * zt * zt - zb * zb * zb) / 3.0
+    # Free strain in laminate axes, ε_xy = T⁻ᵀ ε_12: (α1 c² + α2 s², α1 s² + α2 c², 2 (α1 − α2) c s).
+    free = (f1 * cc + f2 * ss, f1 * ss + f2 * cc, 2.0 * (f1 - f2) * cx)
+    for a in range(3):
+        nt = 0.0
+        for b in range(3):
+            out[3 * a + b] = w1 * Qb[a][b]
+            out[9 + 3 * a + b] = w2 * Qb[a][b]
+            out[18 + 3 * a + b] = w3 * Qb[a][b]
+            nt += Qb[a][b] * free[b]
+        out[27 + a] = w1 * nt
+        out[30 + a] = w2 * nt
+
+
+@njit(cache=True)
+def running_sums(terms, sums, k0, n):
+    """``sums[k + 1] = sums[k] + terms[k]`` for k0 ≤ k < n (``sums[0]`` zero): the section of plies 0..k.
+
+    Only the sums after a ply whose terms changed are formed again; the sums keep the order of a ply-by-ply
+    summation, so the section has the same bits as one summed from scratch.
+    """
+    if k0 == 0:
+        for a in range(NTERM):
+            sums[0, a] = 0.0
+    for k in range(k0, n):
+        for a in range(NTERM):
+            sums[k + 1, a] = sums[k, a] + terms[k, a]
+
+
+@njit(cache=True)
+def section_from_sums(total, K, fixed):
+    """[A B; B D] (6, 6) and the thermal and moisture resultants (6,) from a section's sums (:func:`ply_terms`)."""
     for a in range(3):
         for b in range(3):
-            K[b + 3, a] = K[a, b + 3]
+            K[a, b] = total[3 * a + b]
+            K[a, b + 3] = total[9 + 3 * a + b]
+            K[b + 3, a] = total[9 + 3 * a + b]
+            K[a + 3, b + 3] = total[18 + 3 * a + b]
+        fixed[a] = total[27 + a]
+        fixed[a + 3] = total[30 + a]

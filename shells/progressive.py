@@ -20,10 +20,13 @@ matrix), or when no ply fails any more. The first failure's λ is the first-ply 
 last-ply factor (inf when the laminate never fails completely under the load direction).
 
 Transverse shear, σ3 and sandwich face checks are not part of the discount: the stresses here are the in-plane
-ones (τ13 = τ23 = σ3 = 0). Cost: each step solves the section again and checks the plies; the criteria are
-evaluated exactly only on the intact plies whose lower bound (the ratio of leaving a strength box inside every
-criterion, :mod:`shells.progressive_bounds`) does not rule out a failure at this step, and :data:`CONVEX` criteria
-only at a ply's faces. Conventions: docs/conventions.md; the ply discount: docs/criteria.md.
+ones (τ13 = τ23 = σ3 = 0). Cost: each step sums the section again only from the first ply whose stiffness
+changed (each ply's terms are kept, :func:`shells.degraded.ply_terms`; the sums keep the ply order, so the section
+has the bits of a rebuild), solves it and checks the plies; the criteria are evaluated exactly
+(:mod:`shells.progressive_exact`) only on the intact plies whose lower bound (the ratio of leaving a strength box
+inside every criterion, :mod:`shells.progressive_bounds`) does not rule out a failure at this step, and
+:data:`CONVEX` criteria only at a ply's faces; without a fixed part no fixed stresses are formed. Conventions:
+docs/conventions.md; the ply discount: docs/criteria.md.
 """
 
 from __future__ import annotations
@@ -32,10 +35,11 @@ import numpy as np
 from numba import njit, prange
 
 from . import params as P
-from .criteria.dispatch import ratio_by_code
+from .criteria.dispatch import prepare_table
 from .criteria.roots import linear_ratio
 from .criteria.state import FC, FT
-from .degraded import degraded_section, ply_stiffness, solve_scaled
+from .degraded import NTERM, ply_stiffness, ply_terms, running_sums, section_from_sums, solve_scaled
+from .progressive_exact import ply_ratios
 from .numba_cache import configure
 from .recovery import drop_roundoff
 
@@ -123,6 +127,7 @@ def progressive_block(sec, share, kappa, codes, masks, fibre_mode, retained, blk
     middle = False
     for m in range(codes.shape[0]):
         middle = middle or masks[m, 1]
+    forms, consts = prepare_table(codes, params)   # each criterion's constants on each ply, computed once
     for i in prange(ncell):
         K = np.empty((6, 6))
         rhs = np.empty((6, 2))
@@ -130,7 +135,12 @@ def progressive_block(sec, share, kappa, codes, masks, fibre_mode, retained, blk
         gf = np.empty(6)
         em = np.empty(6)
         ef = np.empty(6)
-        q = np.empty(4)
+        hf = np.empty(6)
+        qk = np.empty((maxply, 4))
+        f1k = np.empty(maxply)
+        f2k = np.empty(maxply)
+        terms = np.empty((maxply, NTERM))
+        sums = np.empty((maxply + 1, NTERM))
         wa = np.empty((6, 6))
         wy = np.empty((6, 2))
         ws = np.empty(6)
@@ -162,28 +172,38 @@ def progressive_block(sec, share, kappa, codes, masks, fibre_mode, retained, blk
                 rhs[o + 1, 0] = ss * r[o] + cc * r[o + 1] - 2.0 * cx * r[o + 2]
                 rhs[o + 2, 0] = -cx * r[o] + cx * r[o + 1] + (cc - ss) * r[o + 2]
             t, h = dT[j, i], dM[j, i]
+            for a in range(6):
+                hf[a] = 0.0
+            if held:
+                rh = held_R[j, i]
+                for o in (0, 3):
+                    hf[o] = cc * rh[o] + ss * rh[o + 1] + 2.0 * cx * rh[o + 2]
+                    hf[o + 1] = ss * rh[o] + cc * rh[o + 1] - 2.0 * cx * rh[o + 2]
+                    hf[o + 2] = -cx * rh[o] + cx * rh[o + 1] + (cc - ss) * rh[o + 2]
             carrying = 0
             for k in range(n):
+                row = p0 + k
                 status[k] = 0
                 d1[k] = 1.0
                 d2[k] = 1.0
-                if params[p0 + k, P.KIND] != P.KIND_CORE:
+                if params[row, P.KIND] != P.KIND_CORE:
                     carrying += 1
+                ply_stiffness(row, Q, params, 1.0, 1.0, qk[k])
+                f1k[k] = alpha[row, 0] * t + beta[row, 0] * h
+                f2k[k] = alpha[row, 1] * t + beta[row, 1] * h
+                ply_terms(row, z, cs, share, qk[k], f1k[k], f2k[k], terms[k])
+            k0 = 0                     # first ply whose terms changed since the section was last summed
             lam = 0.0
             f_first = np.inf
             f_last = np.inf
             nev = 0
             fibre_failed = 0
             for _ in range(2 * n + 1):
-                degraded_section(p0, n, z, cs, alpha, beta, Q, params, share, d1, d2, t, h, K, gf, q)
+                running_sums(terms, sums, k0, n)
+                k0 = n
+                section_from_sums(sums[n], K, gf)
                 for a in range(6):
-                    rhs[a, 1] = gf[a]
-                if held:
-                    rh = held_R[j, i]
-                    for o in (0, 3):
-                        rhs[o, 1] += cc * rh[o] + ss * rh[o + 1] + 2.0 * cx * rh[o + 2]
-                        rhs[o + 1, 1] += ss * rh[o] + cc * rh[o + 1] - 2.0 * cx * rh[o + 2]
-                        rhs[o + 2, 1] += -cx * rh[o] + cx * rh[o + 1] + (cc - ss) * rh[o + 2]
+                    rhs[a, 1] = gf[a] + hf[a] if held else gf[a]
                 if not solve_scaled(K, rhs, sol, wa, wy, ws, wc):
                     f_last = lam       # the stiffness left no longer carries the load
                     break
@@ -192,6 +212,9 @@ def progressive_block(sec, share, kappa, codes, masks, fibre_mode, retained, blk
                     ef[a] = sol[a, 1]
                 drop_roundoff(em, zmax)
                 drop_roundoff(ef, zmax)
+                no_fixed = True        # no fixed part at all: its stresses are zero (the same bits as formed)
+                for a in range(6):
+                    no_fixed = no_fixed and ef[a] == 0.0
                 # Stresses at the checked points; the exact ratio of plies with a matrix failure (their fibre
                 # check) and a lower bound for intact plies (leaving the box κ·B inside every criterion).
                 rmin = np.inf
@@ -203,16 +226,17 @@ def progressive_block(sec, share, kappa, codes, masks, fibre_mode, retained, blk
                         continue
                     row = p0 + k
                     ct, st = cs[row, 0], cs[row, 1]
-                    ply_stiffness(row, Q, params, d1[k], d2[k], q)
-                    f1 = alpha[row, 0] * t + beta[row, 0] * h
-                    f2 = alpha[row, 1] * t + beta[row, 1] * h
+                    q, f1, f2 = qk[k], f1k[k], f2k[k]
                     pr = params[row]
                     kap = kappa[row]
                     for pt in range(3):
                         if pt == 1 and (status[k] == 1 or not middle):
                             continue           # convex checks: the faces govern
                         _point(em, z[row, pt], ct, st, q, 0.0, 0.0, bm[k, pt])
-                        _point(ef, z[row, pt], ct, st, q, f1, f2, bf[k, pt])
+                        if no_fixed and f1 == 0.0 and f2 == 0.0:
+                            bf[k, pt, 0] = bf[k, pt, 1] = bf[k, pt, 2] = 0.0
+                        else:
+                            _point(ef, z[row, pt], ct, st, q, f1, f2, bf[k, pt])
                         a, b = bm[k, pt], bf[k, pt]
                         if status[k] == 1:
                             sr = linear_ratio(b[0], a[0], pr[P.XT], pr[P.XC])
@@ -241,16 +265,9 @@ def progressive_block(sec, share, kappa, codes, masks, fibre_mode, retained, blk
                     if k < 0 or lb[k] > max(lam, rmin) * (1.0 + TIE):
                         break
                     done[k] = True
-                    pr = params[p0 + k]
-                    for pt in range(3):
-                        if pt == 1 and not middle:
-                            continue
-                        for m in range(codes.shape[0]):
-                            if not masks[m, pt]:
-                                continue
-                            sr, mode = ratio_by_code(codes[m], bm[k, pt], bf[k, pt], pr)
-                            if sr < rk[k]:
-                                rk[k], ck[k], mk[k] = sr, m, mode
+                    row = p0 + k
+                    rk[k], ck[k], mk[k] = ply_ratios(codes, masks, middle, forms, consts, params, row, bm, bf, k,
+                                                     rk[k], ck[k], mk[k])
                     rmin = min(rmin, rk[k])
                 if rmin == np.inf:
                     break              # nothing fails any more under this load direction
@@ -275,6 +292,9 @@ def progressive_block(sec, share, kappa, codes, masks, fibre_mode, retained, blk
                     else:
                         status[k] = 1
                         d2[k] *= retained[0]
+                    ply_stiffness(p0 + k, Q, params, d1[k], d2[k], qk[k])
+                    ply_terms(p0 + k, z, cs, share, qk[k], f1k[k], f2k[k], terms[k])
+                    k0 = min(k0, k)
                     if record and nev < seq.shape[2]:
                         seq[j, i, nev, 0] = k
                         seq[j, i, nev, 1] = codes[ck[k]] if ck[k] >= 0 else FIBRE_CHECK

@@ -278,3 +278,55 @@ def test_inner_box_is_inside_the_criterion(name):
         r = ratio_by_code(code(name), sm, sf, p)[0]
         lo = min((box[0, i] - sf[i]) / sm[i] if sm[i] > 0 else (sf[i] + box[1, i]) / -sm[i] for i in range(3))
         assert r >= lo * (1 - 1e-12), (name, sm, sf, r, lo)
+
+
+@pytest.mark.parametrize("seed", range(6))
+def test_random_stacks_and_cases_match_the_independent_ply_discount(seed):
+    # The kernel keeps each ply's section terms and sums them again only after a ply that changed, and checks the
+    # criteria through their prepared per-ply forms: on random stacks (unsymmetric too) and several cases of
+    # one call (mechanical with moments, thermal, cases one after the other on the same cell), the factors
+    # and the failure sequence are those of the independent calculation above.
+    rng = np.random.default_rng(100 + seed)
+    angles = tuple(rng.choice([0, 30, -30, 45, -45, 60, 90], size=rng.integers(3, 9)).tolist())
+    criterion, ratio_fn = (("max-stress", _max_stress), ("tsai-wu", _tsai_wu))[seed % 2]
+    retained = ((0.0, 0.0), (0.2, 0.05), (0.5, 0.0))[seed % 3]
+    loads = rng.normal(size=(3, 6)) * np.array([100.0, 60.0, 30.0, 5.0, 3.0, 2.0])
+    dT = np.array([0.0, -80.0, 40.0])
+    R = np.zeros((3, 1, 8))
+    R[:, 0, :6] = loads
+    first, last, seq = progressive_cells((by_name(criterion),), _tables(angles), np.zeros(1, np.int64),
+                                         np.zeros(1), R, dT[:, None], retained=retained, sequence=True)
+    for j in range(3):
+        want_first, want_last, want_events = discount(angles, loads[j], ratio_fn, retained, dT[j])
+        events = [(int(e[0]), int(e[3]), e[4]) for e in seq[j, 0] if np.isfinite(e[0])]
+        np.testing.assert_allclose(first[0, j], want_first, rtol=1e-9)
+        np.testing.assert_allclose(last[0, j], want_last, rtol=1e-9)
+        assert [(k, s) for k, s, _ in events] == [(k, s) for k, s, _ in want_events]
+        np.testing.assert_allclose([x for *_, x in events], [x for *_, x in want_events], rtol=1e-9)
+
+
+def test_prepared_forms_give_the_ratios_of_the_criteria(monkeypatch):
+    # The exact ratios of the discount go through the criteria's prepared per-ply forms once the prepared point
+    # function is called rather than inlined (shells.progressive_exact.PREPARED); either way they are the bits of
+    # the criteria's own ratio. Run as Python (py_func) with the prepared path switched on and off.
+    import shells.progressive_exact as exact
+    from shells.criteria import DEFAULT, code
+    from shells.criteria.dispatch import point_by_code, prepare_table
+
+    params = _tables(QUASI).params
+    codes = np.array([code(n) for n in DEFAULT], np.int64)
+    masks = np.ones((len(codes), 3), np.bool_)
+    forms, consts = prepare_table(codes, params)
+    rng = np.random.default_rng(5)
+    bm = np.zeros((8, 3, 6))
+    bf = np.zeros((8, 3, 6))
+    bm[..., :3] = rng.normal(size=(8, 3, 3)) * np.array([XT, YT, S])
+    bf[..., :3] = rng.normal(size=(8, 3, 3)) * np.array([XT, YT, S]) * 0.3
+    results = []
+    for prepared in (False, True):
+        monkeypatch.setattr(exact, "PREPARED", prepared)
+        monkeypatch.setattr(exact, "_point", point_by_code if prepared else exact._not_prepared)
+        results.append([exact.ply_ratios.py_func(codes, masks, True, forms, consts, params, k, bm, bf, k,
+                                                 np.inf, -1, -1) for k in range(8)])
+    assert results[0] == results[1]
+    assert all(np.isfinite(r) and c >= 0 for r, c, _ in results[0])

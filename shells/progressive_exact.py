@@ -1,0 +1,82 @@
+"""Exact strength ratios of a ply for the ply discount (:mod:`shells.progressive`), through the prepared
+per-ply forms of the criteria (:mod:`shells.criteria.prepared`), as the recovery kernel evaluates them.
+
+Kept apart from the parallel kernel, which calls it as an ordinary compiled function: the criteria are not
+inlined into the kernel (a shorter cold compile). The prepared forms are used when
+:func:`shells.criteria.dispatch.point_by_code` is itself an ordinary compiled function (its code then shared
+with the recovery kernel); while it is inlined into each caller, a second inlined copy here would add about a
+minute to a cold compile, and the criteria's own ``ratio`` is used (the same bits; the ply discount about 1.4×
+slower).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+from numba import njit
+
+from .criteria.dispatch import point_by_code, ratio_by_code
+from .criteria.prepared import FAST, SKIP
+from .numba_cache import configure
+
+configure()
+
+
+def _called(fn) -> bool:
+    """Whether the compiled function ``fn`` is called rather than inlined into its callers."""
+    return getattr(fn, "targetoptions", {}).get("inline", "never") == "never"
+
+
+#: Whether the exact ratios go through the prepared forms (see the module notes).
+PREPARED = _called(point_by_code)
+
+
+@njit(cache=True)
+def _not_prepared(code, sm, sf, c, m):
+    """Stands for :func:`point_by_code` while it is inlined (never called then: :data:`PREPARED` is False)."""
+    return np.inf, -1
+
+
+_point = point_by_code if PREPARED else _not_prepared
+
+
+@njit(cache=True)
+def ply_ratios(codes, masks, middle, forms, consts, params, row, bm, bf, k, r, crit, mode):
+    """The lowest ratio of ply slot ``k`` (table row ``row``) over the criteria and points, from (r, crit, mode).
+
+    Parameters
+    ----------
+    codes : int64 (ncrit,), masks : bool (ncrit, 3)
+        Criteria and the points (bottom, middle, top) each is checked at.
+    middle : bool
+        Whether any criterion is checked at the middle point.
+    forms : int64 (nrows, ncrit), consts : float64 (nrows, ncrit, NCONST)
+        Prepared forms and constants (:func:`shells.criteria.dispatch.prepare_table`).
+    params : float64 (nrows, NPARAM)
+        Property vectors (for the criteria without a prepared form on the row).
+    bm, bf : float64 (maxply, 3, 6)
+        Mechanical and fixed material-axis stresses per ply slot and point.
+    r, crit, mode : float, int, int
+        The lowest ratio so far, the index in ``codes`` of its criterion and its mode.
+
+    Returns
+    -------
+    r, crit, mode
+        Replaced by a criterion's when strictly lower (points bottom to top, criteria in the order of ``codes``).
+    """
+    for pt in range(3):
+        if pt == 1 and not middle:
+            continue
+        sm, sf = bm[k, pt], bf[k, pt]
+        for m in range(codes.shape[0]):
+            if not masks[m, pt]:
+                continue
+            f = forms[row, m]
+            if f == SKIP:             # the criterion does not apply: R = inf
+                continue
+            if PREPARED and f == FAST:
+                sr, md = _point(codes[m], sm, sf, consts[row], m)
+            else:
+                sr, md = ratio_by_code(codes[m], sm, sf, params[row])
+            if sr < r:
+                r, crit, mode = sr, m, md
+    return r, crit, mode

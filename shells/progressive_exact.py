@@ -2,16 +2,12 @@
 per-ply forms of the criteria (:mod:`shells.criteria.prepared`), as the recovery kernel evaluates them.
 
 Kept apart from the parallel kernel, which calls it as an ordinary compiled function: the criteria are not
-inlined into the kernel (a shorter cold compile). The prepared forms are used when
-:func:`shells.criteria.dispatch.point_by_code` is itself an ordinary compiled function (its code then shared
-with the recovery kernel); while it is inlined into each caller, a second inlined copy here would add about a
-minute to a cold compile, and the criteria's own ``ratio`` is used (the same bits; the ply discount about 1.4×
-slower).
+typed again inside the kernel's parallel loop (a shorter cold compile). The prepared forms give the bits of the
+criteria's own ``ratio`` (about 1.4× faster in the ply discount).
 """
 
 from __future__ import annotations
 
-import numpy as np
 from numba import njit
 
 from .criteria.dispatch import point_by_code, ratio_by_code
@@ -19,24 +15,6 @@ from .criteria.prepared import FAST, SKIP
 from .numba_cache import configure
 
 configure()
-
-
-def _called(fn) -> bool:
-    """Whether the compiled function ``fn`` is called rather than inlined into its callers."""
-    return getattr(fn, "targetoptions", {}).get("inline", "never") == "never"
-
-
-#: Whether the exact ratios go through the prepared forms (see the module notes).
-PREPARED = _called(point_by_code)
-
-
-@njit(cache=True)
-def _not_prepared(code, sm, sf, c, m):
-    """Stands for :func:`point_by_code` while it is inlined (never called then: :data:`PREPARED` is False)."""
-    return np.inf, -1
-
-
-_point = point_by_code if PREPARED else _not_prepared
 
 
 @njit(cache=True)
@@ -73,8 +51,8 @@ def ply_ratios(codes, masks, middle, forms, consts, params, row, bm, bf, k, r, c
             f = forms[row, m]
             if f == SKIP:             # the criterion does not apply: R = inf
                 continue
-            if PREPARED and f == FAST:
-                sr, md = _point(codes[m], sm, sf, consts[row], m)
+            if f == FAST:
+                sr, md = point_by_code(codes[m], sm, sf, consts[row], m)
             else:
                 sr, md = ratio_by_code(codes[m], sm, sf, params[row])
             if sr < r:

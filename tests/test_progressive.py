@@ -305,13 +305,12 @@ def test_random_stacks_and_cases_match_the_independent_ply_discount(seed):
         np.testing.assert_allclose([x for *_, x in events], [x for *_, x in want_events], rtol=1e-9)
 
 
-def test_prepared_forms_give_the_ratios_of_the_criteria(monkeypatch):
-    # The exact ratios of the discount go through the criteria's prepared per-ply forms once the prepared point
-    # function is called rather than inlined (shells.progressive_exact.PREPARED); either way they are the bits of
-    # the criteria's own ratio. Run as Python (py_func) with the prepared path switched on and off.
+def test_prepared_forms_give_the_ratios_of_the_criteria():
+    # The exact ratios of the discount go through the criteria's prepared per-ply forms; they must be the bits
+    # of the criteria's own ratio, taken here criterion by criterion and point by point (lowest first found).
     import shells.progressive_exact as exact
     from shells.criteria import DEFAULT, code
-    from shells.criteria.dispatch import point_by_code, prepare_table
+    from shells.criteria.dispatch import prepare_table, ratio_by_code
 
     params = _tables(QUASI).params
     codes = np.array([code(n) for n in DEFAULT], np.int64)
@@ -322,11 +321,17 @@ def test_prepared_forms_give_the_ratios_of_the_criteria(monkeypatch):
     bf = np.zeros((8, 3, 6))
     bm[..., :3] = rng.normal(size=(8, 3, 3)) * np.array([XT, YT, S])
     bf[..., :3] = rng.normal(size=(8, 3, 3)) * np.array([XT, YT, S]) * 0.3
-    results = []
-    for prepared in (False, True):
-        monkeypatch.setattr(exact, "PREPARED", prepared)
-        monkeypatch.setattr(exact, "_point", point_by_code if prepared else exact._not_prepared)
-        results.append([exact.ply_ratios.py_func(codes, masks, True, forms, consts, params, k, bm, bf, k,
-                                                 np.inf, -1, -1) for k in range(8)])
+    results = [[exact.ply_ratios(codes, masks, True, forms, consts, params, k, bm, bf, k, np.inf, -1, -1)
+                for k in range(8)]]
+    own = []
+    for k in range(8):
+        best = (np.inf, -1, -1)
+        for pt in range(3):
+            for m, c in enumerate(codes):
+                sr, md = ratio_by_code(c, bm[k, pt], bf[k, pt], params[k])
+                if sr < best[0]:
+                    best = (sr, m, md)
+        own.append(best)
+    results.append(own)
     assert results[0] == results[1]
     assert all(np.isfinite(r) and c >= 0 for r, c, _ in results[0])

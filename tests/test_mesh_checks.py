@@ -33,6 +33,42 @@ def test_one_flipped_cell_in_a_strip():
     assert count == 2 and pairs == [(0, 1), (1, 2)]
 
 
+def test_flipped_edges_match_a_count_by_edge_on_random_meshes():
+    """Random quad/triangle plates with random cells reversed and some duplicated: the count equals a count made
+    edge by edge with a dictionary (an independent derivation), and every example pair shares a flipped edge."""
+    rng = np.random.default_rng(11)
+    for trial in range(20):
+        nx, ny = rng.integers(2, 7, size=2)
+        quads = grid_quads(nx, ny).copy()
+        tris = np.zeros((0, 3), np.int64)
+        flip = rng.random(len(quads)) < 0.3
+        quads[flip] = quads[flip, ::-1]
+        if trial % 2:                       # half the plates: the last row as triangles
+            keep = np.arange(len(quads)) < len(quads) - nx
+            last = quads[~keep]
+            tris = np.vstack([last[:, [0, 1, 2]], last[:, [0, 2, 3]]])
+            quads = quads[keep]
+        blocks = [("quad", quads)] + ([("triangle", tris)] if len(tris) else [])
+        if trial % 3 == 0:                  # a duplicate of cell 0 (left out of the check with its twin)
+            blocks[0] = ("quad", np.vstack([quads, quads[:1]]))
+        mesh = ShellMesh(grid_points(nx, ny), tuple(blocks))
+        cells = [tuple(c) for _, b in blocks for c in b]
+        dup = set(duplicate_cells(mesh).tolist())
+        directed = {}
+        for cid, c in enumerate(cells):
+            if cid in dup:
+                continue
+            for i in range(len(c)):
+                a, b = int(c[i]), int(c[(i + 1) % len(c)])
+                directed.setdefault(frozenset((a, b)), []).append(((a, b), cid))
+        want = {frozenset(cid for _, cid in uses) for uses in directed.values()
+                if len(uses) == 2 and uses[0][0] == uses[1][0]}
+        count, pairs = flipped_edges(mesh, duplicate_cells(mesh))
+        assert count == len(want)
+        assert len(pairs) == min(len(want), 4)
+        assert all(frozenset(p) in want for p in pairs)
+
+
 def test_t_joint_edges_are_not_judged():
     """Three cells on one edge (a stiffener web on a skin): the edge is not a two-cell edge, nothing noted."""
     pts = np.array([[0, 0, 0], [1, 0, 0], [1, 1, 0], [0, 1, 0], [1, -1, 0], [1, 0, 1], [1, 1, 1.0]])

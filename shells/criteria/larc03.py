@@ -38,7 +38,7 @@ from .. import params as P
 from .base import Criterion
 from .prepared import FAST, SKIP
 from .roots import has_fixed
-from .search import search_done, search_next, search_point, search_result, search_start
+from .search import searched_ratio
 from .state import INF, PLY_MODES, S1, S2, T12
 
 _GOLD = 0.5 * (math.sqrt(5.0) - 1.0)
@@ -142,11 +142,7 @@ def exposure(s1, s2, t, c):
 def larc03_ratio(m1, m2, m6, g1, g2, g6, homogeneous, c):
     """Strength ratio and mode along ``g + R·m`` (σ1, σ2, τ12); ``homogeneous``: σ1 ≥ 0 along the load and no
     fixed part at all (R in closed form), else searched."""
-    st, m = search_start(homogeneous), -1       # the first point is R = 0
-    while not search_done(st):
-        f, m = exposure(g1 + search_point(st) * m1, g2 + search_point(st) * m2, abs(g6 + search_point(st) * m6), c)
-        st = search_next(st, f)
-    return search_result(st, m)
+    return searched_ratio(exposure, m1, m2, m6, g1, g2, g6, homogeneous, c)
 
 
 @njit(cache=True)

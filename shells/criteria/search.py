@@ -17,14 +17,13 @@ from numba import njit
 
 from .state import INF
 
-# Bracketed root search by reverse communication: the criterion owns the loop and
-# calls its own exposure function (a dispatcher passed as a value would defeat caching):
+# Bracketed root search by reverse communication: the loop (searched_ratio, at the end) calls the criterion's
+# exposure between steps of the search state:
 #
-#     st = search_start(homogeneous and not has_fixed(sf))
-#     f, m = exposure(sm, sf, 0.0, p)
+#     st = search_start(homogeneous)
 #     while not search_done(st):
+#         f, m = exposure(state at search_point(st))
 #         st = search_next(st, f)
-#         f, m = exposure(sm, sf, search_point(st), p)
 #     return search_result(st, m)
 #
 # The state is (phase, lo, hi, k, r): r is the load factor to evaluate next.
@@ -112,3 +111,15 @@ def search_next(st, f):
     if f >= 1.0:
         return _scan_or_bisect(lo, r)
     return _scan_or_bisect(r, hi)
+
+
+@njit(forceinline=True)
+def searched_ratio(exposure, m1, m2, m6, g1, g2, g6, homogeneous, c):
+    """Strength ratio and mode along ``g + R·m`` (σ1, σ2, τ12) of a criterion given by its ``exposure(σ1, σ2, |τ12|,
+    c) -> (f, mode)``; ``homogeneous``: R = 1/f in closed form, else searched. Not cached itself (it takes a
+    compiled function as an argument); the criterion's cached ``ratio`` calls it and LLVM inlines it there."""
+    st, m = search_start(homogeneous), -1       # the first point is R = 0
+    while not search_done(st):
+        f, m = exposure(g1 + search_point(st) * m1, g2 + search_point(st) * m2, abs(g6 + search_point(st) * m6), c)
+        st = search_next(st, f)
+    return search_result(st, m)

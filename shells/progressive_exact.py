@@ -10,8 +10,8 @@ from __future__ import annotations
 
 from numba import njit
 
-from .criteria.dispatch import point_by_code, ratio_by_code
-from .criteria.prepared import FAST, SKIP
+from .criteria.dispatch import ratio_by_form
+from .criteria.prepared import SKIP
 from .numba_cache import configure
 
 configure()
@@ -51,10 +51,7 @@ def ply_ratios(codes, masks, middle, forms, consts, params, row, bm, bf, k, r, c
             f = forms[row, m]
             if f == SKIP:             # the criterion does not apply: R = inf
                 continue
-            if f == FAST:
-                sr, md = point_by_code(codes[m], sm, sf, consts[row], m)
-            else:
-                sr, md = ratio_by_code(codes[m], sm, sf, params[row])
+            sr, md = ratio_by_form(f, codes[m], sm, sf, consts[row], m, params[row])
             if sr < r:
                 r, crit, mode = sr, m, md
     return r, crit, mode

@@ -24,8 +24,8 @@ from __future__ import annotations
 import numpy as np
 from numba import njit, prange
 
-from .criteria.dispatch import point_by_code, prepare_table, ratio_by_code
-from .criteria.prepared import FAST, SKIP
+from .criteria.dispatch import prepare_table, ratio_by_code, ratio_by_form
+from .criteria.prepared import SKIP
 from .numba_cache import configure
 from .recovery_tables import ROUNDOFF
 
@@ -271,10 +271,7 @@ def recover_block(sel, sec, blk, env, out):
                         if form == SKIP:          # not applicable to this ply: R = inf, nothing to record
                             continue
                         cm = codes[m]
-                        if form == FAST:
-                            sr, mode = point_by_code(cm, sm, sf, cr, m)
-                        else:
-                            sr, mode = ratio_by_code(cm, sm, sf, pr)
+                        sr, mode = ratio_by_form(form, cm, sm, sf, cr, m, pr)
                         ms = sr * inv_fos - 1.0
                         if ms < case_ms[i, cj]:
                             case_ms[i, cj] = ms

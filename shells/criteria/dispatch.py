@@ -24,7 +24,7 @@ from numba import njit, prange
 
 from .. import params as P
 from ..errors import ResultantsError
-from .prepared import GENERIC, NCONST
+from .prepared import FAST, GENERIC, NCONST
 from .registry import CRITERIA, code
 from .state import NPOINT, NSTATE
 
@@ -133,6 +133,15 @@ def point_by_code(code, sm, sf, c, m):
     if code == 13:
         return _q13(sm, sf, c, m)
     return np.inf, -1
+
+
+@njit(cache=True, inline="always")
+def ratio_by_form(form, code, sm, sf, c, m, p):
+    """(R, mode) of criterion ``code`` at a point of a ply of prepared form ``form`` (not SKIP): FAST by its
+    ``point`` with the constants in row ``m`` of ``c``, GENERIC by its ``ratio`` on the property vector ``p``."""
+    if form == FAST:
+        return point_by_code(code, sm, sf, c, m)
+    return ratio_by_code(code, sm, sf, p)
 
 
 @njit(cache=True)

@@ -8,6 +8,7 @@ measurement runs in its own subprocess so its peak resident memory
 
     python bench/recover_bench.py [--cells 1000000] [--cases 4] [--work /tmp/plybridge-bench]
     python bench/recover_bench.py --progressive [--cells 100000]   # the ply discount's cost against a plain run
+    python bench/recover_bench.py --progressive --progressive-criteria tsai-wu   # failures found by Tsai-Wu only
 
 With ``--progressive`` the whole run is measured twice, as is and with ``[analysis.progressive]`` (the default
 criteria find the failures, failed moduli set to zero), and the ratio of the two times is printed.
@@ -23,6 +24,7 @@ import subprocess
 import sys
 import time
 from pathlib import Path
+from typing import Sequence
 
 import numpy as np
 
@@ -54,13 +56,16 @@ def grid(n_cells: int):
 PROGRESSIVE = "\n[analysis.progressive]\n"
 
 
-def with_progressive(paths: dict[str, str]) -> dict[str, str]:
-    """The inputs with a definition that also runs the progressive failure analysis (written once)."""
-    target = Path(paths["definition"]).with_name("def-progressive.toml")
+def with_progressive(paths: dict[str, str], criteria: Sequence[str] = ()) -> dict[str, str]:
+    """The inputs with a definition that also runs the progressive failure analysis (written once), the failures
+    found by ``criteria`` (default: the run's criteria)."""
+    suffix = "-".join(criteria)
+    target = Path(paths["definition"]).with_name(f"def-progressive{'-' + suffix if suffix else ''}.toml")
     if not target.exists():
         text = Path(paths["definition"]).read_text(encoding="utf-8")
         head, sep, tail = text.partition("[[zones]]")
-        target.write_text(head + PROGRESSIVE + "\n" + sep + tail, encoding="utf-8")
+        table = PROGRESSIVE + (f"criteria = {json.dumps(list(criteria))}\n" if criteria else "")
+        target.write_text(head + table + "\n" + sep + tail, encoding="utf-8")
     return {**paths, "definition": str(target)}
 
 
@@ -162,7 +167,8 @@ def in_subprocess(kind: str, paths: dict, n_cells: int, n_cases: int, out: str, 
 
 def report(label: str, r: dict) -> None:
     rate = f", {r['ply_points_per_s']:.3g} ply-points/s" if "ply_points_per_s" in r else ""
-    print(f"{label:<26} {r.get('seconds', 0):8.2f} s  {r.get('cells_per_s', 0):.3g} cells/s{rate}"
+    cpu = f" (CPU {r['cpu_seconds']:.2f} s)" if "cpu_seconds" in r else ""
+    print(f"{label:<26} {r.get('seconds', 0):8.2f} s{cpu}  {r.get('cells_per_s', 0):.3g} cells/s{rate}"
           f"  peak {r['peak_mib']:.0f} MiB", flush=True)
 
 
@@ -172,6 +178,8 @@ def parse(argv=None):
     ap.add_argument("--cases", type=int, default=4)
     ap.add_argument("--work", default="/tmp/plybridge-bench")
     ap.add_argument("--progressive", action="store_true", help="also time a run with [analysis.progressive]")
+    ap.add_argument("--progressive-criteria", default="",
+                    help="comma-separated criteria that find the failures of the ply discount (default: all the run's)")
     ap.add_argument("--child", help=argparse.SUPPRESS)
     return ap.parse_args(argv)
 
@@ -189,10 +197,11 @@ def main(argv=None) -> None:
           f"{PLIES} plies, {POINTS} points, criteria max-stress, max-strain, tsai-wu, hashin", flush=True)
     out = str(work / "bench-out.h5")
     if args.progressive:
-        in_subprocess("warm", with_progressive(small), 2000, args.cases, out, {})
+        chosen = [c for c in args.progressive_criteria.split(",") if c]
+        in_subprocess("warm", with_progressive(small, chosen), 2000, args.cases, out, {})
         plain = in_subprocess("command", paths, args.cells, args.cases, out)
         report("whole run_recover", plain)
-        prog = in_subprocess("command", with_progressive(paths), args.cells, args.cases, out)
+        prog = in_subprocess("command", with_progressive(paths, chosen), args.cells, args.cases, out)
         report("with progressive failure", prog)
         print(f"progressive / plain time: {prog['seconds'] / plain['seconds']:.2f} (wall), "
               f"{prog['cpu_seconds'] / plain['cpu_seconds']:.2f} (CPU time of the process, all threads: the fairer "

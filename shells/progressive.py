@@ -39,7 +39,7 @@ from .criteria.dispatch import prepare_table
 from .criteria.roots import linear_ratio
 from .criteria.state import FC, FT
 from .degraded import NTERM, ply_stiffness, ply_terms, running_sums, section_from_sums, solve_scaled
-from .progressive_exact import ply_ratios
+from .progressive_exact import TIE, exact_step
 from .numba_cache import configure
 from .recovery import drop_roundoff
 
@@ -58,8 +58,6 @@ OUT_OF_PLANE = ("core-shear", "core-crushing", "interlaminar", "wrinkling", "dim
 #: middle point is the mean of the faces' states and cannot fail before both faces; they are checked at the
 #: faces only.
 CONVEX = ("max-stress", "max-strain", "tsai-wu", "von-mises")
-#: Ratios within this relative distance of the smallest fail in the same step (plies of a symmetric stack).
-TIE = 1e-9
 #: Values of one failure event in the sequence output: ply slot, criterion code (−1: fibre check of a ply with
 #: a matrix failure), mode index, discount (1 matrix, 2 fibre), load factor.
 EVENT = 5
@@ -257,18 +255,8 @@ def progressive_block(sec, share, kappa, codes, masks, fibre_mode, retained, blk
                         done[k] = lb[k] == np.inf      # no chosen criterion applies: never fails
                 # Exact ratios of the intact plies in increasing order of their bound, while the bound does not
                 # exceed the largest ratio that can still fail now (the current λ, or the smallest ratio so far).
-                while True:
-                    k = -1
-                    for kk in range(n):
-                        if not done[kk] and (k < 0 or lb[kk] < lb[k]):
-                            k = kk
-                    if k < 0 or lb[k] > max(lam, rmin) * (1.0 + TIE):
-                        break
-                    done[k] = True
-                    row = p0 + k
-                    rk[k], ck[k], mk[k] = ply_ratios(codes, masks, middle, forms, consts, params, row, bm, bf, k,
-                                                     rk[k], ck[k], mk[k])
-                    rmin = min(rmin, rk[k])
+                rmin = exact_step(codes, masks, middle, forms, consts, params, p0, n, bm, bf, lb, done, rk, ck, mk,
+                                  lam, rmin)
                 if rmin == np.inf:
                     break              # nothing fails any more under this load direction
                 # Plies overloaded at the current λ after the last discount all fail at λ; otherwise λ rises to

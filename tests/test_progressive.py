@@ -321,7 +321,8 @@ def test_prepared_forms_give_the_ratios_of_the_criteria():
     bf = np.zeros((8, 3, 6))
     bm[..., :3] = rng.normal(size=(8, 3, 3)) * np.array([XT, YT, S])
     bf[..., :3] = rng.normal(size=(8, 3, 3)) * np.array([XT, YT, S]) * 0.3
-    results = [[exact.ply_ratios(codes, masks, True, forms, consts, params, k, bm, bf, k, np.inf, -1, -1)
+    results = [[exact.ply_ratios(codes, masks, True, forms, consts, params, k, bm, bf, k, np.inf, -1, -1,
+                                 np.empty(6), np.empty(6))
                 for k in range(8)]]
     own = []
     for k in range(8):

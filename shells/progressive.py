@@ -84,7 +84,7 @@ def _point(e, zz, ct, st, q, f1, f2, out):
 
 
 @njit(cache=True, parallel=True)
-def progressive_block(sec, share, kappa, codes, masks, fibre_mode, retained, blk, first, last, seq):
+def progressive_block(sec, share, kappa, boxes, codes, masks, fibre_mode, retained, blk, first, last, seq):
     """First- and last-ply factors of a block of cells × cases (written in place).
 
     Parameters
@@ -96,6 +96,9 @@ def progressive_block(sec, share, kappa, codes, masks, fibre_mode, retained, blk
     kappa : float64 (nrows,)
         Scale of the strength box inside every chosen criterion (:func:`shells.progressive_bounds.inner_box`;
         0: no bound, inf: no criterion applies).
+    boxes : float64 (nrows, ncrit)
+        κ of each criterion on each row (:func:`shells.progressive_bounds.criterion_boxes`): a criterion is left
+        out where its states stay in its box up to the step's limit (:func:`shells.progressive_exact.ply_ratios`).
     codes : int64 (ncrit,), masks : bool (ncrit, 3)
         Criteria that find the failures and the points they are checked at (the middle point may be left out
         for the :data:`CONVEX` ones).
@@ -255,7 +258,7 @@ def progressive_block(sec, share, kappa, codes, masks, fibre_mode, retained, blk
                         done[k] = lb[k] == np.inf      # no chosen criterion applies: never fails
                 # Exact ratios of the intact plies in increasing order of their bound, while the bound does not
                 # exceed the largest ratio that can still fail now (the current λ, or the smallest ratio so far).
-                rmin = exact_step(codes, masks, middle, forms, consts, params, p0, n, bm, bf, lb, done, rk, ck, mk,
+                rmin = exact_step(codes, masks, middle, forms, consts, params, boxes, p0, n, bm, bf, lb, done, rk, ck, mk,
                                   lam, rmin)
                 if rmin == np.inf:
                     break              # nothing fails any more under this load direction

@@ -18,7 +18,9 @@ so the ratio of leaving κ·B (three linear ratios) is a lower bound on the crit
 - a criterion that does not apply to the row's material kind: no limit (inf);
 - any other criterion, or a layer that is not a ply: 0 (no bound; the criteria are always evaluated).
 
-The row's κ is the smallest over the criteria; inf means no chosen criterion applies (the ply never fails).
+The row's κ is the smallest over the criteria; inf means no chosen criterion applies (the ply never fails). Each
+criterion's own κ (:func:`criterion_boxes`) also leaves it out of a ply's evaluation where the ply's states stay in
+its box up to the step's limit (:func:`shells.progressive_exact.ply_ratios`).
 """
 
 from __future__ import annotations
@@ -78,18 +80,29 @@ def _hashin(p: np.ndarray) -> float:
 _PLY = {"max-stress": lambda p: 1.0, "max-strain": _max_strain, "tsai-wu": _tsai_wu, "hashin": _hashin}
 
 
-def inner_box(params: np.ndarray, criteria: Sequence[type]) -> np.ndarray:
-    """κ of every row of ``params`` (nrows, NPARAM) for the chosen criterion classes (see the module notes)."""
-    out = np.full(params.shape[0], np.inf)
+def criterion_boxes(params: np.ndarray, criteria: Sequence[type]) -> np.ndarray:
+    """κ (nrows, ncrit) of every row of ``params`` (nrows, NPARAM) for each chosen criterion class: inf where the
+    criterion does not apply to the row, 0 where it has no bound (see the module notes)."""
+    out = np.full((params.shape[0], len(criteria)), np.inf)
     for k, p in enumerate(params):
         kind = int(p[P.KIND])
-        for c in criteria:
+        for m, c in enumerate(criteria):
             if kind not in c.requires:
                 continue                                   # not applicable: never fails by it
             if kind != P.KIND_PLY or c.name not in _PLY or np.isnan(p[[P.XT, P.XC, P.YT, P.YC, P.S12]]).any():
-                out[k] = 0.0
-                break
+                out[k, m] = 0.0
+                continue
             with np.errstate(all="ignore"):
                 kappa = float(_PLY[c.name](p))
-            out[k] = min(out[k], kappa if math.isfinite(kappa) or kappa == math.inf else 0.0)
+            out[k, m] = kappa if math.isfinite(kappa) or kappa == math.inf else 0.0
     return np.where(np.isnan(out), 0.0, out)
+
+
+def smallest_box(boxes: np.ndarray) -> np.ndarray:
+    """The row's κ from :func:`criterion_boxes`: the smallest over the criteria (inf when there are none)."""
+    return boxes.min(axis=1) if boxes.shape[1] else np.full(boxes.shape[0], np.inf)
+
+
+def inner_box(params: np.ndarray, criteria: Sequence[type]) -> np.ndarray:
+    """κ of every row of ``params`` (nrows, NPARAM): the smallest over the chosen criterion classes."""
+    return smallest_box(criterion_boxes(params, criteria))

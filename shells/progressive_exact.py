@@ -15,8 +15,9 @@ from __future__ import annotations
 import numpy as np
 from numba import njit
 
-from .criteria.dispatch import point_by_code, ratio_by_code
-from .criteria.prepared import FAST, SKIP
+from . import params as P
+from .criteria.dispatch import inside_by_code, point_by_code, ratio_by_code
+from .criteria.prepared import FAST, INSIDE, SKIP
 from .numba_cache import configure
 
 configure()
@@ -31,8 +32,33 @@ def generic_at(code, bm, bf, k, pt, params, row):
     return ratio_by_code(code, bm[k, pt], bf[k, pt], params[row])
 
 
+@njit(cache=True, forceinline=True)
+def _in_box(a, b, up, lo, kap, lam):
+    """Whether ``b`` and ``b + lam·a`` lie inside (−kap·lo, kap·up), by the margin INSIDE."""
+    k = kap * (1.0 - INSIDE)
+    e = b + lam * a
+    return -k * lo < b < k * up and -k * lo < e < k * up
+
+
 @njit(cache=True, inline="always")
-def ply_ratios(codes, masks, middle, forms, consts, params, row, bm, bf, k, r, crit, mode, sm, sf):
+def _face_in_box(bm, bf, k, pt, p, kap, lam):
+    return (_in_box(bm[k, pt, 0], bf[k, pt, 0], p[P.XT], p[P.XC], kap, lam)
+            and _in_box(bm[k, pt, 1], bf[k, pt, 1], p[P.YT], p[P.YC], kap, lam)
+            and _in_box(bm[k, pt, 2], bf[k, pt, 2], p[P.S12], p[P.S12], kap, lam))
+
+
+@njit(cache=True, inline="always")
+def box_inside(bm, bf, k, pt, p, kap, lam):
+    """Whether the in-plane states of slot ``k`` at point ``pt`` stay in the box κ·B up to the load factor
+    ``lam`` (both ends of the segment inside it: a box is convex); at the middle point, both faces' (the
+    middle's states are their mean). With κ·B inside a criterion's safe region, its ratio then exceeds ``lam``."""
+    if pt == 1:
+        return _face_in_box(bm, bf, k, 0, p, kap, lam) and _face_in_box(bm, bf, k, 2, p, kap, lam)
+    return _face_in_box(bm, bf, k, pt, p, kap, lam)
+
+
+@njit(cache=True, inline="always")
+def ply_ratios(codes, masks, middle, forms, consts, params, boxes, row, bm, bf, k, limit, r, crit, mode, sm, sf):
     """The lowest ratio of ply slot ``k`` (table row ``row``) over the criteria and points, from (r, crit, mode).
 
     Parameters
@@ -45,8 +71,15 @@ def ply_ratios(codes, masks, middle, forms, consts, params, row, bm, bf, k, r, c
         Prepared forms and constants (:func:`shells.criteria.dispatch.prepare_table`).
     params : float64 (nrows, NPARAM)
         Property vectors (for the criteria without a prepared form on the row).
+    boxes : float64 (nrows, ncrit)
+        κ of each criterion on each row (:func:`shells.progressive_bounds.criterion_boxes`; 0: none).
     bm, bf : float64 (maxply, 3, 6)
         Mechanical and fixed material-axis stresses per ply slot and point.
+    limit : float
+        The largest ratio that can fail at this step (inf: no limit). A criterion is not evaluated at a point
+        where it is known not to fail up to the smaller of ``limit`` and the lowest ratio so far (× (1 + TIE)):
+        by its ``inside`` test, or by staying in its box κ·B. The ratio returned is then exact when it does not
+        exceed ``limit``, and above ``limit`` otherwise.
     r, crit, mode : float, int, int
         The lowest ratio so far, the index in ``codes`` of its criterion and its mode.
     sm, sf : float64 (6,)
@@ -58,6 +91,7 @@ def ply_ratios(codes, masks, middle, forms, consts, params, row, bm, bf, k, r, c
         Replaced by a criterion's when strictly lower (points bottom to top, criteria in the order of ``codes``).
     """
     cr = consts[row]
+    pr = params[row]
     for pt in range(3):
         if pt == 1 and not middle:
             continue
@@ -70,6 +104,10 @@ def ply_ratios(codes, masks, middle, forms, consts, params, row, bm, bf, k, r, c
             f = forms[row, m]
             if f == SKIP:             # the criterion does not apply: R = inf
                 continue
+            lam = min(limit, r * (1.0 + TIE))
+            if lam < np.inf and ((f == FAST and inside_by_code(codes[m], sm, sf, cr, m, lam))
+                                 or (boxes[row, m] > 0.0 and box_inside(bm, bf, k, pt, pr, boxes[row, m], lam))):
+                continue              # cannot fail up to lam: neither at this step nor below r
             if f == FAST:
                 sr, md = point_by_code(codes[m], sm, sf, cr, m)
             else:
@@ -80,14 +118,15 @@ def ply_ratios(codes, masks, middle, forms, consts, params, row, bm, bf, k, r, c
 
 
 @njit(cache=True)
-def exact_step(codes, masks, middle, forms, consts, params, p0, n, bm, bf, lb, done, rk, ck, mk, lam, rmin):
+def exact_step(codes, masks, middle, forms, consts, params, boxes, p0, n, bm, bf, lb, done, rk, ck, mk, lam, rmin):
     """Exact ratios of the plies of a step that can fail; returns the smallest ratio of the step.
 
     The plies not ``done`` are taken in increasing order of their lower bound ``lb`` (ties: the lower slot) and
     evaluated (:func:`ply_ratios`, from and into ``rk``, ``ck``, ``mk``; each is then ``done``) while the bound
     does not exceed the largest ratio that can still fail now: the current load factor ``lam``, or the smallest
     ratio so far (``rmin`` on entry: that of the plies checked in their fibres only). Slots ``p0 + k`` of the
-    tables, ``k < n``; the other arguments as :func:`ply_ratios`.
+    tables, ``k < n``; the other arguments as :func:`ply_ratios`. A ply's ratio is exact when it fails at this
+    step; otherwise it is only known to exceed the step's limit.
     """
     sm = np.empty(6)
     sf = np.empty(6)
@@ -96,9 +135,10 @@ def exact_step(codes, masks, middle, forms, consts, params, p0, n, bm, bf, lb, d
         for kk in range(n):
             if not done[kk] and (k < 0 or lb[kk] < lb[k]):
                 k = kk
-        if k < 0 or lb[k] > max(lam, rmin) * (1.0 + TIE):
+        limit = max(lam, rmin) * (1.0 + TIE)
+        if k < 0 or lb[k] > limit:
             return rmin
         done[k] = True
-        rk[k], ck[k], mk[k] = ply_ratios(codes, masks, middle, forms, consts, params, p0 + k, bm, bf, k, rk[k], ck[k],
-                                         mk[k], sm, sf)
+        rk[k], ck[k], mk[k] = ply_ratios(codes, masks, middle, forms, consts, params, boxes, p0 + k, bm, bf, k, limit,
+                                         rk[k], ck[k], mk[k], sm, sf)
         rmin = min(rmin, rk[k])

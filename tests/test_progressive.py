@@ -280,6 +280,37 @@ def test_inner_box_is_inside_the_criterion(name):
         assert r >= lo * (1 - 1e-12), (name, sm, sf, r, lo)
 
 
+@pytest.mark.parametrize("name", ["max-stress", "max-strain", "tsai-wu", "hashin"])
+def test_states_in_a_criterion_box_do_not_fail_it(name):
+    # The discount leaves a criterion out at a point whose states stay in the criterion's box κ·B up to the
+    # step's limit (both ends of the segment inside; the middle point through both faces): the criterion's
+    # ratio must then exceed the limit, at the faces and at the middle.
+    from shells.criteria import code
+    from shells.criteria.dispatch import ratio_by_code
+    from shells.progressive_bounds import criterion_boxes
+    from shells.progressive_exact import box_inside
+
+    crit = by_name(name)
+    p = _tables((0,)).params[0]
+    kappa = criterion_boxes(p[None], (crit,))[0, 0]
+    rng = np.random.default_rng(13)
+    scale = np.array([XT, YT, S])
+    answered = 0
+    for _ in range(3000):
+        bm = np.zeros((1, 3, 6))
+        bf = np.zeros((1, 3, 6))
+        bm[0, ::2, :3] = rng.normal(size=(2, 3)) * scale * rng.uniform(0.01, 1.0)
+        bf[0, ::2, :3] = rng.uniform(-0.6, 0.6, size=(2, 3)) * scale * kappa
+        bm[0, 1], bf[0, 1] = (bm[0, 0] + bm[0, 2]) / 2, (bf[0, 0] + bf[0, 2]) / 2
+        for pt in range(3):
+            r = ratio_by_code(code(name), bm[0, pt], bf[0, pt], p)[0]
+            for lam in (0.3 * r, 0.9 * r, r, 1.5 * r):
+                if np.isfinite(lam) and box_inside(bm, bf, 0, pt, p, kappa, lam):
+                    answered += 1
+                    assert r > lam, (name, pt, bm[0, pt], bf[0, pt], r, lam)
+    assert answered > 1000
+
+
 @pytest.mark.parametrize("seed", range(6))
 def test_random_stacks_and_cases_match_the_independent_ply_discount(seed):
     # The kernel keeps each ply's section terms and sums them again only after a ply that changed, and checks the
@@ -321,8 +352,8 @@ def test_prepared_forms_give_the_ratios_of_the_criteria():
     bf = np.zeros((8, 3, 6))
     bm[..., :3] = rng.normal(size=(8, 3, 3)) * np.array([XT, YT, S])
     bf[..., :3] = rng.normal(size=(8, 3, 3)) * np.array([XT, YT, S]) * 0.3
-    results = [[exact.ply_ratios(codes, masks, True, forms, consts, params, k, bm, bf, k, np.inf, -1, -1,
-                                 np.empty(6), np.empty(6))
+    results = [[exact.ply_ratios(codes, masks, True, forms, consts, params, np.zeros((8, len(codes))), k, bm, bf, k,
+                                 np.inf, np.inf, -1, -1, np.empty(6), np.empty(6))
                 for k in range(8)]]
     own = []
     for k in range(8):

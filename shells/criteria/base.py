@@ -14,7 +14,7 @@ from types import MappingProxyType
 import numpy as np
 
 from .. import params as P
-from .prepared import generic_prepare, no_point
+from .prepared import generic_prepare, no_inside, no_point
 
 
 class Criterion:
@@ -52,6 +52,9 @@ class Criterion:
         The prepared form (:mod:`shells.criteria.prepared`): ``prepare(p, out) -> form`` once per ply and
         ``point(sm, sf, c, m) -> (R, mode)`` with the ply's constants in row ``m`` of ``c``, the same
         arithmetic as ``ratio``. Without them the kernel calls ``ratio`` at every point.
+    inside : numba function, optional
+        ``inside(sm, sf, c, m, lam) -> bool`` on the prepared constants: True only when the ratio is known to
+        exceed ``lam`` (:mod:`shells.criteria.prepared`); the default answers False.
     """
 
     name: str = ""
@@ -64,6 +67,7 @@ class Criterion:
     ratio = None
     prepare = staticmethod(generic_prepare)
     point = staticmethod(no_point)
+    inside = staticmethod(no_inside)
 
     def __init_subclass__(cls, **kwargs):
         super().__init_subclass__(**kwargs)

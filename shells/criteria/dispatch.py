@@ -31,6 +31,7 @@ from .state import NPOINT, NSTATE
 (_r0, _r1, _r2, _r3, _r4, _r5, _r6, _r7, _r8, _r9, _r10, _r11, _r12, _r13) = (c.ratio for c in CRITERIA)
 (_p0, _p1, _p2, _p3, _p4, _p5, _p6, _p7, _p8, _p9, _p10, _p11, _p12, _p13) = (c.prepare for c in CRITERIA)
 (_q0, _q1, _q2, _q3, _q4, _q5, _q6, _q7, _q8, _q9, _q10, _q11, _q12, _q13) = (c.point for c in CRITERIA)
+(_i0, _i1, _i2, _i3, _i4, _i5, _i6, _i7, _i8, _i9, _i10, _i11, _i12, _i13) = (c.inside for c in CRITERIA)
 
 
 @njit(cache=True)
@@ -133,6 +134,41 @@ def point_by_code(code, sm, sf, c, m):
     if code == 13:
         return _q13(sm, sf, c, m)
     return np.inf, -1
+
+
+@njit(cache=True, inline="always")
+def inside_by_code(code, sm, sf, c, m, lam):
+    """``CRITERIA[code].inside(sm, sf, c, m, lam)`` on a ply whose form is FAST: True only when the ratio is known
+    to exceed ``lam`` (:mod:`shells.criteria.prepared`)."""
+    if code == 0:
+        return _i0(sm, sf, c, m, lam)
+    if code == 1:
+        return _i1(sm, sf, c, m, lam)
+    if code == 2:
+        return _i2(sm, sf, c, m, lam)
+    if code == 3:
+        return _i3(sm, sf, c, m, lam)
+    if code == 4:
+        return _i4(sm, sf, c, m, lam)
+    if code == 5:
+        return _i5(sm, sf, c, m, lam)
+    if code == 6:
+        return _i6(sm, sf, c, m, lam)
+    if code == 7:
+        return _i7(sm, sf, c, m, lam)
+    if code == 8:
+        return _i8(sm, sf, c, m, lam)
+    if code == 9:
+        return _i9(sm, sf, c, m, lam)
+    if code == 10:
+        return _i10(sm, sf, c, m, lam)
+    if code == 11:
+        return _i11(sm, sf, c, m, lam)
+    if code == 12:
+        return _i12(sm, sf, c, m, lam)
+    if code == 13:
+        return _i13(sm, sf, c, m, lam)
+    return False
 
 
 @njit(cache=True, inline="always")

@@ -18,7 +18,7 @@ from numba import njit
 from .. import params as P
 from .base import Criterion
 from .prepared import FAST, SKIP
-from .max_stress import limits_ratio
+from .max_stress import limits_inside, limits_ratio
 from .state import INF, PLY_MODES, S1, S2, T12
 
 
@@ -27,6 +27,13 @@ def strain_ratio(m1, m2, m6, g1, g2, g6, e1, e2, g12, nu12, l_ft, l_fc, l_mt, l_
     """Exact R of the strain limits for the stresses ``g + R·m`` (compliance strains of each part)."""
     return limits_ratio((m1 - nu12 * m2) / e1, (g1 - nu12 * g2) / e1, m2 / e2 - nu12 * m1 / e1,
                         g2 / e2 - nu12 * g1 / e1, m6 / g12, g6 / g12, l_ft, l_fc, l_mt, l_mc, l_sh)
+
+
+@njit(cache=True, forceinline=True)
+def strain_inside(m1, m2, m6, g1, g2, g6, e1, e2, g12, nu12, l_ft, l_fc, l_mt, l_mc, l_sh, lam):
+    """Whether the strain limits hold, by the margin INSIDE, at ``g`` and ``g + lam·m`` (R exceeds ``lam``)."""
+    return limits_inside((m1 - nu12 * m2) / e1, (g1 - nu12 * g2) / e1, m2 / e2 - nu12 * m1 / e1,
+                         g2 / e2 - nu12 * g1 / e1, m6 / g12, g6 / g12, l_ft, l_fc, l_mt, l_mc, l_sh, lam)
 
 
 class MaxStrain(Criterion):
@@ -62,3 +69,9 @@ class MaxStrain(Criterion):
     def point(sm, sf, c, m):
         return strain_ratio(sm[S1], sm[S2], sm[T12], sf[S1], sf[S2], sf[T12], c[m, 0], c[m, 1], c[m, 2], c[m, 3],
                             c[m, 4], c[m, 5], c[m, 6], c[m, 7], c[m, 8])
+
+    @staticmethod
+    @njit(cache=True, inline="always")
+    def inside(sm, sf, c, m, lam):
+        return strain_inside(sm[S1], sm[S2], sm[T12], sf[S1], sf[S2], sf[T12], c[m, 0], c[m, 1], c[m, 2], c[m, 3],
+                             c[m, 4], c[m, 5], c[m, 6], c[m, 7], c[m, 8], lam)

@@ -26,7 +26,7 @@ from numba import njit
 from .. import params as P
 from .base import Criterion
 from .principal import max_shear_ratio, principal_ratio
-from .prepared import FAST, GENERIC
+from .prepared import FAST, GENERIC, INSIDE
 from .roots import linear_ratio
 from .state import FC, FT, INF, ISOTROPIC_MODES, MC, MT, PLY_MODES, S1, S2, SH, T12
 
@@ -49,6 +49,16 @@ def limits_ratio(m1, f1, m2, f2, m6, f6, x_t, x_c, y_t, y_c, s):
     if r2 <= r6:
         return r2, (MT if f2 + r2 * m2 >= 0.0 else MC)
     return r6, SH
+
+
+@njit(cache=True, forceinline=True)
+def limits_inside(m1, f1, m2, f2, m6, f6, x_t, x_c, y_t, y_c, s, lam):
+    """Whether the limits of :func:`limits_ratio` hold, by the margin INSIDE, at ``f`` and ``f + lam·m``: then
+    (a box is convex) R exceeds ``lam``. False when it cannot tell."""
+    k = 1.0 - INSIDE
+    e1, e2, e6 = f1 + lam * m1, f2 + lam * m2, f6 + lam * m6
+    return (lam < INF and -k * x_c < f1 < k * x_t and -k * x_c < e1 < k * x_t and -k * y_c < f2 < k * y_t
+            and -k * y_c < e2 < k * y_t and abs(f6) < k * s and abs(e6) < k * s)
 
 
 #: Mode indices of an isotropic layer (after the ply modes).
@@ -117,3 +127,9 @@ class MaxStress(Criterion):
     def point(sm, sf, c, m):
         return limits_ratio(sm[S1], sf[S1], sm[S2], sf[S2], sm[T12], sf[T12], c[m, 0], c[m, 1], c[m, 2], c[m, 3],
                             c[m, 4])
+
+    @staticmethod
+    @njit(cache=True, inline="always")
+    def inside(sm, sf, c, m, lam):
+        return limits_inside(sm[S1], sf[S1], sm[S2], sf[S2], sm[T12], sf[T12], c[m, 0], c[m, 1], c[m, 2], c[m, 3],
+                             c[m, 4], lam)

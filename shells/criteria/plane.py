@@ -11,6 +11,7 @@ from __future__ import annotations
 from numba import njit
 
 from .. import params as P
+from .prepared import INSIDE
 from .roots import first_crossing
 from .state import FC, FT, INF, MC, MT, S1, S2, SH, T12
 
@@ -62,6 +63,23 @@ def plane_ratio(m1, m2, m6, g1, g2, g6, f1, f2, f11, f22, f66, f12, lo, hi):
     a, b, c = plane_quadratic(m1, m2, m6, g1, g2, g6, f1, f2, f11, f22, f66, f12)
     r = first_crossing(a, b, c, lo, hi)
     return r, dominant_mode(m1, m2, m6, g1, g2, g6, r, f1, f2, f11, f22, f66)
+
+
+@njit(cache=True, forceinline=True)
+def plane_value(s1, s2, s6, f1, f2, f11, f22, f66, f12):
+    """The in-plane polynomial ``F1σ1 + F2σ2 + F11σ1² + F22σ2² + F66τ12² + 2F12σ1σ2``."""
+    return f1 * s1 + f2 * s2 + f11 * s1 * s1 + f22 * s2 * s2 + f66 * s6 * s6 + 2.0 * f12 * s1 * s2
+
+
+@njit(cache=True, forceinline=True)
+def plane_inside(m1, m2, m6, g1, g2, g6, f1, f2, f11, f22, f66, f12, lam):
+    """Whether the polynomial stays below 1 for ``g + R·m``, 0 ≤ R ≤ ``lam``: it is convex (F11, F22, F66 ≥ 0,
+    F12² ≤ F11·F22) and both ends lie below 1 − INSIDE. False when it cannot tell."""
+    if not (lam < INF and f11 >= 0.0 and f22 >= 0.0 and f66 >= 0.0 and f12 * f12 <= f11 * f22):
+        return False
+    top = 1.0 - INSIDE
+    return (plane_value(g1, g2, g6, f1, f2, f11, f22, f66, f12) < top
+            and plane_value(g1 + lam * m1, g2 + lam * m2, g6 + lam * m6, f1, f2, f11, f22, f66, f12) < top)
 
 
 @njit(cache=True, inline="always")

@@ -10,6 +10,12 @@ e.g. maximum stress on an isotropic layer). The constants are the strengths'
 reciprocals and products the criterion would otherwise form on every call; a
 criterion's ``ratio`` and ``point`` run the same arithmetic on the same
 constants, so both give the same bits.
+
+A criterion whose safe region is convex may also give ``inside(sm, sf, c, m,
+lam) -> bool`` on the same constants: True only when the states ``sf`` and
+``sf + lam·sm`` both lie inside the region by the margin :data:`INSIDE`, so
+that (by convexity) the ratio exceeds ``lam``. The ply discount uses it to
+leave out evaluations that cannot fail at a step; False means "cannot tell".
 """
 
 from __future__ import annotations
@@ -28,6 +34,16 @@ SKIP, FAST, GENERIC = 0, 1, 2
 def generic_prepare(p, out):
     """``prepare`` of a criterion without a prepared form: every ply point by the criterion's ``ratio``."""
     return GENERIC
+
+
+#: Relative margin of an ``inside`` test: each end of the segment must lie this far inside the safe region.
+INSIDE = 1e-9
+
+
+@njit(cache=True)
+def no_inside(sm, sf, c, m, lam):
+    """``inside`` of a criterion without one: cannot tell (False)."""
+    return False
 
 
 @njit(cache=True)

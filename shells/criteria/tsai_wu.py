@@ -17,7 +17,7 @@ from numba import njit
 from .. import params as P
 from .base import Criterion
 from .prepared import FAST, SKIP
-from .plane import plane_ratio, plane_strengths, polynomial_ratio
+from .plane import plane_inside, plane_ratio, plane_strengths, polynomial_ratio
 from .state import INF, PLY_MODES, S1, S2, T12
 
 
@@ -64,3 +64,9 @@ class TsaiWu(Criterion):
     def point(sm, sf, c, m):
         return plane_ratio(sm[S1], sm[S2], sm[T12], sf[S1], sf[S2], sf[T12], c[m, 0], c[m, 1], c[m, 2], c[m, 3],
                            c[m, 4], c[m, 5], 0.0, INF)
+
+    @staticmethod
+    @njit(cache=True, inline="always")
+    def inside(sm, sf, c, m, lam):
+        return plane_inside(sm[S1], sm[S2], sm[T12], sf[S1], sf[S2], sf[T12], c[m, 0], c[m, 1], c[m, 2], c[m, 3],
+                            c[m, 4], c[m, 5], lam)

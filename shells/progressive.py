@@ -244,6 +244,8 @@ def progressive_block(sec, share, kappa, boxes, codes, masks, fibre_mode, retain
                             if sr < rk[k]:
                                 rk[k], ck[k] = sr, -1
                                 mk[k] = FT if b[0] + sr * a[0] >= 0.0 else FC
+                        elif pt == 1:
+                            continue           # the box is convex: the middle leaves it after a face
                         elif kap == 0.0:
                             lb[k] = -np.inf
                         elif kap < np.inf:

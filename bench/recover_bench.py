@@ -9,6 +9,7 @@ measurement runs in its own subprocess so its peak resident memory
     python bench/recover_bench.py [--cells 1000000] [--cases 4] [--work /tmp/plybridge-bench]
     python bench/recover_bench.py --progressive [--cells 100000]   # the ply discount's cost against a plain run
     python bench/recover_bench.py --progressive --progressive-criteria tsai-wu   # failures found by Tsai-Wu only
+    python bench/recover_bench.py --progressive --repeat 5     # five pairs, the median ratio (a shared machine drifts)
 
 With ``--progressive`` the whole run is measured twice, as is and with ``[analysis.progressive]`` (the default
 criteria find the failures, failed moduli set to zero), and the ratio of the two times is printed.
@@ -180,6 +181,7 @@ def parse(argv=None):
     ap.add_argument("--progressive", action="store_true", help="also time a run with [analysis.progressive]")
     ap.add_argument("--progressive-criteria", default="",
                     help="comma-separated criteria that find the failures of the ply discount (default: all the run's)")
+    ap.add_argument("--repeat", type=int, default=1, help="pairs of plain and progressive runs (median printed)")
     ap.add_argument("--child", help=argparse.SUPPRESS)
     return ap.parse_args(argv)
 
@@ -199,13 +201,19 @@ def main(argv=None) -> None:
     if args.progressive:
         chosen = [c for c in args.progressive_criteria.split(",") if c]
         in_subprocess("warm", with_progressive(small, chosen), 2000, args.cases, out, {})
-        plain = in_subprocess("command", paths, args.cells, args.cases, out)
-        report("whole run_recover", plain)
-        prog = in_subprocess("command", with_progressive(paths, chosen), args.cells, args.cases, out)
-        report("with progressive failure", prog)
-        print(f"progressive / plain time: {prog['seconds'] / plain['seconds']:.2f} (wall), "
-              f"{prog['cpu_seconds'] / plain['cpu_seconds']:.2f} (CPU time of the process, all threads: the fairer "
-              "figure on a shared machine)")
+        ratios = []
+        for _ in range(args.repeat):          # plain and progressive one after the other: the machine's load
+            plain = in_subprocess("command", paths, args.cells, args.cases, out)   # drifts less within a pair
+            report("whole run_recover", plain)
+            prog = in_subprocess("command", with_progressive(paths, chosen), args.cells, args.cases, out)
+            report("with progressive failure", prog)
+            ratios.append((prog["seconds"] / plain["seconds"], prog["cpu_seconds"] / plain["cpu_seconds"]))
+            print(f"progressive / plain time: {ratios[-1][0]:.2f} (wall), {ratios[-1][1]:.2f} (CPU time of the "
+                  "process, all threads: the fairer figure on a shared machine)", flush=True)
+        if len(ratios) > 1:
+            wall, cpu = np.median(ratios, axis=0)
+            print(f"median of {len(ratios)} pairs: {wall:.2f} (wall), {cpu:.2f} (CPU); CPU range "
+                  f"{min(r[1] for r in ratios):.2f}–{max(r[1] for r in ratios):.2f}")
         return
     in_subprocess("warm", small, 2000, args.cases, out, {})
     kernel = in_subprocess("kernel", paths, args.cells, args.cases, out)

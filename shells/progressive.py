@@ -84,7 +84,7 @@ def _point(e, zz, ct, st, q, f1, f2, out):
 
 
 @njit(cache=True, parallel=True)
-def progressive_block(sec, share, kappa, boxes, codes, masks, fibre_mode, retained, blk, first, last, seq):
+def progressive_block(sec, share, boxes, codes, masks, fibre_mode, retained, blk, first, last, seq):
     """First- and last-ply factors of a block of cells × cases (written in place).
 
     Parameters
@@ -93,12 +93,11 @@ def progressive_block(sec, share, kappa, boxes, codes, masks, fibre_mode, retain
         Section and ply tables (allowables of the cases' environment).
     share : float64 (nrows,)
         Share of each ply row in the stiffness of its layer (1; ½ for each half of a wound ±α layer).
-    kappa : float64 (nrows,)
-        Scale of the strength box inside every chosen criterion (:func:`shells.progressive_bounds.inner_box`;
-        0: no bound, inf: no criterion applies).
     boxes : float64 (nrows, ncrit)
-        κ of each criterion on each row (:func:`shells.progressive_bounds.criterion_boxes`): a criterion is left
-        out where its states stay in its box up to the step's limit (:func:`shells.progressive_exact.ply_ratios`).
+        Scale κ of the strength box inside each chosen criterion's safe region, per ply row
+        (:func:`shells.progressive_bounds.criterion_boxes`; 0: no box, inf: the criterion does not apply). The
+        row's smallest gives the plies' lower bound; a criterion is left out where the states stay in its own box
+        up to the step's limit (:func:`shells.progressive_exact.ply_ratios`).
     codes : int64 (ncrit,), masks : bool (ncrit, 3)
         Criteria that find the failures and the points they are checked at (the middle point may be left out
         for the :data:`CONVEX` ones).
@@ -129,6 +128,10 @@ def progressive_block(sec, share, kappa, boxes, codes, masks, fibre_mode, retain
     for m in range(codes.shape[0]):
         middle = middle or masks[m, 1]
     forms, consts = prepare_table(codes, params)   # each criterion's constants on each ply, computed once
+    kappa = np.full(boxes.shape[0], np.inf)       # each row's box inside every criterion: the smallest
+    for row in range(boxes.shape[0]):
+        for m in range(boxes.shape[1]):
+            kappa[row] = min(kappa[row], boxes[row, m])
     for i in prange(ncell):
         K = np.empty((6, 6))
         rhs = np.empty((6, 2))
@@ -260,8 +263,8 @@ def progressive_block(sec, share, kappa, boxes, codes, masks, fibre_mode, retain
                         done[k] = lb[k] == np.inf      # no chosen criterion applies: never fails
                 # Exact ratios of the intact plies in increasing order of their bound, while the bound does not
                 # exceed the largest ratio that can still fail now (the current λ, or the smallest ratio so far).
-                rmin = exact_step(codes, masks, middle, forms, consts, params, boxes, p0, n, bm, bf, lb, done, rk, ck, mk,
-                                  lam, rmin)
+                rmin = exact_step(codes, masks, middle, forms, consts, params, boxes, p0, n, bm, bf, lb, done, rk, ck,
+                                  mk, lam, rmin)
                 if rmin == np.inf:
                     break              # nothing fails any more under this load direction
                 # Plies overloaded at the current λ after the last discount all fail at λ; otherwise λ rises to

@@ -98,11 +98,6 @@ def criterion_boxes(params: np.ndarray, criteria: Sequence[type]) -> np.ndarray:
     return np.where(np.isnan(out), 0.0, out)
 
 
-def smallest_box(boxes: np.ndarray) -> np.ndarray:
-    """The row's κ from :func:`criterion_boxes`: the smallest over the criteria (inf when there are none)."""
-    return boxes.min(axis=1) if boxes.shape[1] else np.full(boxes.shape[0], np.inf)
-
-
 def inner_box(params: np.ndarray, criteria: Sequence[type]) -> np.ndarray:
     """κ of every row of ``params`` (nrows, NPARAM): the smallest over the chosen criterion classes."""
-    return smallest_box(criterion_boxes(params, criteria))
+    return np.min(criterion_boxes(params, criteria), axis=1, initial=np.inf)

@@ -76,7 +76,7 @@ def _hashin(p: np.ndarray) -> float:
 
 
 #: Criterion name → κ of a ply row (the criteria listed here apply to plies only, or to plies and isotropic
-#: layers where noted in :func:`inner_box`).
+#: layers where noted in :func:`criterion_boxes`).
 _PLY = {"max-stress": lambda p: 1.0, "max-strain": _max_strain, "tsai-wu": _tsai_wu, "hashin": _hashin}
 
 
@@ -96,8 +96,3 @@ def criterion_boxes(params: np.ndarray, criteria: Sequence[type]) -> np.ndarray:
                 kappa = float(_PLY[c.name](p))
             out[k, m] = kappa if math.isfinite(kappa) or kappa == math.inf else 0.0
     return np.where(np.isnan(out), 0.0, out)
-
-
-def inner_box(params: np.ndarray, criteria: Sequence[type]) -> np.ndarray:
-    """κ of every row of ``params`` (nrows, NPARAM): the smallest over the chosen criterion classes."""
-    return np.min(criterion_boxes(params, criteria), axis=1, initial=np.inf)

@@ -17,7 +17,8 @@ from numba import njit
 
 from . import params as P
 from .criteria.dispatch import inside_by_code, point_by_code, ratio_by_code
-from .criteria.prepared import FAST, INSIDE, SKIP
+from .criteria.max_stress import limits_inside
+from .criteria.prepared import FAST, SKIP
 from .numba_cache import configure
 
 configure()
@@ -32,19 +33,11 @@ def generic_at(code, bm, bf, k, pt, params, row):
     return ratio_by_code(code, bm[k, pt], bf[k, pt], params[row])
 
 
-@njit(cache=True, forceinline=True)
-def _in_box(a, b, up, lo, kap, lam):
-    """Whether ``b`` and ``b + lam·a`` lie inside (−kap·lo, kap·up), by the margin INSIDE."""
-    k = kap * (1.0 - INSIDE)
-    e = b + lam * a
-    return -k * lo < b < k * up and -k * lo < e < k * up
-
-
 @njit(cache=True, inline="always")
 def _face_in_box(bm, bf, k, pt, p, kap, lam):
-    return (_in_box(bm[k, pt, 0], bf[k, pt, 0], p[P.XT], p[P.XC], kap, lam)
-            and _in_box(bm[k, pt, 1], bf[k, pt, 1], p[P.YT], p[P.YC], kap, lam)
-            and _in_box(bm[k, pt, 2], bf[k, pt, 2], p[P.S12], p[P.S12], kap, lam))
+    """The maximum-stress limits test (:func:`shells.criteria.max_stress.limits_inside`) on the box κ·B."""
+    return limits_inside(bm[k, pt, 0], bf[k, pt, 0], bm[k, pt, 1], bf[k, pt, 1], bm[k, pt, 2], bf[k, pt, 2],
+                         kap * p[P.XT], kap * p[P.XC], kap * p[P.YT], kap * p[P.YC], kap * p[P.S12], lam)
 
 
 @njit(cache=True, inline="always")

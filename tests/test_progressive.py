@@ -262,11 +262,11 @@ def test_inner_box_is_inside_the_criterion(name):
     # check on random in-plane states and rays that no state fails the criterion before it leaves κ·B.
     from shells.criteria.dispatch import ratio_by_code
     from shells.criteria import code
-    from shells.progressive_bounds import inner_box
+    from shells.progressive_bounds import criterion_boxes
 
     crit = by_name(name)
     p = _tables((0,)).params[0]
-    kappa = inner_box(p[None], (crit,))[0]
+    kappa = criterion_boxes(p[None], (crit,))[0, 0]
     assert 0.0 < kappa <= 1.0
     box = kappa * np.array([[XT, YT, S], [XC, YC, S]])
     rng = np.random.default_rng(11)

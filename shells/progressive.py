@@ -22,11 +22,13 @@ last-ply factor (inf when the laminate never fails completely under the load dir
 Transverse shear, σ3 and sandwich face checks are not part of the discount: the stresses here are the in-plane
 ones (τ13 = τ23 = σ3 = 0). Cost: each step sums the section again only from the first ply whose stiffness
 changed (each ply's terms are kept, :func:`shells.degraded.ply_terms`; the sums keep the ply order, so the section
-has the bits of a rebuild), solves it and checks the plies; the criteria are evaluated exactly
-(:mod:`shells.progressive_exact`) only on the intact plies whose lower bound (the ratio of leaving a strength box
-inside every criterion, :mod:`shells.progressive_bounds`) does not rule out a failure at this step, and
-:data:`CONVEX` criteria only at a ply's faces; without a fixed part no fixed stresses are formed. Conventions:
-docs/conventions.md; the ply discount: docs/criteria.md.
+has the bits of a rebuild), solves it and checks the plies: a ply's map from strains to its material stresses
+(Q·T, :func:`_ply_map`) is formed when its stiffness changes, so its stresses at a step are two 3×3 products
+and a line in z. The criteria are evaluated exactly (:mod:`shells.progressive_exact`) only on the intact plies
+whose lower bound (the ratio of leaving a strength box inside every criterion, :mod:`shells.progressive_bounds`;
+without fixed stresses one gauge of the faces' stresses in the box, :func:`box_gauge`) does not rule out a
+failure at this step, and :data:`CONVEX` criteria only at a ply's faces; without a fixed part no fixed stresses
+are formed. Conventions: docs/conventions.md; the ply discount: docs/criteria.md.
 """
 
 from __future__ import annotations
@@ -39,7 +41,7 @@ from .criteria.dispatch import prepare_table
 from .criteria.roots import linear_ratio
 from .criteria.state import FC, FT
 from .degraded import NTERM, ply_stiffness, ply_terms, running_sums, section_from_sums, solve_scaled
-from .progressive_exact import TIE, exact_step
+from .progressive_exact import BOUND, TIE, exact_step
 from .numba_cache import configure
 from .recovery import drop_roundoff
 
@@ -71,16 +73,59 @@ def in_plane(name: str) -> bool:
 
 
 @njit(cache=True, inline="always")
-def _point(e, zz, ct, st, q, f1, f2, out):
-    """In-plane material stresses (σ1, σ2, τ12) at z of the state e (6,) into out[0:3]; f1, f2 free strains."""
+def _ply_map(ct, st, q, f1, f2, out):
+    """A ply's map from laminate-axis strains to its material stresses, formed when its stiffness changes.
+
+    out[0:9]: the 3×3 map (row by row) from (εx, εy, γxy) to (σ1, σ2, τ12), Q·T with the ply at angle θ
+    (ct = cos θ, st = sin θ) from the laminate axes (docs/conventions.md); out[9:11]: the stresses σ1, σ2 of its
+    free strains f1, f2 (α·ΔT + β·ΔM along the material axes), to be subtracted. ``q``: Q11, Q12, Q22, Q66.
+    """
     pc, ps, px = ct * ct, st * st, ct * st
-    ex, ey, gx = e[0] + zz * e[3], e[1] + zz * e[4], e[2] + zz * e[5]
-    e1 = pc * ex + ps * ey + px * gx - f1
-    e2 = ps * ex + pc * ey - px * gx - f2
-    g12 = -2.0 * px * ex + 2.0 * px * ey + (pc - ps) * gx
-    out[0] = q[0] * e1 + q[1] * e2
-    out[1] = q[1] * e1 + q[2] * e2
-    out[2] = q[3] * g12
+    q0, q1, q2, q3 = q[0], q[1], q[2], q[3]
+    out[0] = q0 * pc + q1 * ps
+    out[1] = q0 * ps + q1 * pc
+    out[2] = (q0 - q1) * px
+    out[3] = q1 * pc + q2 * ps
+    out[4] = q1 * ps + q2 * pc
+    out[5] = (q1 - q2) * px
+    out[6] = -2.0 * q3 * px
+    out[7] = 2.0 * q3 * px
+    out[8] = q3 * (pc - ps)
+    out[9] = q0 * f1 + q1 * f2
+    out[10] = q1 * f1 + q2 * f2
+
+
+@njit(cache=True, inline="always")
+def _stresses(mp, e, f0, f1, z0, z1, z2, mid, out):
+    """(σ1, σ2, τ12) of the mid-plane strains and curvatures ``e`` (6,) through the map ``mp`` (:func:`_ply_map`),
+    less (f0, f1, 0), at z0 (bottom), z2 (top) and, when ``mid``, z1 into out[pt, 0:3]."""
+    a0 = mp[0] * e[0] + mp[1] * e[1] + mp[2] * e[2] - f0
+    a1 = mp[3] * e[0] + mp[4] * e[1] + mp[5] * e[2] - f1
+    a2 = mp[6] * e[0] + mp[7] * e[1] + mp[8] * e[2]
+    b0 = mp[0] * e[3] + mp[1] * e[4] + mp[2] * e[5]
+    b1 = mp[3] * e[3] + mp[4] * e[4] + mp[5] * e[5]
+    b2 = mp[6] * e[3] + mp[7] * e[4] + mp[8] * e[5]
+    out[0, 0] = a0 + z0 * b0
+    out[0, 1] = a1 + z0 * b1
+    out[0, 2] = a2 + z0 * b2
+    out[2, 0] = a0 + z2 * b0
+    out[2, 1] = a1 + z2 * b1
+    out[2, 2] = a2 + z2 * b2
+    if mid:
+        out[1, 0] = a0 + z1 * b0
+        out[1, 1] = a1 + z1 * b1
+        out[1, 2] = a2 + z1 * b2
+
+
+@njit(cache=True, inline="always")
+def box_gauge(a, b, iv):
+    """max |σc| / limit_c over the components of the states ``a`` and ``b`` (3,) and the box B whose reciprocal
+    limits ``iv`` are 1/Xt, 1/Xc, 1/Yt, 1/Yc, 1/S12: a state s·a stays in κ·B while s·gauge < κ."""
+    g = 0.0
+    for x in (a, b):
+        g = max(g, x[0] * (iv[0] if x[0] > 0.0 else -iv[1]), x[1] * (iv[2] if x[1] > 0.0 else -iv[3]),
+                abs(x[2]) * iv[4])
+    return g
 
 
 @njit(cache=True, parallel=True)
@@ -132,6 +177,11 @@ def progressive_block(sec, share, boxes, codes, masks, fibre_mode, retained, blk
     for row in range(boxes.shape[0]):
         for m in range(boxes.shape[1]):
             kappa[row] = min(kappa[row], boxes[row, m])
+    inv = np.zeros((boxes.shape[0], 5))          # reciprocal strengths of the box: Xt, Xc, Yt, Yc, S12
+    for row in range(boxes.shape[0]):
+        if 0.0 < kappa[row] < np.inf:
+            for a, col in enumerate((P.XT, P.XC, P.YT, P.YC, P.S12)):
+                inv[row, a] = 1.0 / params[row, col]
     for i in prange(ncell):
         K = np.empty((6, 6))
         rhs = np.empty((6, 2))
@@ -141,6 +191,7 @@ def progressive_block(sec, share, boxes, codes, masks, fibre_mode, retained, blk
         ef = np.empty(6)
         hf = np.empty(6)
         qk = np.empty((maxply, 4))
+        maps = np.empty((maxply, 11))
         f1k = np.empty(maxply)
         f2k = np.empty(maxply)
         terms = np.empty((maxply, NTERM))
@@ -156,6 +207,7 @@ def progressive_block(sec, share, boxes, codes, masks, fibre_mode, retained, blk
         ck = np.empty(maxply, np.int64)
         mk = np.empty(maxply, np.int64)
         lb = np.empty(maxply)
+        gk = np.empty(maxply)
         done = np.empty(maxply, np.bool_)
         bm = np.zeros((maxply, 3, 6))
         bf = np.zeros((maxply, 3, 6))
@@ -196,6 +248,7 @@ def progressive_block(sec, share, boxes, codes, masks, fibre_mode, retained, blk
                 f1k[k] = alpha[row, 0] * t + beta[row, 0] * h
                 f2k[k] = alpha[row, 1] * t + beta[row, 1] * h
                 ply_terms(row, z, cs, share, qk[k], f1k[k], f2k[k], terms[k])
+                _ply_map(cs[row, 0], cs[row, 1], qk[k], f1k[k], f2k[k], maps[k])
             k0 = 0                     # first ply whose terms changed since the section was last summed
             lam = 0.0
             f_first = np.inf
@@ -225,37 +278,42 @@ def progressive_block(sec, share, boxes, codes, masks, fibre_mode, retained, blk
                 for k in range(n):
                     rk[k] = np.inf
                     lb[k] = np.inf
+                    gk[k] = np.inf
                     if status[k] == 2:
                         done[k] = True             # fibre-failed: never checked again
                         continue
                     row = p0 + k
-                    ct, st = cs[row, 0], cs[row, 1]
-                    q, f1, f2 = qk[k], f1k[k], f2k[k]
+                    mp = maps[k]
                     pr = params[row]
                     kap = kappa[row]
-                    for pt in range(3):
-                        if pt == 1 and (status[k] == 1 or not middle):
-                            continue           # convex checks: the faces govern
-                        _point(em, z[row, pt], ct, st, q, 0.0, 0.0, bm[k, pt])
-                        if no_fixed and f1 == 0.0 and f2 == 0.0:
+                    mid = middle and status[k] == 0
+                    _stresses(mp, em, 0.0, 0.0, z[row, 0], z[row, 1], z[row, 2], mid, bm[k])
+                    if no_fixed and mp[9] == 0.0 and mp[10] == 0.0:
+                        for pt in range(3):
                             bf[k, pt, 0] = bf[k, pt, 1] = bf[k, pt, 2] = 0.0
-                        else:
-                            _point(ef, z[row, pt], ct, st, q, f1, f2, bf[k, pt])
-                        a, b = bm[k, pt], bf[k, pt]
-                        if status[k] == 1:
+                    else:
+                        _stresses(mp, ef, mp[9], mp[10], z[row, 0], z[row, 1], z[row, 2], mid, bf[k])
+                    if status[k] == 1:
+                        for pt in (0, 2):
+                            a, b = bm[k, pt], bf[k, pt]
                             sr = linear_ratio(b[0], a[0], pr[P.XT], pr[P.XC])
                             if sr < rk[k]:
                                 rk[k], ck[k] = sr, -1
                                 mk[k] = FT if b[0] + sr * a[0] >= 0.0 else FC
-                        elif pt == 1:
-                            continue           # the box is convex: the middle leaves it after a face
-                        elif kap == 0.0:
-                            lb[k] = -np.inf
-                        elif kap < np.inf:
-                            lo = min(linear_ratio(b[0], a[0], kap * pr[P.XT], kap * pr[P.XC]),
-                                     linear_ratio(b[1], a[1], kap * pr[P.YT], kap * pr[P.YC]),
-                                     linear_ratio(b[2], a[2], kap * pr[P.S12], kap * pr[P.S12]))
-                            lb[k] = min(lb[k], lo)
+                    elif kap == 0.0:
+                        lb[k] = -np.inf
+                    elif kap < np.inf:
+                        if no_fixed and mp[9] == 0.0 and mp[10] == 0.0:
+                            # No fixed stresses: the faces leave κ·B at κ / gauge (a little under it: a bound).
+                            gk[k] = box_gauge(bm[k, 0], bm[k, 2], inv[row])
+                            lb[k] = kap * (1.0 - BOUND) / gk[k] if gk[k] > 0.0 else np.inf
+                        else:
+                            for pt in (0, 2):
+                                a, b = bm[k, pt], bf[k, pt]
+                                lo = min(linear_ratio(b[0], a[0], kap * pr[P.XT], kap * pr[P.XC]),
+                                         linear_ratio(b[1], a[1], kap * pr[P.YT], kap * pr[P.YC]),
+                                         linear_ratio(b[2], a[2], kap * pr[P.S12], kap * pr[P.S12]))
+                                lb[k] = min(lb[k], lo)
                     if status[k] == 1:
                         rmin = min(rmin, rk[k])
                         done[k] = True
@@ -263,8 +321,8 @@ def progressive_block(sec, share, boxes, codes, masks, fibre_mode, retained, blk
                         done[k] = lb[k] == np.inf      # no chosen criterion applies: never fails
                 # Exact ratios of the intact plies in increasing order of their bound, while the bound does not
                 # exceed the largest ratio that can still fail now (the current λ, or the smallest ratio so far).
-                rmin = exact_step(codes, masks, middle, forms, consts, params, boxes, p0, n, bm, bf, lb, done, rk, ck,
-                                  mk, lam, rmin)
+                rmin = exact_step(codes, masks, middle, forms, consts, params, boxes, p0, n, bm, bf, lb, gk, done, rk,
+                                  ck, mk, lam, rmin)
                 if rmin == np.inf:
                     break              # nothing fails any more under this load direction
                 # Plies overloaded at the current λ after the last discount all fail at λ; otherwise λ rises to
@@ -290,6 +348,7 @@ def progressive_block(sec, share, boxes, codes, masks, fibre_mode, retained, blk
                         d2[k] *= retained[0]
                     ply_stiffness(p0 + k, Q, params, d1[k], d2[k], qk[k])
                     ply_terms(p0 + k, z, cs, share, qk[k], f1k[k], f2k[k], terms[k])
+                    _ply_map(cs[p0 + k, 0], cs[p0 + k, 1], qk[k], f1k[k], f2k[k], maps[k])
                     k0 = min(k0, k)
                     if record and nev < seq.shape[2]:
                         seq[j, i, nev, 0] = k

@@ -25,6 +25,9 @@ configure()
 
 #: Ratios within this relative distance of the smallest fail in the same step (plies of a symmetric stack).
 TIE = 1e-9
+#: A bound from the box κ·B is taken this much (relative) below its value: covers the rounding of the gauge and of
+#: κ against a criterion's own ratio.
+BOUND = 1e-12
 
 
 @njit(cache=True)
@@ -51,7 +54,7 @@ def box_inside(bm, bf, k, pt, p, kap, lam):
 
 
 @njit(cache=True, inline="always")
-def ply_ratios(codes, masks, middle, forms, consts, params, boxes, row, bm, bf, k, limit, r, crit, mode, sm, sf):
+def ply_ratios(codes, masks, middle, forms, consts, params, boxes, row, bm, bf, g, k, limit, r, crit, mode, sm, sf):
     """The lowest ratio of ply slot ``k`` (table row ``row``) over the criteria and points, from (r, crit, mode).
 
     Parameters
@@ -68,6 +71,11 @@ def ply_ratios(codes, masks, middle, forms, consts, params, boxes, row, bm, bf, 
         κ of each criterion on each row (:func:`shells.progressive_bounds.criterion_boxes`; 0: none).
     bm, bf : float64 (maxply, 3, 6)
         Mechanical and fixed material-axis stresses per ply slot and point.
+    g : float
+        Gauge of the ply's mechanical face stresses in the strength box B (max |σc|/limit_c, the fixed stresses
+        being zero; inf when they are not): criterion ``m`` cannot fail at any point of the ply (the middle's
+        states are the faces' mean, the box convex) while λ·g < κ_m. Criteria so ruled out up to the smaller of
+        ``limit`` and ``r`` are not looked at; the others are tested again at each point as ``r`` falls.
     limit : float
         The largest ratio that can fail at this step (inf: no limit). A criterion is not evaluated at a point
         where it is known not to fail up to the smaller of ``limit`` and the lowest ratio so far (× (1 + TIE)):
@@ -85,6 +93,13 @@ def ply_ratios(codes, masks, middle, forms, consts, params, boxes, row, bm, bf, 
     """
     cr = consts[row]
     pr = params[row]
+    lam0 = min(limit, r * (1.0 + TIE))
+    active = 0                        # criteria whose box the ply's faces may leave up to lam0 (bits)
+    for m in range(codes.shape[0]):
+        if forms[row, m] != SKIP and not lam0 * g < boxes[row, m] * (1.0 - BOUND):
+            active |= 1 << m
+    if active == 0:
+        return r, crit, mode
     for pt in range(3):
         if pt == 1 and not middle:
             continue
@@ -92,12 +107,12 @@ def ply_ratios(codes, masks, middle, forms, consts, params, boxes, row, bm, bf, 
             sm[a] = bm[k, pt, a]
             sf[a] = bf[k, pt, a]
         for m in range(codes.shape[0]):
-            if not masks[m, pt]:
+            if not (active >> m) & 1 or not masks[m, pt]:
                 continue
             f = forms[row, m]
-            if f == SKIP:             # the criterion does not apply: R = inf
-                continue
             lam = min(limit, r * (1.0 + TIE))
+            if lam * g < boxes[row, m] * (1.0 - BOUND):
+                continue              # the ply's faces stay in the criterion's box: no point fails it
             if lam < np.inf and ((f == FAST and inside_by_code(codes[m], sm, sf, cr, m, lam))
                                  or (boxes[row, m] > 0.0 and box_inside(bm, bf, k, pt, pr, boxes[row, m], lam))):
                 continue              # cannot fail up to lam: neither at this step nor below r
@@ -111,15 +126,16 @@ def ply_ratios(codes, masks, middle, forms, consts, params, boxes, row, bm, bf, 
 
 
 @njit(cache=True)
-def exact_step(codes, masks, middle, forms, consts, params, boxes, p0, n, bm, bf, lb, done, rk, ck, mk, lam, rmin):
+def exact_step(codes, masks, middle, forms, consts, params, boxes, p0, n, bm, bf, lb, gk, done, rk, ck, mk, lam, rmin):
     """Exact ratios of the plies of a step that can fail; returns the smallest ratio of the step.
 
     The plies not ``done`` are taken in increasing order of their lower bound ``lb`` (ties: the lower slot) and
     evaluated (:func:`ply_ratios`, from and into ``rk``, ``ck``, ``mk``; each is then ``done``) while the bound
     does not exceed the largest ratio that can still fail now: the current load factor ``lam``, or the smallest
     ratio so far (``rmin`` on entry: that of the plies checked in their fibres only). Slots ``p0 + k`` of the
-    tables, ``k < n``; the other arguments as :func:`ply_ratios`. A ply's ratio is exact when it fails at this
-    step; otherwise it is only known to exceed the step's limit.
+    tables, ``k < n``; ``gk``: each slot's gauge ``g`` of :func:`ply_ratios`; the other arguments as
+    :func:`ply_ratios`. A ply's ratio is exact when it fails at this step; otherwise it is only known to exceed
+    the step's limit.
     """
     sm = np.empty(6)
     sf = np.empty(6)
@@ -132,6 +148,6 @@ def exact_step(codes, masks, middle, forms, consts, params, boxes, p0, n, bm, bf
         if k < 0 or lb[k] > limit:
             return rmin
         done[k] = True
-        rk[k], ck[k], mk[k] = ply_ratios(codes, masks, middle, forms, consts, params, boxes, p0 + k, bm, bf, k, limit,
-                                         rk[k], ck[k], mk[k], sm, sf)
+        rk[k], ck[k], mk[k] = ply_ratios(codes, masks, middle, forms, consts, params, boxes, p0 + k, bm, bf, gk[k], k,
+                                         limit, rk[k], ck[k], mk[k], sm, sf)
         rmin = min(rmin, rk[k])

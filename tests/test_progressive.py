@@ -21,6 +21,7 @@ import pytest
 
 from postproc.progressive import progressive_cells
 from postproc.recover import recover_cells
+from shells import params as P
 from shells.criteria import by_name
 from shells.laminate import Laminate, Ply
 from shells.materials import Orthotropic
@@ -288,7 +289,8 @@ def test_states_in_a_criterion_box_do_not_fail_it(name):
     from shells.criteria import code
     from shells.criteria.dispatch import ratio_by_code
     from shells.progressive_bounds import criterion_boxes
-    from shells.progressive_exact import box_inside
+    from shells.progressive import box_gauge
+    from shells.progressive_exact import BOUND, box_inside
 
     crit = by_name(name)
     p = _tables((0,)).params[0]
@@ -308,6 +310,21 @@ def test_states_in_a_criterion_box_do_not_fail_it(name):
                 if np.isfinite(lam) and box_inside(bm, bf, 0, pt, p, kappa, lam):
                     answered += 1
                     assert r > lam, (name, pt, bm[0, pt], bf[0, pt], r, lam)
+    assert answered > 1000
+    # Without fixed stresses the kernel tests the whole ply at once: λ·gauge < κ (1 − BOUND), the gauge of the
+    # faces' stresses in the box B (its reciprocal limits), rules the criterion out at all three points.
+    inv = 1.0 / p[[P.XT, P.XC, P.YT, P.YC, P.S12]]
+    zero = np.zeros(6)
+    answered = 0
+    for _ in range(3000):
+        faces = rng.normal(size=(2, 3)) * scale * rng.uniform(0.01, 1.0)
+        g = box_gauge(faces[0], faces[1], inv)
+        points = (faces[0], faces.mean(axis=0), faces[1])
+        r = min(ratio_by_code(code(name), np.r_[s, 0.0, 0.0, 0.0], zero, p)[0] for s in points)
+        for lam in (0.3 * r, 0.9 * r, r, 1.5 * r):
+            if lam * g < kappa * (1.0 - BOUND):
+                answered += 1
+                assert r > lam, (name, faces, r, lam)
     assert answered > 1000
 
 
@@ -352,8 +369,8 @@ def test_prepared_forms_give_the_ratios_of_the_criteria():
     bf = np.zeros((8, 3, 6))
     bm[..., :3] = rng.normal(size=(8, 3, 3)) * np.array([XT, YT, S])
     bf[..., :3] = rng.normal(size=(8, 3, 3)) * np.array([XT, YT, S]) * 0.3
-    results = [[exact.ply_ratios(codes, masks, True, forms, consts, params, np.zeros((8, len(codes))), k, bm, bf, k,
-                                 np.inf, np.inf, -1, -1, np.empty(6), np.empty(6))
+    results = [[exact.ply_ratios(codes, masks, True, forms, consts, params, np.zeros((8, len(codes))), k, bm, bf,
+                                 np.inf, k, np.inf, np.inf, -1, -1, np.empty(6), np.empty(6))
                 for k in range(8)]]
     own = []
     for k in range(8):

@@ -27,7 +27,7 @@ from numba import njit
 
 from .. import params as P
 from .base import Criterion
-from .prepared import FAST, SKIP
+from .prepared import FAST, INSIDE, SKIP
 from .roots import break_point, first_crossing, sign_between
 from .state import INF, PLY_MODES, S1, S2, S3, T12, T13, T23
 
@@ -97,6 +97,38 @@ def hashin_ratio(m1, m2, m6, m13, m23, m3, g1, g2, g6, g13, g23, g3, xc, k_xt, k
     return r, mode
 
 
+@njit(cache=True, inline="always")
+def _mode_below(v0, v1, g, s, ends_sign):
+    """A convex mode's value below 1 − INSIDE at both ends of the segment, or its sign condition (σ of sign
+    ``ends_sign``) false at both ends (then false all along: σ is affine on the segment)."""
+    top = 1.0 - INSIDE
+    if ends_sign > 0 and g < 0.0 and s < 0.0 or ends_sign < 0 and g > 0.0 and s > 0.0:
+        return True
+    return v0 < top and v1 < top
+
+
+@njit(cache=True, inline="always")
+def hashin_inside(m1, m2, m6, m13, m23, m3, g1, g2, g6, g13, g23, g3, xc, k_xt, k_s12, k_st, k_yt, lin, k_c, lam):
+    """Whether none of the four modes reaches 1 for ``g + R·m``, 0 ≤ R ≤ ``lam`` (False when it cannot tell).
+
+    With σ3 = 0 at both ends every mode's function is convex in the stresses (sums of squares, plus a linear
+    term in σ2 for matrix compression): a mode cannot fail on the segment when it lies below 1 − INSIDE at both
+    ends, or when its sign condition (σ1 > 0, σ1 < 0, σ2 ≥ 0, σ2 < 0) is false at both ends. With σ3 ≠ 0 the
+    matrix modes' σ2σ3 term is not convex in general: False.
+    """
+    if not (lam < INF and g3 == 0.0 and m3 == 0.0):
+        return False
+    e1, e2, e6, e13, e23 = g1 + lam * m1, g2 + lam * m2, g6 + lam * m6, g13 + lam * m13, g23 + lam * m23
+    sh0 = k_s12 * (g6 * g6 + g13 * g13)
+    sh1 = k_s12 * (e6 * e6 + e13 * e13)
+    tr0 = sh0 + k_st * g23 * g23
+    tr1 = sh1 + k_st * e23 * e23
+    return (_mode_below(k_xt * g1 * g1 + sh0, k_xt * e1 * e1 + sh1, g1, e1, 1)
+            and _mode_below(-g1 / xc, -e1 / xc, g1, e1, -1)
+            and _mode_below(k_yt * g2 * g2 + tr0, k_yt * e2 * e2 + tr1, g2, e2, 1)
+            and _mode_below(k_c * g2 * g2 + lin * g2 + tr0, k_c * e2 * e2 + lin * e2 + tr1, g2, e2, -1))
+
+
 class Hashin(Criterion):
     name = "hashin"
     title = "Hashin (1980)"
@@ -125,3 +157,9 @@ class Hashin(Criterion):
     def point(sm, sf, c, m):
         return hashin_ratio(sm[S1], sm[S2], sm[T12], sm[T13], sm[T23], sm[S3], sf[S1], sf[S2], sf[T12], sf[T13],
                             sf[T23], sf[S3], c[m, 0], c[m, 1], c[m, 2], c[m, 3], c[m, 4], c[m, 5], c[m, 6])
+
+    @staticmethod
+    @njit(cache=True, inline="always")
+    def inside(sm, sf, c, m, lam):
+        return hashin_inside(sm[S1], sm[S2], sm[T12], sm[T13], sm[T23], sm[S3], sf[S1], sf[S2], sf[T12], sf[T13],
+                             sf[T23], sf[S3], c[m, 0], c[m, 1], c[m, 2], c[m, 3], c[m, 4], c[m, 5], c[m, 6], lam)

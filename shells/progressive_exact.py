@@ -2,8 +2,8 @@
 through the prepared per-ply forms of the criteria (:mod:`shells.criteria.prepared`), as the recovery kernel
 evaluates them.
 
-One compiled call per step (:func:`exact_step`) takes the candidate plies in increasing order of their lower
-bound and evaluates them while the bound does not rule out a failure at this step. Kept apart from the parallel
+One compiled call per step (:func:`exact_step`) evaluates the ply of the lowest bound, then every other ply whose
+lower bound does not rule out a failure at this step (one pass in slot order). Kept apart from the parallel
 kernel: the criteria are not typed again inside the kernel's parallel loop (a shorter cold compile). One call
 per step rather than one per ply, the states copied into work arrays, and a criterion without a prepared form
 on the row called out of line on the parent arrays: each of these keeps call and reference-counting work off
@@ -129,25 +129,33 @@ def ply_ratios(codes, masks, middle, forms, consts, params, boxes, row, bm, bf, 
 def exact_step(codes, masks, middle, forms, consts, params, boxes, p0, n, bm, bf, lb, gk, done, rk, ck, mk, lam, rmin):
     """Exact ratios of the plies of a step that can fail; returns the smallest ratio of the step.
 
-    The plies not ``done`` are taken in increasing order of their lower bound ``lb`` (ties: the lower slot) and
-    evaluated (:func:`ply_ratios`, from and into ``rk``, ``ck``, ``mk``; each is then ``done``) while the bound
-    does not exceed the largest ratio that can still fail now: the current load factor ``lam``, or the smallest
-    ratio so far (``rmin`` on entry: that of the plies checked in their fibres only). Slots ``p0 + k`` of the
-    tables, ``k < n``; ``gk``: each slot's gauge ``g`` of :func:`ply_ratios`; the other arguments as
-    :func:`ply_ratios`. A ply's ratio is exact when it fails at this step; otherwise it is only known to exceed
-    the step's limit.
+    The ply of the lowest bound ``lb`` among those not ``done`` is evaluated first (:func:`ply_ratios`, from and
+    into ``rk``, ``ck``, ``mk``; each evaluated ply is then ``done``), then every other one in slot order whose
+    bound does not exceed the largest ratio that can still fail now: the current load factor ``lam``, or the
+    smallest ratio so far (``rmin`` on entry: that of the plies checked in their fibres only), which falls as
+    plies are evaluated. Every ply whose ratio is within that limit at the end is evaluated, and exactly (its bound
+    is below its ratio, so within every earlier limit); a ply evaluated under a larger limit whose ratio exceeds
+    the final one may keep a value only known to exceed its own limit, which does not fail it. The order changes
+    which plies are evaluated, not the step's result. Slots ``p0 + k`` of the tables, ``k < n``; ``gk``: each
+    slot's gauge ``g`` of :func:`ply_ratios`; the other arguments as :func:`ply_ratios`.
     """
     sm = np.empty(6)
     sf = np.empty(6)
-    while True:
-        k = -1
-        for kk in range(n):
-            if not done[kk] and (k < 0 or lb[kk] < lb[k]):
-                k = kk
+    k = -1                            # first the ply of the lowest bound, to bring rmin down early
+    for kk in range(n):
+        if not done[kk] and (k < 0 or lb[kk] < lb[k]):
+            k = kk
+    if k < 0 or lb[k] > max(lam, rmin) * (1.0 + TIE):
+        return rmin
+    for kk in range(-1, n):           # then the others in slot order, each while its bound is within the limit
+        j = k if kk < 0 else kk
+        if done[j]:
+            continue
         limit = max(lam, rmin) * (1.0 + TIE)
-        if k < 0 or lb[k] > limit:
-            return rmin
-        done[k] = True
-        rk[k], ck[k], mk[k] = ply_ratios(codes, masks, middle, forms, consts, params, boxes, p0 + k, bm, bf, gk[k], k,
-                                         limit, rk[k], ck[k], mk[k], sm, sf)
-        rmin = min(rmin, rk[k])
+        if lb[j] > limit:
+            continue
+        done[j] = True
+        rk[j], ck[j], mk[j] = ply_ratios(codes, masks, middle, forms, consts, params, boxes, p0 + j, bm, bf, gk[j], j,
+                                         limit, rk[j], ck[j], mk[j], sm, sf)
+        rmin = min(rmin, rk[j])
+    return rmin

@@ -313,12 +313,14 @@ def test_states_in_a_criterion_box_do_not_fail_it(name):
     assert answered > 1000
     # Without fixed stresses the kernel tests the whole ply at once: λ·gauge < κ (1 − BOUND), the gauge of the
     # faces' stresses in the box B (its reciprocal limits), rules the criterion out at all three points.
-    inv = 1.0 / p[[P.XT, P.XC, P.YT, P.YC, P.S12]]
+    inv = 1.0 / p[None, [P.XT, P.XC, P.YT, P.YC, P.S12]]
     zero = np.zeros(6)
     answered = 0
     for _ in range(3000):
         faces = rng.normal(size=(2, 3)) * scale * rng.uniform(0.01, 1.0)
-        g = box_gauge(faces[0], faces[1], inv)
+        bm = np.zeros((1, 3, 6))
+        bm[0, ::2, :3] = faces
+        g = box_gauge(bm, 0, inv, 0)
         points = (faces[0], faces.mean(axis=0), faces[1])
         r = min(ratio_by_code(code(name), np.r_[s, 0.0, 0.0, 0.0], zero, p)[0] for s in points)
         for lam in (0.3 * r, 0.9 * r, r, 1.5 * r):

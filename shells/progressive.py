@@ -322,8 +322,8 @@ def progressive_block(sec, share, boxes, codes, masks, fibre_mode, retained, blk
                         done[k] = True
                     else:
                         done[k] = lb[k] == np.inf      # no chosen criterion applies: never fails
-                # Exact ratios of the intact plies in increasing order of their bound, while the bound does not
-                # exceed the largest ratio that can still fail now (the current λ, or the smallest ratio so far).
+                # Exact ratios of the intact plies whose bound does not exceed the largest ratio that can still fail
+                # now (the current λ, or the smallest ratio so far): the lowest bound first, then one pass.
                 rmin = exact_step(codes, masks, middle, forms, consts, params, boxes, p0, n, bm, bf, lb, gk, done, rk,
                                   ck, mk, lam, rmin)
                 if rmin == np.inf:

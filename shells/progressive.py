@@ -289,8 +289,9 @@ def progressive_block(sec, share, boxes, codes, masks, fibre_mode, retained, blk
                     row = p0 + k
                     kap = kappa[row]
                     mid = middle and status[k] == 0
+                    zero_fixed = no_fixed and maps[k, 9] == 0.0 and maps[k, 10] == 0.0
                     _stresses(maps, k, em, 0.0, 0.0, z[row, 0], z[row, 1], z[row, 2], mid, bm)
-                    if no_fixed and maps[k, 9] == 0.0 and maps[k, 10] == 0.0:
+                    if zero_fixed:
                         for pt in range(3):
                             bf[k, pt, 0] = bf[k, pt, 1] = bf[k, pt, 2] = 0.0
                     else:
@@ -304,7 +305,7 @@ def progressive_block(sec, share, boxes, codes, masks, fibre_mode, retained, blk
                     elif kap == 0.0:
                         lb[k] = -np.inf
                     elif kap < np.inf:
-                        if no_fixed and maps[k, 9] == 0.0 and maps[k, 10] == 0.0:
+                        if zero_fixed:
                             # No fixed stresses: the faces leave κ·B at κ / gauge (a little under it: a bound).
                             gk[k] = box_gauge(bm, k, inv, row)
                             lb[k] = kap * (1.0 - BOUND) / gk[k] if gk[k] > 0.0 else np.inf

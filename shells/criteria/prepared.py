@@ -11,10 +11,11 @@ reciprocals and products the criterion would otherwise form on every call; a
 criterion's ``ratio`` and ``point`` run the same arithmetic on the same
 constants, so both give the same bits.
 
-A criterion whose safe region is convex may also give ``inside(sm, sf, c, m,
-lam) -> bool`` on the same constants: True only when the states ``sf`` and
-``sf + lam·sm`` both lie inside the region by the margin :data:`INSIDE`, so
-that (by convexity) the ratio exceeds ``lam``. The ply discount uses it to
+A criterion whose safe region is convex (or, as Hashin's with σ3 = 0, whose
+mode functions are) may also give ``inside(sm, sf, c, m, lam) -> bool`` on the
+same constants: True only when the states ``sf`` and ``sf + lam·sm`` both lie
+inside the region (each mode below 1) by the margin :data:`INSIDE`, so that (by
+convexity) the ratio exceeds ``lam``. The ply discount uses it to
 leave out evaluations that cannot fail at a step; False means "cannot tell".
 """
 

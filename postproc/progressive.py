@@ -13,7 +13,7 @@ import numpy as np
 
 from shells.criteria import CRITERIA
 from shells.progressive import CONVEX, EVENT, progressive_block
-from shells.progressive_bounds import criterion_boxes
+from shells.progressive_bounds import criterion_balls, criterion_boxes
 from shells.recovery_args import Envelope
 from shells.recovery_tables import SectionTables
 from shells.separable import family, keep_modes, separable
@@ -84,8 +84,9 @@ def progressive_cells(criteria: Sequence[type], tables: SectionTables, cell_sec:
         g = np.full((ncell, ncase), np.inf)
         out = seq if k == 0 else np.zeros((0, 0, 0, EVENT))
         for a, b, arrays in case_runs(case_params, ncase, tables):
-            progressive_block(arrays, share, criterion_boxes(arrays.params, point), sel.codes, masks, fmodes, keep,
-                              case_slice(blk, a, b), f, g, out if out.size == 0 else out[a:b])
+            bounds = criterion_boxes(arrays.params, point), criterion_balls(arrays.params, point)
+            progressive_block(arrays, share, *bounds, sel.codes, masks, fmodes, keep, case_slice(blk, a, b), f, g,
+                              out if out.size == 0 else out[a:b])
         first = np.fmin(first, f) if k else f
         last = np.fmin(last, g) if k else g
     first[skip.T] = np.nan

@@ -120,20 +120,26 @@ def _stresses(maps, k, e, f0, f1, z0, z1, z2, mid, out):
 
 
 @njit(cache=True, inline="always")
-def box_gauge(bm, k, inv, row):
-    """max |σc| / limit_c over the components of the states of ply slot ``k`` at its faces (``bm[k, 0]``,
-    ``bm[k, 2]``) in the box B whose reciprocal limits ``inv[row]`` are 1/Xt, 1/Xc, 1/Yt, 1/Yc, 1/S12: the
-    states λ·bm stay in κ·B while λ·gauge < κ."""
-    g = 0.0
+def gauges(bm, k, inv, row):
+    """The gauges of the states of ply slot ``k`` at its faces (``bm[k, 0]``, ``bm[k, 2]``) in the box B and in
+    the ball of normalised stresses (:mod:`shells.progressive_bounds`), from the reciprocal limits ``inv[row]``
+    (1/Xt, 1/Xc, 1/Yt, 1/Yc, 1/S12): with u, v, w the stresses over their limits, the largest over the faces of
+    max(|u|, |v|, |w|) and of sqrt(u² + v² + w²). The states λ·bm stay in κ·B (in the ball of radius κ) while
+    λ·gauge < κ."""
+    box = 0.0
+    ball = 0.0
     for pt in (0, 2):
         x0, x1, x2 = bm[k, pt, 0], bm[k, pt, 1], bm[k, pt, 2]
-        g = max(g, x0 * (inv[row, 0] if x0 > 0.0 else -inv[row, 1]), x1 * (inv[row, 2] if x1 > 0.0 else -inv[row, 3]),
-                abs(x2) * inv[row, 4])
-    return g
+        u = x0 * (inv[row, 0] if x0 > 0.0 else -inv[row, 1])
+        v = x1 * (inv[row, 2] if x1 > 0.0 else -inv[row, 3])
+        w = abs(x2) * inv[row, 4]
+        box = max(box, u, v, w)
+        ball = max(ball, u * u + v * v + w * w)
+    return box, np.sqrt(ball)
 
 
 @njit(cache=True, parallel=True)
-def progressive_block(sec, share, boxes, codes, masks, fibre_mode, retained, blk, first, last, seq):
+def progressive_block(sec, share, boxes, balls, codes, masks, fibre_mode, retained, blk, first, last, seq):
     """First- and last-ply factors of a block of cells × cases (written in place).
 
     Parameters
@@ -147,6 +153,10 @@ def progressive_block(sec, share, boxes, codes, masks, fibre_mode, retained, blk
         (:func:`shells.progressive_bounds.criterion_boxes`; 0: no box, inf: the criterion does not apply). The
         row's smallest gives the plies' lower bound; a criterion is left out where the states stay in its own box
         up to the step's limit (:func:`shells.progressive_exact.ply_ratios`).
+    balls : float64 (nrows, ncrit)
+        κ of the ball of normalised stresses inside each criterion's safe region, per ply row
+        (:func:`shells.progressive_bounds.criterion_balls`; 0: no ball): used as ``boxes``, with the ball's gauge,
+        where the ply has no fixed stresses.
     codes : int64 (ncrit,), masks : bool (ncrit, 3)
         Criteria that find the failures and the points they are checked at (the middle point may be left out
         for the :data:`CONVEX` ones).
@@ -177,10 +187,12 @@ def progressive_block(sec, share, boxes, codes, masks, fibre_mode, retained, blk
     for m in range(codes.shape[0]):
         middle = middle or masks[m, 1]
     forms, consts = prepare_table(codes, params)   # each criterion's constants on each ply, computed once
-    kappa = np.full(boxes.shape[0], np.inf)       # each row's box inside every criterion: the smallest
+    kappa = np.full(boxes.shape[0], np.inf)       # each row's box (ball) inside every criterion: the smallest
+    kball = np.full(boxes.shape[0], np.inf)
     for row in range(boxes.shape[0]):
         for m in range(boxes.shape[1]):
             kappa[row] = min(kappa[row], boxes[row, m])
+            kball[row] = min(kball[row], balls[row, m])
     inv = np.zeros((boxes.shape[0], 5))          # reciprocal strengths of the box: Xt, Xc, Yt, Yc, S12
     for row in range(boxes.shape[0]):
         if 0.0 < kappa[row] < np.inf:
@@ -212,6 +224,7 @@ def progressive_block(sec, share, boxes, codes, masks, fibre_mode, retained, blk
         mk = np.empty(maxply, np.int64)
         lb = np.empty(maxply)
         gk = np.empty(maxply)
+        gb = np.empty(maxply)
         done = np.empty(maxply, np.bool_)
         bm = np.zeros((maxply, 3, 6))
         bf = np.zeros((maxply, 3, 6))
@@ -283,6 +296,7 @@ def progressive_block(sec, share, boxes, codes, masks, fibre_mode, retained, blk
                     rk[k] = np.inf
                     lb[k] = np.inf
                     gk[k] = np.inf
+                    gb[k] = np.inf
                     if status[k] == 2:
                         done[k] = True             # fibre-failed: never checked again
                         continue
@@ -306,9 +320,10 @@ def progressive_block(sec, share, boxes, codes, masks, fibre_mode, retained, blk
                         lb[k] = -np.inf
                     elif kap < np.inf:
                         if zero_fixed:
-                            # No fixed stresses: the faces leave κ·B at κ / gauge (a little under it: a bound).
-                            gk[k] = box_gauge(bm, k, inv, row)
-                            lb[k] = kap * (1.0 - BOUND) / gk[k] if gk[k] > 0.0 else np.inf
+                            # No fixed stresses: the faces leave κ·B at κ / gauge, and the ball at its κ over its
+                            # gauge; the later of the two (a little under it) is a bound.
+                            gk[k], gb[k] = gauges(bm, k, inv, row)
+                            lb[k] = max(kap / gk[k], kball[row] / gb[k]) * (1.0 - BOUND) if gk[k] > 0.0 else np.inf
                         else:
                             for pt in (0, 2):
                                 lo = min(linear_ratio(bf[k, pt, 0], bm[k, pt, 0], kap * params[row, P.XT],
@@ -325,8 +340,8 @@ def progressive_block(sec, share, boxes, codes, masks, fibre_mode, retained, blk
                         done[k] = lb[k] == np.inf      # no chosen criterion applies: never fails
                 # Exact ratios of the intact plies whose bound does not exceed the largest ratio that can still fail
                 # now (the current λ, or the smallest ratio so far): the lowest bound first, then one pass.
-                rmin = exact_step(codes, masks, middle, forms, consts, params, boxes, p0, n, bm, bf, lb, gk, done, rk,
-                                  ck, mk, lam, rmin)
+                rmin = exact_step(codes, masks, middle, forms, consts, params, boxes, balls, p0, n, bm, bf, lb, gk, gb,
+                                  done, rk, ck, mk, lam, rmin)
                 if rmin == np.inf:
                     break              # nothing fails any more under this load direction
                 # Plies overloaded at the current λ after the last discount all fail at λ; otherwise λ rises to

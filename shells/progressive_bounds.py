@@ -21,6 +21,18 @@ so the ratio of leaving κ·B (three linear ratios) is a lower bound on the crit
 The row's κ is the smallest over the criteria; inf means no chosen criterion applies (the ply never fails). Each
 criterion's own κ (:func:`criterion_boxes`) also leaves it out of a ply's evaluation where the ply's states stay in
 its box up to the step's limit (:func:`shells.progressive_exact.ply_ratios`).
+
+A second bound uses the ball of the normalised stresses (u, v, w) = (σ1/X, σ2/Y, τ12/S12), X = Xt or Xc and Y = Yt
+or Yc by the sign of σ: its gauge sqrt(u² + v² + w²) is convex and positively homogeneous (each term a convex
+function of one stress), so a state λ·sm stays in the ball of radius κ while λ·gauge < κ, and along a ply the
+middle cannot leave it before both faces. The quadratic criteria are much closer to that ball than to the box
+(κ of the graphite/epoxy of the benchmark: Tsai-Wu 0.48 for the box, 0.81 for the ball). κ of the ball per
+criterion (:func:`criterion_balls`) comes from the criterion's own ratios, with no fixed stresses, at the vertices
+of a polytope around the unit ball: in each octant of (u, v, w) the triangulated octant of the sphere, pushed out
+so that every flat triangle lies outside the sphere. The criterion's safe region within an octant is convex (each
+mode's function of the stresses is), so the polytope scaled by the smallest ratio at its vertices is inside it,
+and with it the ball. Vertices on the planes between octants are also taken a little inside each octant (a
+criterion's modes change there); κ is taken :data:`BALL_MARGIN` below the smallest ratio.
 """
 
 from __future__ import annotations
@@ -29,8 +41,14 @@ import math
 from typing import Sequence
 
 import numpy as np
+from numba import njit
 
 from . import params as P
+from .criteria.dispatch import ratio_by_code
+from .criteria.registry import code
+from .numba_cache import configure
+
+configure()
 
 _CORNERS = ((1.0, 1.0), (1.0, -1.0), (-1.0, 1.0), (-1.0, -1.0))
 
@@ -80,9 +98,17 @@ def _hashin(p: np.ndarray) -> float:
 _PLY = {"max-stress": lambda p: 1.0, "max-strain": _max_strain, "tsai-wu": _tsai_wu, "hashin": _hashin}
 
 
-def criterion_boxes(params: np.ndarray, criteria: Sequence[type]) -> np.ndarray:
-    """κ (nrows, ncrit) of every row of ``params`` (nrows, NPARAM) for each chosen criterion class: inf where the
-    criterion does not apply to the row, 0 where it has no bound (see the module notes)."""
+#: Subdivisions of each edge of an octant of the sphere (the vertices of the polytope around the ball).
+BALL_DIVISIONS = 24
+#: κ of the ball is taken this much (relative) below the smallest ratio at the polytope's vertices.
+BALL_MARGIN = 1e-6
+#: How far (relative) a vertex on a plane between octants is also taken inside each of its octants.
+NUDGE = 1e-9
+
+
+def _table(params: np.ndarray, criteria: Sequence[type], kappa) -> np.ndarray:
+    """κ (nrows, ncrit) from ``kappa(row, criterion)`` on the ply rows of the criteria in :data:`_PLY`: inf where
+    the criterion does not apply to the row, 0 where it has no bound (or ``kappa`` gives none)."""
     out = np.full((params.shape[0], len(criteria)), np.inf)
     for k, p in enumerate(params):
         kind = int(p[P.KIND])
@@ -93,6 +119,72 @@ def criterion_boxes(params: np.ndarray, criteria: Sequence[type]) -> np.ndarray:
                 out[k, m] = 0.0
                 continue
             with np.errstate(all="ignore"):
-                kappa = float(_PLY[c.name](p))
-            out[k, m] = kappa if math.isfinite(kappa) or kappa == math.inf else 0.0
+                value = float(kappa(k, c))
+            out[k, m] = value if math.isfinite(value) or value == math.inf else 0.0
     return np.where(np.isnan(out), 0.0, out)
+
+
+def criterion_boxes(params: np.ndarray, criteria: Sequence[type]) -> np.ndarray:
+    """κ (nrows, ncrit) of the strength box B of every row of ``params`` (nrows, NPARAM) for each chosen
+    criterion class: inf where the criterion does not apply to the row, 0 where it has no bound (see the module
+    notes)."""
+    return _table(params, criteria, lambda k, c: _PLY[c.name](params[k]))
+
+
+def ball_vertices(divisions: int = BALL_DIVISIONS) -> np.ndarray:
+    """Vertices (nv, 3) in (u, v, w) of a polytope that contains the unit ball, octant by octant.
+
+    Each octant of the sphere is the face of the octahedron cut into ``divisions``² triangles, their corners
+    put on the sphere; all vertices are then scaled by 1/d, d the smallest distance of a triangle's plane from
+    the origin, so that every triangle lies outside the sphere. Vertices on the planes between octants are
+    given once per octant, also moved :data:`NUDGE` into it.
+    """
+    n = divisions
+    ij = [(i, j) for i in range(n + 1) for j in range(n + 1 - i)]
+    index = {t: a for a, t in enumerate(ij)}
+    bary = np.array([(i, j, n - i - j) for i, j in ij], dtype=float)
+    unit = bary / np.linalg.norm(bary, axis=1)[:, None]
+    tris = [(index[i, j], index[i + 1, j], index[i, j + 1]) for i in range(n) for j in range(n - i)]
+    tris += [(index[i + 1, j], index[i + 1, j + 1], index[i, j + 1]) for i in range(n) for j in range(n - i - 1)]
+    a, b, c = (unit[[t[q] for t in tris]] for q in range(3))
+    normal = np.cross(b - a, c - a)
+    dist = np.abs(np.einsum("ij,ij->i", normal, a)) / np.linalg.norm(normal, axis=1)
+    outer = unit / dist.min()
+    out = []
+    for signs in np.array(np.meshgrid([1.0, -1.0], [1.0, -1.0], [1.0, -1.0])).reshape(3, -1).T:
+        v = outer * signs
+        out.append(v)
+        out.append(v + NUDGE * np.abs(v).max(axis=1)[:, None] * signs * (v == 0.0))
+    return np.unique(np.concatenate(out), axis=0)
+
+
+@njit(cache=True)
+def smallest_ratio(code, sm, p):
+    """The smallest ratio of criterion ``code`` over the mechanical states ``sm`` (nv, 6) with no fixed stresses,
+    on the property vector ``p``."""
+    zero = np.zeros(6)
+    out = np.inf
+    for i in range(sm.shape[0]):
+        out = min(out, ratio_by_code(code, sm[i], zero, p)[0])
+    return out
+
+
+def criterion_balls(params: np.ndarray, criteria: Sequence[type]) -> np.ndarray:
+    """κ (nrows, ncrit) of the ball of normalised stresses of every row of ``params`` (nrows, NPARAM) for each
+    chosen criterion class (module notes): the smallest ratio, with no fixed stresses, at the vertices of
+    :func:`ball_vertices` turned into stresses by the row's strengths, :data:`BALL_MARGIN` below. inf where the
+    criterion does not apply to the row, 0 where it has no bound."""
+    vert = ball_vertices()
+    cache: dict[tuple, float] = {}
+
+    def kappa(k: int, c: type) -> float:
+        p = params[k]
+        key = (c.name, p.tobytes())
+        if key not in cache:
+            sm = np.zeros((vert.shape[0], 6))
+            for a, (up, down) in enumerate(((P.XT, P.XC), (P.YT, P.YC), (P.S12, P.S12))):
+                sm[:, a] = vert[:, a] * np.where(vert[:, a] > 0.0, p[up], p[down])
+            cache[key] = smallest_ratio(code(c.name), sm, np.ascontiguousarray(p)) * (1.0 - BALL_MARGIN)
+        return cache[key]
+
+    return _table(params, criteria, kappa)

@@ -54,7 +54,15 @@ def box_inside(bm, bf, k, pt, p, kap, lam):
 
 
 @njit(cache=True, inline="always")
-def ply_ratios(codes, masks, middle, forms, consts, params, boxes, row, bm, bf, g, k, limit, r, crit, mode, sm, sf):
+def ruled_out(lam, g, gb, box, ball):
+    """Whether a criterion whose box κ is ``box`` and ball κ ``ball`` cannot fail a ply up to the load factor
+    ``lam``: λ·gauge below κ (1 − BOUND) for either (gauges ``g``, ``gb`` of :func:`ply_ratios`)."""
+    return lam * g < box * (1.0 - BOUND) or lam * gb < ball * (1.0 - BOUND)
+
+
+@njit(cache=True, inline="always")
+def ply_ratios(codes, masks, middle, forms, consts, params, boxes, balls, row, bm, bf, g, gb, k, limit, r, crit, mode,
+               sm, sf):
     """The lowest ratio of ply slot ``k`` (table row ``row``) over the criteria and points, from (r, crit, mode).
 
     Parameters
@@ -67,14 +75,16 @@ def ply_ratios(codes, masks, middle, forms, consts, params, boxes, row, bm, bf, 
         Prepared forms and constants (:func:`shells.criteria.dispatch.prepare_table`).
     params : float64 (nrows, NPARAM)
         Property vectors (for the criteria without a prepared form on the row).
-    boxes : float64 (nrows, ncrit)
-        κ of each criterion on each row (:func:`shells.progressive_bounds.criterion_boxes`; 0: none).
+    boxes, balls : float64 (nrows, ncrit)
+        κ of the box and of the ball of each criterion on each row (:func:`shells.progressive_bounds.criterion_boxes`,
+        :func:`~shells.progressive_bounds.criterion_balls`; 0: none).
     bm, bf : float64 (maxply, 3, 6)
         Mechanical and fixed material-axis stresses per ply slot and point.
-    g : float
-        Gauge of the ply's mechanical face stresses in the strength box B (max |σc|/limit_c, the fixed stresses
-        being zero; inf when they are not): criterion ``m`` cannot fail at any point of the ply (the middle's
-        states are the faces' mean, the box convex) while λ·g < κ_m. Criteria so ruled out up to the smaller of
+    g, gb : float
+        Gauges of the ply's mechanical face stresses in the strength box B and in the ball of normalised stresses
+        (:func:`shells.progressive.gauges`; the fixed stresses being zero, inf when they are not): criterion ``m``
+        cannot fail at any point of the ply (the middle's states are the faces' mean, box and ball convex) while
+        λ·g < κ_m or λ·gb < κ_m of the ball (:func:`ruled_out`). Criteria so ruled out up to the smaller of
         ``limit`` and ``r`` are not looked at; the others are tested again at each point as ``r`` falls.
     limit : float
         The largest ratio that can fail at this step (inf: no limit). A criterion is not evaluated at a point
@@ -96,7 +106,7 @@ def ply_ratios(codes, masks, middle, forms, consts, params, boxes, row, bm, bf, 
     lam0 = min(limit, r * (1.0 + TIE))
     active = 0                        # criteria whose box the ply's faces may leave up to lam0 (bits)
     for m in range(codes.shape[0]):
-        if forms[row, m] != SKIP and not lam0 * g < boxes[row, m] * (1.0 - BOUND):
+        if forms[row, m] != SKIP and not ruled_out(lam0, g, gb, boxes[row, m], balls[row, m]):
             active |= 1 << m
     if active == 0:
         return r, crit, mode
@@ -111,8 +121,8 @@ def ply_ratios(codes, masks, middle, forms, consts, params, boxes, row, bm, bf, 
                 continue
             f = forms[row, m]
             lam = min(limit, r * (1.0 + TIE))
-            if lam * g < boxes[row, m] * (1.0 - BOUND):
-                continue              # the ply's faces stay in the criterion's box: no point fails it
+            if ruled_out(lam, g, gb, boxes[row, m], balls[row, m]):
+                continue              # the ply's faces stay in the criterion's box or ball: no point fails it
             if lam < np.inf and ((f == FAST and inside_by_code(codes[m], sm, sf, cr, m, lam))
                                  or (boxes[row, m] > 0.0 and box_inside(bm, bf, k, pt, pr, boxes[row, m], lam))):
                 continue              # cannot fail up to lam: neither at this step nor below r
@@ -126,7 +136,8 @@ def ply_ratios(codes, masks, middle, forms, consts, params, boxes, row, bm, bf, 
 
 
 @njit(cache=True)
-def exact_step(codes, masks, middle, forms, consts, params, boxes, p0, n, bm, bf, lb, gk, done, rk, ck, mk, lam, rmin):
+def exact_step(codes, masks, middle, forms, consts, params, boxes, balls, p0, n, bm, bf, lb, gk, gb, done, rk, ck, mk,
+               lam, rmin):
     """Exact ratios of the plies of a step that can fail; returns the smallest ratio of the step.
 
     The ply of the lowest bound ``lb`` among those not ``done`` is evaluated first (:func:`ply_ratios`, from and
@@ -137,7 +148,7 @@ def exact_step(codes, masks, middle, forms, consts, params, boxes, p0, n, bm, bf
     is below its ratio, so within every earlier limit); a ply evaluated under a larger limit whose ratio exceeds
     the final one may keep a value only known to exceed its own limit, which does not fail it. The order changes
     which plies are evaluated, not the step's result. Slots ``p0 + k`` of the tables, ``k < n``; ``gk``: each
-    slot's gauge ``g`` of :func:`ply_ratios`; the other arguments as :func:`ply_ratios`.
+    slot's gauges ``g``, ``gb`` of :func:`ply_ratios`; the other arguments as :func:`ply_ratios`.
     """
     sm = np.empty(6)
     sf = np.empty(6)
@@ -155,7 +166,7 @@ def exact_step(codes, masks, middle, forms, consts, params, boxes, p0, n, bm, bf
         if lb[j] > limit:
             continue
         done[j] = True
-        rk[j], ck[j], mk[j] = ply_ratios(codes, masks, middle, forms, consts, params, boxes, p0 + j, bm, bf, gk[j], j,
-                                         limit, rk[j], ck[j], mk[j], sm, sf)
+        rk[j], ck[j], mk[j] = ply_ratios(codes, masks, middle, forms, consts, params, boxes, balls, p0 + j, bm, bf,
+                                         gk[j], gb[j], j, limit, rk[j], ck[j], mk[j], sm, sf)
         rmin = min(rmin, rk[j])
     return rmin

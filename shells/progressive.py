@@ -225,6 +225,8 @@ def progressive_block(sec, share, boxes, balls, codes, masks, fibre_mode, retain
         lb = np.empty(maxply)
         gk = np.empty(maxply)
         gb = np.empty(maxply)
+        sm = np.empty(6)
+        sf = np.empty(6)
         done = np.empty(maxply, np.bool_)
         bm = np.zeros((maxply, 3, 6))
         bf = np.zeros((maxply, 3, 6))
@@ -341,7 +343,7 @@ def progressive_block(sec, share, boxes, balls, codes, masks, fibre_mode, retain
                 # Exact ratios of the intact plies whose bound does not exceed the largest ratio that can still fail
                 # now (the current λ, or the smallest ratio so far): the lowest bound first, then one pass.
                 rmin = exact_step(codes, masks, middle, forms, consts, params, boxes, balls, p0, n, bm, bf, lb, gk, gb,
-                                  done, rk, ck, mk, lam, rmin)
+                                  done, rk, ck, mk, lam, rmin, sm, sf)
                 if rmin == np.inf:
                     break              # nothing fails any more under this load direction
                 # Plies overloaded at the current λ after the last discount all fail at λ; otherwise λ rises to

@@ -20,7 +20,7 @@ PIVOT = 1e-10
 INCONSISTENT = 1e-8
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def solve_scaled(K, b, x, A, y, s, col):
     """Solve the symmetric positive semi-definite K (6, 6) for the columns of b (6, m) into x (6, m).
 
@@ -118,7 +118,7 @@ def ply_stiffness(row, Q, params, d1, d2, out):
 NTERM = 33
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def ply_terms(row, z, cs, share, q, f1, f2, out):
     """One ply's terms of [A B; B D] and of the thermal and moisture resultants into ``out`` (:data:`NTERM`,).
 
@@ -154,7 +154,7 @@ def ply_terms(row, z, cs, share, q, f1, f2, out):
         out[30 + a] = w2 * nt
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def running_sums(terms, sums, k0, n):
     """``sums[k + 1] = sums[k] + terms[k]`` for k0 ≤ k < n (``sums[0]`` zero): the section of plies 0..k.
 
@@ -169,7 +169,7 @@ def running_sums(terms, sums, k0, n):
             sums[k + 1, a] = sums[k, a] + terms[k, a]
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
 def section_from_sums(total, K, fixed):
     """[A B; B D] (6, 6) and the thermal and moisture resultants (6,) from a section's sums (:func:`ply_terms`)."""
     for a in range(3):

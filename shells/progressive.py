@@ -193,6 +193,8 @@ def progressive_block(sec, share, boxes, balls, codes, masks, fibre_mode, retain
         for m in range(boxes.shape[1]):
             kappa[row] = min(kappa[row], boxes[row, m])
             kball[row] = min(kball[row], balls[row, m])
+    inv_kappa = 1.0 / kappa                       # their reciprocals: a ply's bound takes one division
+    inv_kball = 1.0 / kball
     inv = np.zeros((boxes.shape[0], 5))          # reciprocal strengths of the box: Xt, Xc, Yt, Yc, S12
     for row in range(boxes.shape[0]):
         if 0.0 < kappa[row] < np.inf:
@@ -325,7 +327,8 @@ def progressive_block(sec, share, boxes, balls, codes, masks, fibre_mode, retain
                             # No fixed stresses: the faces leave κ·B at κ / gauge, and the ball at its κ over its
                             # gauge; the later of the two (a little under it) is a bound.
                             gk[k], gb[k] = gauges(bm, k, inv, row)
-                            lb[k] = max(kap / gk[k], kball[row] / gb[k]) * (1.0 - BOUND) if gk[k] > 0.0 else np.inf
+                            if gk[k] > 0.0:
+                                lb[k] = (1.0 - BOUND) / min(gk[k] * inv_kappa[row], gb[k] * inv_kball[row])
                         else:
                             for pt in (0, 2):
                                 lo = min(linear_ratio(bf[k, pt, 0], bm[k, pt, 0], kap * params[row, P.XT],

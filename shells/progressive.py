@@ -232,6 +232,7 @@ def progressive_block(sec, share, boxes, balls, codes, masks, fibre_mode, retain
         done = np.empty(maxply, np.bool_)
         bm = np.zeros((maxply, 3, 6))
         bf = np.zeros((maxply, 3, 6))
+        bf_zero = np.ones(maxply, np.bool_)   # bf[k] all zero (no fixed stresses formed since)
         s = cell_sec[i]
         c, sn = cell_cos[i], cell_sin[i]
         cc, ss, cx = c * c, sn * sn, c * sn
@@ -296,6 +297,7 @@ def progressive_block(sec, share, boxes, balls, codes, masks, fibre_mode, retain
                 # Stresses at the checked points; the exact ratio of plies with a matrix failure (their fibre
                 # check) and a lower bound for intact plies (leaving the box κ·B inside every criterion).
                 rmin = np.inf
+                kmin = -1
                 for k in range(n):
                     rk[k] = np.inf
                     lb[k] = np.inf
@@ -310,9 +312,12 @@ def progressive_block(sec, share, boxes, balls, codes, masks, fibre_mode, retain
                     zero_fixed = no_fixed and maps[k, 9] == 0.0 and maps[k, 10] == 0.0
                     _stresses(maps, k, em, 0.0, 0.0, z[row, 0], z[row, 1], z[row, 2], mid, bm)
                     if zero_fixed:
-                        for pt in range(3):
-                            bf[k, pt, 0] = bf[k, pt, 1] = bf[k, pt, 2] = 0.0
+                        if not bf_zero[k]:
+                            for pt in range(3):
+                                bf[k, pt, 0] = bf[k, pt, 1] = bf[k, pt, 2] = 0.0
+                            bf_zero[k] = True
                     else:
+                        bf_zero[k] = False
                         _stresses(maps, k, ef, maps[k, 9], maps[k, 10], z[row, 0], z[row, 1], z[row, 2], mid, bf)
                     if status[k] == 1:
                         for pt in (0, 2):
@@ -343,10 +348,12 @@ def progressive_block(sec, share, boxes, balls, codes, masks, fibre_mode, retain
                         done[k] = True
                     else:
                         done[k] = lb[k] == np.inf      # no chosen criterion applies: never fails
+                    if not done[k] and (kmin < 0 or lb[k] < lb[kmin]):
+                        kmin = k                        # the first ply of the lowest bound, evaluated first
                 # Exact ratios of the intact plies whose bound does not exceed the largest ratio that can still fail
                 # now (the current λ, or the smallest ratio so far): the lowest bound first, then one pass.
                 rmin = exact_step(codes, masks, middle, forms, consts, params, boxes, balls, p0, n, bm, bf, lb, gk, gb,
-                                  done, rk, ck, mk, lam, rmin, sm, sf)
+                                  done, rk, ck, mk, lam, rmin, kmin, sm, sf)
                 if rmin == np.inf:
                     break              # nothing fails any more under this load direction
                 # Plies overloaded at the current λ after the last discount all fail at λ; otherwise λ rises to

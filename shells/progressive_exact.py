@@ -138,24 +138,20 @@ def ply_ratios(codes, masks, middle, forms, consts, params, boxes, balls, row, b
 
 @njit(cache=True, inline="always")
 def exact_step(codes, masks, middle, forms, consts, params, boxes, balls, p0, n, bm, bf, lb, gk, gb, done, rk, ck, mk,
-               lam, rmin, sm, sf):
+               lam, rmin, k, sm, sf):
     """Exact ratios of the plies of a step that can fail; returns the smallest ratio of the step.
 
-    The ply of the lowest bound ``lb`` among those not ``done`` is evaluated first (:func:`ply_ratios`, from and
-    into ``rk``, ``ck``, ``mk``; each evaluated ply is then ``done``), then every other one in slot order whose
-    bound does not exceed the largest ratio that can still fail now: the current load factor ``lam``, or the
-    smallest ratio so far (``rmin`` on entry: that of the plies checked in their fibres only), which falls as
-    plies are evaluated. Every ply whose ratio is within that limit at the end is evaluated, and exactly (its bound
-    is below its ratio, so within every earlier limit); a ply evaluated under a larger limit whose ratio exceeds
-    the final one may keep a value only known to exceed its own limit, which does not fail it. The order changes
-    which plies are evaluated, not the step's result. Slots ``p0 + k`` of the tables, ``k < n``; ``gk``, ``gb``: each
-    slot's gauges ``g``, ``gb`` of :func:`ply_ratios`; ``sm``, ``sf``: work arrays (6,); the other arguments as
-    :func:`ply_ratios`.
+    Slot ``k``, the first of the lowest bound ``lb`` among the slots not ``done`` (−1: none; the stress pass
+    finds it), is evaluated first (:func:`ply_ratios`, from and into ``rk``, ``ck``, ``mk``; each evaluated slot
+    is then ``done``), then every other one in slot order whose bound does not exceed the largest ratio that can
+    still fail now: the current load factor ``lam``, or the smallest ratio so far (``rmin`` on entry: that of the
+    plies checked in their fibres only), which falls as plies are evaluated. Every ply whose ratio is within that
+    limit at the end is evaluated, and exactly (its bound is below its ratio, so within every earlier limit); a
+    ply evaluated under a larger limit whose ratio exceeds the final one may keep a value only known to exceed its
+    own limit, which does not fail it. The order changes which plies are evaluated, not the step's result. Slots
+    ``p0 + j`` of the tables, ``j < n``; ``gk``, ``gb``: each slot's gauges ``g``, ``gb`` of :func:`ply_ratios`;
+    ``sm``, ``sf``: work arrays (6,); the other arguments as :func:`ply_ratios`.
     """
-    k = -1                            # first the ply of the lowest bound, to bring rmin down early
-    for kk in range(n):
-        if not done[kk] and (k < 0 or lb[kk] < lb[k]):
-            k = kk
     if k < 0 or lb[k] > max(lam, rmin) * (1.0 + TIE):
         return rmin
     for kk in range(-1, n):           # then the others in slot order, each while its bound is within the limit

@@ -425,3 +425,25 @@ def test_prepared_forms_give_the_ratios_of_the_criteria():
     results.append(own)
     assert results[0] == results[1]
     assert all(np.isfinite(r) and c >= 0 for r, c, _ in results[0])
+
+
+@pytest.mark.parametrize("rank", [6, 5, 3])
+def test_degraded_solve_carries_loads_in_the_range_and_refuses_the_others(rank):
+    # The section solve (complete pivoting on the diagonally scaled stiffness): for a positive semi-definite K of
+    # the given rank, a load in its range is carried (K x = b to round-off, checked against numpy), and a load
+    # with a component outside the range is refused (closed form: b = K y + n, n in the null space).
+    from shells.degraded import solve_scaled
+
+    rng = np.random.default_rng(rank)
+    for _ in range(50):
+        V = rng.normal(size=(6, rank)) * rng.uniform(0.1, 10.0, size=rank)
+        K = V @ V.T
+        carried = K @ rng.normal(size=(6, 2))
+        null = np.linalg.svd(K)[0][:, rank:]
+        x = np.empty((6, 2))
+        work = np.empty((6, 6)), np.empty((6, 2)), np.empty(6), np.empty(6, np.int64)
+        assert solve_scaled(K, carried, x, *work)
+        np.testing.assert_allclose(K @ x, carried, atol=1e-8 * np.abs(carried).max())
+        if rank < 6:
+            refused = carried + null[:, :1] * np.abs(carried).max()
+            assert not solve_scaled(K, refused, x, *work)

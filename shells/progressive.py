@@ -7,7 +7,7 @@ fibres, the in-plane material-axis stresses (σ1, σ2, τ12) are formed. An inta
 criteria (its strength ratio and mode); a ply with a matrix failure only by its fibres (σ1 against Xt and Xc,
 the fibre check of the ply discount). When plies are overloaded at the current λ after the last discount (their
 ratio is below λ), every one of them fails at λ; otherwise λ rises to the smallest ratio and that ply — and every
-ply whose ratio ties with it within :data:`TIE` — fails. A failed ply is discounted for its mode:
+ply whose ratio ties with it within :data:`~shells.progressive_exact.TIE` — fails. A failed ply is discounted for its mode:
 
 - matrix failure (a mode whose name does not start with "fibre", on a ply): E2 and G12 multiplied by
   ``matrix_retained``;
@@ -26,8 +26,8 @@ has the bits of a rebuild), solves it and checks the plies: a ply's map from str
 (Q·T, :func:`_ply_map`) is formed when its stiffness changes, so its stresses at a step are two 3×3 products
 and a line in z. The criteria are evaluated exactly (:mod:`shells.progressive_exact`) only on the intact plies
 whose lower bound (the ratio of leaving a strength box inside every criterion, :mod:`shells.progressive_bounds`;
-without fixed stresses one gauge of the faces' stresses in the box, :func:`box_gauge`) does not rule out a
-failure at this step, and :data:`CONVEX` criteria only at a ply's faces; without a fixed part no fixed stresses
+without fixed stresses the later of leaving the box and leaving a ball of normalised stresses, from the faces'
+gauges, :func:`gauges`) does not rule out a failure at this step, and :data:`CONVEX` criteria only at a ply's faces; without a fixed part no fixed stresses
 are formed. Conventions: docs/conventions.md; the ply discount: docs/criteria.md.
 """
 

@@ -7,7 +7,8 @@ fibres, the in-plane material-axis stresses (σ1, σ2, τ12) are formed. An inta
 criteria (its strength ratio and mode); a ply with a matrix failure only by its fibres (σ1 against Xt and Xc,
 the fibre check of the ply discount). When plies are overloaded at the current λ after the last discount (their
 ratio is below λ), every one of them fails at λ; otherwise λ rises to the smallest ratio and that ply — and every
-ply whose ratio ties with it within :data:`~shells.progressive_exact.TIE` — fails. A failed ply is discounted for its mode:
+ply whose ratio ties with it within :data:`~shells.progressive_exact.TIE` — fails. A failed ply is discounted
+for its mode:
 
 - matrix failure (a mode whose name does not start with "fibre", on a ply): E2 and G12 multiplied by
   ``matrix_retained``;
@@ -27,8 +28,9 @@ has the bits of a rebuild), solves it and checks the plies: a ply's map from str
 and a line in z. The criteria are evaluated exactly (:mod:`shells.progressive_exact`) only on the intact plies
 whose lower bound (the ratio of leaving a strength box inside every criterion, :mod:`shells.progressive_bounds`;
 without fixed stresses the later of leaving the box and leaving a ball of normalised stresses, from the faces'
-gauges, :func:`gauges`) does not rule out a failure at this step, and :data:`CONVEX` criteria only at a ply's faces; without a fixed part no fixed stresses
-are formed. Conventions: docs/conventions.md; the ply discount: docs/criteria.md.
+gauges, :func:`gauges`) does not rule out a failure at this step, and :data:`CONVEX` criteria only at a ply's
+faces; without a fixed part no fixed stresses are formed. Conventions: docs/conventions.md; the ply discount:
+docs/criteria.md.
 """
 
 from __future__ import annotations
@@ -120,22 +122,29 @@ def _stresses(maps, k, e, f0, f1, z0, z1, z2, mid, out):
 
 
 @njit(cache=True, inline="always")
-def gauges(bm, k, inv, row):
-    """The gauges of the states of ply slot ``k`` at its faces (``bm[k, 0]``, ``bm[k, 2]``) in the box B and in
-    the ball of normalised stresses (:mod:`shells.progressive_bounds`), from the reciprocal limits ``inv[row]``
-    (1/Xt, 1/Xc, 1/Yt, 1/Yc, 1/S12): with u, v, w the stresses over their limits, the largest over the faces of
-    max(|u|, |v|, |w|) and of sqrt(u² + v² + w²). The states λ·bm stay in κ·B (in the ball of radius κ) while
-    λ·gauge < κ."""
-    box = 0.0
-    ball = 0.0
+def gauges(bm, k, inv, row, out):
+    """The gauges of the states of ply slot ``k`` in the box B and in the ball of normalised stresses
+    (:mod:`shells.progressive_bounds`), from the reciprocal limits ``inv[row]`` (1/Xt, 1/Xc, 1/Yt, 1/Yc, 1/S12):
+    with u, v, w the stresses over their limits, max(|u|, |v|, |w|) and sqrt(u² + v² + w²) into ``out[k, pt]``
+    at each face (pt 0 and 2, from ``bm[k, pt]``) and the larger of the faces' at the middle (pt 1: a gauge is
+    convex, and the middle's states are the faces' mean). The states λ·bm[k, pt] stay in κ·B (in the ball of
+    radius κ) while λ·gauge < κ."""
     for pt in (0, 2):
         x0, x1, x2 = bm[k, pt, 0], bm[k, pt, 1], bm[k, pt, 2]
         u = x0 * (inv[row, 0] if x0 > 0.0 else -inv[row, 1])
         v = x1 * (inv[row, 2] if x1 > 0.0 else -inv[row, 3])
         w = abs(x2) * inv[row, 4]
-        box = max(box, u, v, w)
-        ball = max(ball, u * u + v * v + w * w)
-    return box, np.sqrt(ball)
+        out[k, pt, 0] = max(u, v, w)
+        out[k, pt, 1] = np.sqrt(u * u + v * v + w * w)
+    out[k, 1, 0] = max(out[k, 0, 0], out[k, 2, 0])
+    out[k, 1, 1] = max(out[k, 0, 1], out[k, 2, 1])
+
+
+@njit(cache=True, inline="always")
+def no_gauges(out, k):
+    """Gauges of ply slot ``k`` that rule nothing out (inf: the ply has fixed stresses, or no box)."""
+    for pt in range(3):
+        out[k, pt, 0] = out[k, pt, 1] = np.inf
 
 
 @njit(cache=True, parallel=True)
@@ -225,8 +234,7 @@ def progressive_block(sec, share, boxes, balls, codes, masks, fibre_mode, retain
         ck = np.empty(maxply, np.int64)
         mk = np.empty(maxply, np.int64)
         lb = np.empty(maxply)
-        gk = np.empty(maxply)
-        gb = np.empty(maxply)
+        fg = np.empty((maxply, 3, 2))         # gauges of each ply's points (gauges)
         sm = np.empty(6)
         sf = np.empty(6)
         done = np.empty(maxply, np.bool_)
@@ -301,8 +309,6 @@ def progressive_block(sec, share, boxes, balls, codes, masks, fibre_mode, retain
                 for k in range(n):
                     rk[k] = np.inf
                     lb[k] = np.inf
-                    gk[k] = np.inf
-                    gb[k] = np.inf
                     if status[k] == 2:
                         done[k] = True             # fibre-failed: never checked again
                         continue
@@ -327,14 +333,16 @@ def progressive_block(sec, share, boxes, balls, codes, masks, fibre_mode, retain
                                 mk[k] = FT if bf[k, pt, 0] + sr * bm[k, pt, 0] >= 0.0 else FC
                     elif kap == 0.0:
                         lb[k] = -np.inf
+                        no_gauges(fg, k)
                     elif kap < np.inf:
                         if zero_fixed:
                             # No fixed stresses: the faces leave κ·B at κ / gauge, and the ball at its κ over its
                             # gauge; the later of the two (a little under it) is a bound.
-                            gk[k], gb[k] = gauges(bm, k, inv, row)
-                            if gk[k] > 0.0:
-                                lb[k] = (1.0 - BOUND) / min(gk[k] * inv_kappa[row], gb[k] * inv_kball[row])
+                            gauges(bm, k, inv, row, fg)
+                            if fg[k, 1, 0] > 0.0:
+                                lb[k] = (1.0 - BOUND) / min(fg[k, 1, 0] * inv_kappa[row], fg[k, 1, 1] * inv_kball[row])
                         else:
+                            no_gauges(fg, k)
                             for pt in (0, 2):
                                 lo = min(linear_ratio(bf[k, pt, 0], bm[k, pt, 0], kap * params[row, P.XT],
                                                       kap * params[row, P.XC]),
@@ -352,7 +360,7 @@ def progressive_block(sec, share, boxes, balls, codes, masks, fibre_mode, retain
                         kmin = k                        # the first ply of the lowest bound, evaluated first
                 # Exact ratios of the intact plies whose bound does not exceed the largest ratio that can still fail
                 # now (the current λ, or the smallest ratio so far): the lowest bound first, then one pass.
-                rmin = exact_step(codes, masks, middle, forms, consts, params, boxes, balls, p0, n, bm, bf, lb, gk, gb,
+                rmin = exact_step(codes, masks, middle, forms, consts, params, boxes, balls, p0, n, bm, bf, lb, fg,
                                   done, rk, ck, mk, lam, rmin, kmin, sm, sf)
                 if rmin == np.inf:
                     break              # nothing fails any more under this load direction

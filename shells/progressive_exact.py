@@ -57,13 +57,13 @@ def box_inside(bm, bf, k, pt, p, kap, lam):
 @njit(cache=True, inline="always")
 def ruled_out(lam, g, gb, box, ball):
     """Whether a criterion whose box κ is ``box`` and ball κ ``ball`` cannot fail a ply up to the load factor
-    ``lam``: λ·gauge below κ (1 − BOUND) for either (gauges ``g``, ``gb`` of :func:`ply_ratios`)."""
+    ``lam``: λ·gauge below κ (1 − BOUND) for either (gauges ``g``, ``gb``: ``fg`` of :func:`ply_ratios`)."""
     return lam * g < box * (1.0 - BOUND) or lam * gb < ball * (1.0 - BOUND)
 
 
 @njit(cache=True, inline="always")
-def ply_ratios(codes, masks, middle, forms, consts, params, boxes, balls, row, bm, bf, g, gb, k, limit, r, crit, mode,
-               sm, sf):
+def ply_ratios(codes, masks, middle, forms, consts, params, boxes, balls, row, bm, bf, fg, k, limit, r, crit, mode, sm,
+               sf):
     """The lowest ratio of ply slot ``k`` (table row ``row``) over the criteria and points, from (r, crit, mode).
 
     Parameters
@@ -81,12 +81,13 @@ def ply_ratios(codes, masks, middle, forms, consts, params, boxes, balls, row, b
         :func:`~shells.progressive_bounds.criterion_balls`; 0: none).
     bm, bf : float64 (maxply, 3, 6)
         Mechanical and fixed material-axis stresses per ply slot and point.
-    g, gb : float
-        Gauges of the ply's mechanical face stresses in the strength box B and in the ball of normalised stresses
-        (:func:`shells.progressive.gauges`; the fixed stresses being zero, inf when they are not): criterion ``m``
-        cannot fail at any point of the ply (the middle's states are the faces' mean, box and ball convex) while
-        λ·g < κ_m or λ·gb < κ_m of the ball (:func:`ruled_out`). Criteria so ruled out up to the smaller of
-        ``limit`` and ``r`` are not looked at; the others are tested again at each point as ``r`` falls.
+    fg : float64 (maxply, 3, 2)
+        Gauges of the ply's mechanical stresses at each point in the strength box B and in the ball of normalised
+        stresses (:func:`shells.progressive.gauges`: at the middle the larger of the faces'; the fixed stresses
+        being zero, inf when they are not): criterion ``m`` cannot fail at point ``pt`` while λ·gauge < κ_m of
+        the box or of the ball (:func:`ruled_out`), nor at any point while the middle's gauges say so. Criteria
+        so ruled out up to the smaller of ``limit`` and ``r`` are not looked at; the others are tested again at
+        each point as ``r`` falls.
     limit : float
         The largest ratio that can fail at this step (inf: no limit). A criterion is not evaluated at a point
         where it is known not to fail up to the smaller of ``limit`` and the lowest ratio so far (× (1 + TIE)):
@@ -107,7 +108,7 @@ def ply_ratios(codes, masks, middle, forms, consts, params, boxes, balls, row, b
     lam0 = min(limit, r * (1.0 + TIE))
     active = 0                        # criteria whose box the ply's faces may leave up to lam0 (bits)
     for m in range(codes.shape[0]):
-        if forms[row, m] != SKIP and not ruled_out(lam0, g, gb, boxes[row, m], balls[row, m]):
+        if forms[row, m] != SKIP and not ruled_out(lam0, fg[k, 1, 0], fg[k, 1, 1], boxes[row, m], balls[row, m]):
             active |= 1 << m
     if active == 0:
         return r, crit, mode
@@ -122,8 +123,8 @@ def ply_ratios(codes, masks, middle, forms, consts, params, boxes, balls, row, b
                 continue
             f = forms[row, m]
             lam = min(limit, r * (1.0 + TIE))
-            if ruled_out(lam, g, gb, boxes[row, m], balls[row, m]):
-                continue              # the ply's faces stay in the criterion's box or ball: no point fails it
+            if ruled_out(lam, fg[k, pt, 0], fg[k, pt, 1], boxes[row, m], balls[row, m]):
+                continue              # the point's states stay in the criterion's box or ball: it cannot fail
             if lam < np.inf and ((f == FAST and inside_by_code(codes[m], sm, sf, cr, m, lam))
                                  or (boxes[row, m] > 0.0 and box_inside(bm, bf, k, pt, pr, boxes[row, m], lam))):
                 continue              # cannot fail up to lam: neither at this step nor below r
@@ -137,8 +138,8 @@ def ply_ratios(codes, masks, middle, forms, consts, params, boxes, balls, row, b
 
 
 @njit(cache=True, inline="always")
-def exact_step(codes, masks, middle, forms, consts, params, boxes, balls, p0, n, bm, bf, lb, gk, gb, done, rk, ck, mk,
-               lam, rmin, k, sm, sf):
+def exact_step(codes, masks, middle, forms, consts, params, boxes, balls, p0, n, bm, bf, lb, fg, done, rk, ck, mk, lam,
+               rmin, k, sm, sf):
     """Exact ratios of the plies of a step that can fail; returns the smallest ratio of the step.
 
     Slot ``k``, the first of the lowest bound ``lb`` among the slots not ``done`` (−1: none; the stress pass
@@ -149,7 +150,7 @@ def exact_step(codes, masks, middle, forms, consts, params, boxes, balls, p0, n,
     limit at the end is evaluated, and exactly (its bound is below its ratio, so within every earlier limit); a
     ply evaluated under a larger limit whose ratio exceeds the final one may keep a value only known to exceed its
     own limit, which does not fail it. The order changes which plies are evaluated, not the step's result. Slots
-    ``p0 + j`` of the tables, ``j < n``; ``gk``, ``gb``: each slot's gauges ``g``, ``gb`` of :func:`ply_ratios`;
+    ``p0 + j`` of the tables, ``j < n``; ``fg``: the slots' gauges (:func:`ply_ratios`);
     ``sm``, ``sf``: work arrays (6,); the other arguments as :func:`ply_ratios`.
     """
     if k < 0 or lb[k] > max(lam, rmin) * (1.0 + TIE):
@@ -163,6 +164,6 @@ def exact_step(codes, masks, middle, forms, consts, params, boxes, balls, p0, n,
             continue
         done[j] = True
         rk[j], ck[j], mk[j] = ply_ratios(codes, masks, middle, forms, consts, params, boxes, balls, p0 + j, bm, bf,
-                                         gk[j], gb[j], j, limit, rk[j], ck[j], mk[j], sm, sf)
+                                         fg, j, limit, rk[j], ck[j], mk[j], sm, sf)
         rmin = min(rmin, rk[j])
     return rmin

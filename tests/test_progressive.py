@@ -312,24 +312,30 @@ def test_states_in_a_criterion_box_do_not_fail_it(name):
                     answered += 1
                     assert r > lam, (name, pt, bm[0, pt], bf[0, pt], r, lam)
     assert answered > 1000
-    # Without fixed stresses the kernel tests the whole ply at once: λ·gauge < κ (1 − BOUND), the gauges of the
-    # faces' stresses in the box B and in the ball of normalised stresses, rules the criterion out at all three
-    # points.
+    # Without fixed stresses the kernel tests each point by its gauges in the box B and in the ball of normalised
+    # stresses, λ·gauge < κ (1 − BOUND), and the whole ply by the middle's (the larger of the faces'): the
+    # criterion's ratio must then exceed λ at that point, and at all three points for the middle's gauges.
     inv = 1.0 / p[None, [P.XT, P.XC, P.YT, P.YC, P.S12]]
     zero = np.zeros(6)
-    answered = {"box": 0, "ball": 0}
+    answered = {"box": 0, "ball": 0, "face": 0}
+    fg = np.empty((1, 3, 2))
     for _ in range(3000):
         faces = rng.normal(size=(2, 3)) * scale * rng.uniform(0.01, 1.0)
         bm = np.zeros((1, 3, 6))
         bm[0, ::2, :3] = faces
-        g, gb = gauges(bm, 0, inv, 0)
+        gauges(bm, 0, inv, 0, fg)
         points = (faces[0], faces.mean(axis=0), faces[1])
-        r = min(ratio_by_code(code(name), np.r_[s, 0.0, 0.0, 0.0], zero, p)[0] for s in points)
-        for lam in (0.3 * r, 0.9 * r, 0.99 * r, r, 1.5 * r):
-            if ruled_out(lam, g, gb, kappa, kball):
-                answered["box"] += lam * g < kappa * (1.0 - BOUND)
-                answered["ball"] += lam * gb < kball * (1.0 - BOUND)
-                assert r > lam, (name, faces, r, lam)
+        ratios = [ratio_by_code(code(name), np.r_[s, 0.0, 0.0, 0.0], zero, p)[0] for s in points]
+        for lam in (0.3, 0.9, 0.99, 1.0, 1.5) * np.array(min(ratios)):
+            if ruled_out(lam, fg[0, 1, 0], fg[0, 1, 1], kappa, kball):
+                answered["box"] += lam * fg[0, 1, 0] < kappa * (1.0 - BOUND)
+                answered["ball"] += lam * fg[0, 1, 1] < kball * (1.0 - BOUND)
+                assert min(ratios) > lam, (name, faces, ratios, lam)
+        for pt in (0, 2):
+            for lam in (0.3, 0.9, 0.99, 1.0, 1.5) * np.array(ratios[pt]):
+                if ruled_out(lam, fg[0, pt, 0], fg[0, pt, 1], kappa, kball):
+                    answered["face"] += 1
+                    assert ratios[pt] > lam, (name, faces, pt, ratios, lam)
     assert min(answered.values()) > 1000, answered
 
 
@@ -409,9 +415,9 @@ def test_prepared_forms_give_the_ratios_of_the_criteria():
     bf = np.zeros((8, 3, 6))
     bm[..., :3] = rng.normal(size=(8, 3, 3)) * np.array([XT, YT, S])
     bf[..., :3] = rng.normal(size=(8, 3, 3)) * np.array([XT, YT, S]) * 0.3
-    none = np.zeros((8, len(codes)))               # no box, no ball
-    results = [[exact.ply_ratios(codes, masks, True, forms, consts, params, none, none, k, bm, bf, np.inf, np.inf,
-                                 k, np.inf, np.inf, -1, -1, np.empty(6), np.empty(6))
+    none = np.zeros((8, len(codes)))               # no box, no ball, gauges that rule nothing out
+    results = [[exact.ply_ratios(codes, masks, True, forms, consts, params, none, none, k, bm, bf,
+                                 np.full((8, 3, 2), np.inf), k, np.inf, np.inf, -1, -1, np.empty(6), np.empty(6))
                 for k in range(8)]]
     own = []
     for k in range(8):

@@ -27,10 +27,10 @@ has the bits of a rebuild), solves it and checks the plies: a ply's map from str
 (Q·T, :func:`_ply_map`) is formed when its stiffness changes, so its stresses at a step are two 3×3 products
 and a line in z. The criteria are evaluated exactly (:mod:`shells.progressive_exact`) only on the intact plies
 whose lower bound (the ratio of leaving a strength box inside every criterion, :mod:`shells.progressive_bounds`;
-without fixed stresses the later of leaving the box and leaving a ball of normalised stresses, from the faces'
-gauges, :func:`gauges`) does not rule out a failure at this step, and :data:`CONVEX` criteria only at a ply's
-faces; without a fixed part no fixed stresses are formed. Conventions: docs/conventions.md; the ply discount:
-docs/criteria.md.
+without fixed stresses the later of leaving the box and leaving a ball of normalised stresses, from the points'
+gauges, :func:`shells.progressive_bounds.gauges`) does not rule out a failure at this step, and :data:`CONVEX`
+criteria only at a ply's faces; without a fixed part no fixed stresses are formed. Conventions:
+docs/conventions.md; the ply discount: docs/criteria.md.
 """
 
 from __future__ import annotations
@@ -45,6 +45,7 @@ from .criteria.state import FC, FT
 from .degraded import NTERM, ply_stiffness, ply_terms, running_sums, section_from_sums, solve_scaled
 from .progressive_exact import BOUND, TIE, exact_step
 from .numba_cache import configure
+from .progressive_bounds import gauges, no_gauges
 from .recovery import drop_roundoff
 
 configure()
@@ -119,32 +120,6 @@ def _stresses(maps, k, e, f0, f1, z0, z1, z2, mid, out):
         out[k, 1, 0] = a0 + z1 * b0
         out[k, 1, 1] = a1 + z1 * b1
         out[k, 1, 2] = a2 + z1 * b2
-
-
-@njit(cache=True, inline="always")
-def gauges(bm, k, inv, row, out):
-    """The gauges of the states of ply slot ``k`` in the box B and in the ball of normalised stresses
-    (:mod:`shells.progressive_bounds`), from the reciprocal limits ``inv[row]`` (1/Xt, 1/Xc, 1/Yt, 1/Yc, 1/S12):
-    with u, v, w the stresses over their limits, max(|u|, |v|, |w|) and sqrt(u² + v² + w²) into ``out[k, pt]``
-    at each face (pt 0 and 2, from ``bm[k, pt]``) and the larger of the faces' at the middle (pt 1: a gauge is
-    convex, and the middle's states are the faces' mean). The states λ·bm[k, pt] stay in κ·B (in the ball of
-    radius κ) while λ·gauge < κ."""
-    for pt in (0, 2):
-        x0, x1, x2 = bm[k, pt, 0], bm[k, pt, 1], bm[k, pt, 2]
-        u = x0 * (inv[row, 0] if x0 > 0.0 else -inv[row, 1])
-        v = x1 * (inv[row, 2] if x1 > 0.0 else -inv[row, 3])
-        w = abs(x2) * inv[row, 4]
-        out[k, pt, 0] = max(u, v, w)
-        out[k, pt, 1] = np.sqrt(u * u + v * v + w * w)
-    out[k, 1, 0] = max(out[k, 0, 0], out[k, 2, 0])
-    out[k, 1, 1] = max(out[k, 0, 1], out[k, 2, 1])
-
-
-@njit(cache=True, inline="always")
-def no_gauges(out, k):
-    """Gauges of ply slot ``k`` that rule nothing out (inf: the ply has fixed stresses, or no box)."""
-    for pt in range(3):
-        out[k, pt, 0] = out[k, pt, 1] = np.inf
 
 
 @njit(cache=True, parallel=True)

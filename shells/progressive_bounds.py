@@ -33,6 +33,8 @@ so that every flat triangle lies outside the sphere. The criterion's safe region
 mode's function of the stresses is), so the polytope scaled by the smallest ratio at its vertices is inside it,
 and with it the ball. Vertices on the planes between octants are also taken a little inside each octant (a
 criterion's modes change there); κ is taken :data:`BALL_MARGIN` below the smallest ratio.
+
+The kernel's side: :func:`gauges` of a ply's states in the box and in the ball (numba).
 """
 
 from __future__ import annotations
@@ -188,3 +190,29 @@ def criterion_balls(params: np.ndarray, criteria: Sequence[type]) -> np.ndarray:
         return cache[key]
 
     return _table(params, criteria, kappa)
+
+
+@njit(cache=True, inline="always")
+def gauges(bm, k, inv, row, out):
+    """The gauges of the states of ply slot ``k`` in the box B and in the ball of normalised stresses
+    (:mod:`shells.progressive_bounds`), from the reciprocal limits ``inv[row]`` (1/Xt, 1/Xc, 1/Yt, 1/Yc, 1/S12):
+    with u, v, w the stresses over their limits, max(|u|, |v|, |w|) and sqrt(u² + v² + w²) into ``out[k, pt]``
+    at each face (pt 0 and 2, from ``bm[k, pt]``) and the larger of the faces' at the middle (pt 1: a gauge is
+    convex, and the middle's states are the faces' mean). The states λ·bm[k, pt] stay in κ·B (in the ball of
+    radius κ) while λ·gauge < κ."""
+    for pt in (0, 2):
+        x0, x1, x2 = bm[k, pt, 0], bm[k, pt, 1], bm[k, pt, 2]
+        u = x0 * (inv[row, 0] if x0 > 0.0 else -inv[row, 1])
+        v = x1 * (inv[row, 2] if x1 > 0.0 else -inv[row, 3])
+        w = abs(x2) * inv[row, 4]
+        out[k, pt, 0] = max(u, v, w)
+        out[k, pt, 1] = np.sqrt(u * u + v * v + w * w)
+    out[k, 1, 0] = max(out[k, 0, 0], out[k, 2, 0])
+    out[k, 1, 1] = max(out[k, 0, 1], out[k, 2, 1])
+
+
+@njit(cache=True, inline="always")
+def no_gauges(out, k):
+    """Gauges of ply slot ``k`` that rule nothing out (inf: the ply has fixed stresses, or no box)."""
+    for pt in range(3):
+        out[k, pt, 0] = out[k, pt, 1] = np.inf

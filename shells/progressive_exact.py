@@ -83,7 +83,7 @@ def ply_ratios(codes, masks, middle, forms, consts, params, boxes, balls, row, b
         Mechanical and fixed material-axis stresses per ply slot and point.
     fg : float64 (maxply, 3, 2)
         Gauges of the ply's mechanical stresses at each point in the strength box B and in the ball of normalised
-        stresses (:func:`shells.progressive.gauges`: at the middle the larger of the faces'; the fixed stresses
+        stresses (:func:`shells.progressive_bounds.gauges`: at the middle the larger of the faces'; the fixed stresses
         being zero, inf when they are not): criterion ``m`` cannot fail at point ``pt`` while λ·gauge < κ_m of
         the box or of the ball (:func:`ruled_out`), nor at any point while the middle's gauges say so. Criteria
         so ruled out up to the smaller of ``limit`` and ``r`` are not looked at; the others are tested again at

@@ -289,7 +289,7 @@ def test_states_in_a_criterion_box_do_not_fail_it(name):
     from shells.criteria import code
     from shells.criteria.dispatch import ratio_by_code
     from shells.progressive_bounds import criterion_balls, criterion_boxes
-    from shells.progressive import gauges
+    from shells.progressive_bounds import gauges
     from shells.progressive_exact import BOUND, box_inside, ruled_out
 
     crit = by_name(name)

@@ -6,7 +6,7 @@ At each step :func:`exact_step` evaluates the ply of the lowest bound, then ever
 does not rule out a failure at this step (one pass in slot order). It is inlined into the parallel kernel: as a
 call per step with its twenty arrays it cost about 13 % of the kernel's time (measured against the inlined
 form; the same function compiled once per cell outside the parallel loop was as slow as the call), at the price
-of about 12 s more cold compile for a progressive run (the criteria are typed inside the kernel's loop). The
+of about 20 s more cold compile for a progressive run (the criteria are typed inside the kernel's loop). The
 states copied into work arrays, and a criterion without a prepared form on the row called out of line on the
 parent arrays, keep call and reference-counting work off the evaluations.
 """
